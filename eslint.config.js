@@ -1,0 +1,84 @@
+// Lint, and the layering of the three rooms (GUIDE section 2):
+//   src/core      pure computation: imports only core files and ml-matrix; no Node, Electron or DOM.
+//   src/main      the Node side: may import core and anything from Node or the registry.
+//   src/renderer  the page: may import core; no Node module and no Electron (type-only imports aside).
+// Every source file must belong to a layer; a file no rule classifies fails the lint. Do not relax
+// these rules to make a file pass: move the code to the layer it belongs to.
+import js from '@eslint/js';
+import tseslint from 'typescript-eslint';
+import globals from 'globals';
+import { builtinModules } from 'node:module';
+
+const nodeBuiltins = [...builtinModules, ...builtinModules.map((m) => `node:${m}`)];
+
+const layers = {
+  core: ['src/core/**/*.ts'],
+  main: ['src/main/**/*.ts'],
+  renderer: ['src/renderer/**/*.ts'],
+  tests: ['test/**/*.ts', 'bench/**/*.ts'],
+  tooling: ['*.config.js', '*.config.ts', 'bin/**/*.js', '.ci/**/*.js'],
+};
+
+const layering = {
+  rules: {
+    unclassified: {
+      meta: { type: 'problem', messages: { none: 'This file belongs to no layer (see eslint.config.js): move it into src/core, src/main, src/renderer, test or bench.' } },
+      create(context) {
+        return { Program(node) { context.report({ node, messageId: 'none' }); } };
+      },
+    },
+  },
+};
+
+export default tseslint.config(
+  { ignores: ['node_modules/**', 'dist/**', 'out/**', 'coverage/**', 'test-results/**', '.bench-cache/**'] },
+  js.configs.recommended,
+  ...tseslint.configs.recommended,
+  {
+    rules: {
+      '@typescript-eslint/no-unused-vars': ['error', { argsIgnorePattern: '^_', varsIgnorePattern: '^_' }],
+      '@typescript-eslint/consistent-type-imports': 'error',
+    },
+  },
+  {
+    files: layers.core,
+    languageOptions: { globals: { ...globals.es2021 } },
+    rules: {
+      'no-restricted-imports': ['error', {
+        patterns: [
+          { regex: '^(?!\\./|\\.\\./|ml-matrix$)', message: 'src/core imports only core files and ml-matrix (no Node, Electron, DOM or I/O libraries).' },
+          { group: ['../main/**', '../renderer/**', '../../**'], message: 'src/core must not reach into src/main or src/renderer.' },
+        ],
+      }],
+      'no-restricted-globals': ['error', 'window', 'document', 'process', 'Buffer', 'require', 'fetch', 'navigator', 'console'],
+    },
+  },
+  {
+    files: layers.renderer,
+    languageOptions: { globals: { ...globals.browser } },
+    rules: {
+      'no-restricted-imports': ['error', {
+        paths: [...nodeBuiltins, 'electron', 'sharp', 'exifr', 'piscina'].map((name) => ({ name, allowTypeImports: true, message: 'src/renderer talks to main only through the API object.' })),
+        patterns: [{ group: ['../main/**'], allowTypeImports: true, message: 'src/renderer may import types only from src/main.' }],
+      }],
+      'no-restricted-globals': ['error', 'process', 'Buffer', 'require'],
+    },
+  },
+  {
+    files: layers.main,
+    languageOptions: { globals: { ...globals.node } },
+    rules: {
+      'no-restricted-imports': ['error', { patterns: [{ group: ['../renderer/**'], message: 'src/main does not import the renderer.' }] }],
+    },
+  },
+  {
+    files: [...layers.tests, ...layers.tooling],
+    languageOptions: { globals: { ...globals.node } },
+  },
+  {
+    files: ['**/*.ts', '**/*.js'],
+    ignores: Object.values(layers).flat(),
+    plugins: { layering },
+    rules: { 'layering/unclassified': 'error' },
+  },
+);

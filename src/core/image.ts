@@ -1,0 +1,31 @@
+/** An 8-bit greyscale frame as decoded (sRGB-encoded values 0..255), row-major, no padding. */
+export interface GrayImage {
+  readonly width: number;
+  readonly height: number;
+  readonly data: Uint8Array;
+}
+
+/** A single-channel float image (a pyramid level, a response map), row-major, no padding. */
+export interface FloatImage {
+  readonly width: number;
+  readonly height: number;
+  readonly data: Float32Array;
+}
+
+export function expectImage(image: { width: number; height: number; data: ArrayLike<number> }, name: string): void {
+  if (!Number.isInteger(image.width) || image.width <= 0 || !Number.isInteger(image.height) || image.height <= 0) {
+    throw new TypeError(`Expected positive integer width and height for ${name} but received ${image.width}x${image.height}`);
+  }
+  if (image.data.length !== image.width * image.height) {
+    throw new TypeError(`Expected ${image.width * image.height} pixels for ${name} but received ${image.data.length}`);
+  }
+}
+
+/** Copies an 8-bit frame into a float image (values unchanged). */
+export function toFloatImage(image: GrayImage, out?: Float32Array): FloatImage {
+  const n = image.width * image.height;
+  const data = out && out.length >= n ? out.subarray(0, n) : new Float32Array(n);
+  const src = image.data;
+  for (let i = 0; i < n; i++) data[i] = src[i];
+  return { width: image.width, height: image.height, data };
+}

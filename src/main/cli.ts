@@ -1,0 +1,63 @@
+import { basename } from 'node:path';
+import { parseArgs } from 'node:util';
+import { exposureDifference } from '../core/exposure.js';
+import { detectAndDescribe } from '../core/features.js';
+import { estimatePairGeometry } from '../core/pair-geometry.js';
+import { decodeForAnalysis } from './decode.js';
+
+const usage = `Usage:
+  seamscout pair <frameA> <frameB> [--size N]   match two frames and print overlap, inliers and EV difference
+
+Options:
+  --size N   longest side of the analysis image in pixels (default 1500)
+  --help     this text
+`;
+
+async function pairCommand(args: string[]): Promise<number> {
+  const { values, positionals } = parseArgs({ args, allowPositionals: true, options: { size: { type: 'string', default: '1500' } } });
+  if (positionals.length !== 2) {
+    process.stderr.write(`Expected two frames for pair but received ${positionals.length}\n\n${usage}`);
+    return 2;
+  }
+  const size = Number(values.size);
+  if (!Number.isInteger(size) || size < 64) {
+    process.stderr.write(`Expected a whole number of pixels (64 or more) for --size but received ${values.size}\n`);
+    return 2;
+  }
+  const [pa, pb] = positionals;
+  const [a, b] = await Promise.all([decodeForAnalysis(pa, size), decodeForAnalysis(pb, size)]);
+  const g = estimatePairGeometry(detectAndDescribe(a.image), detectAndDescribe(b.image));
+  const ev = g.homography ? exposureDifference(a.image, b.image, g.homography) : null;
+  const pct = (v: number | null): string => (v === null ? 'n/a' : `${(100 * v).toFixed(1)} %`);
+  const lines = [
+    `${basename(pa)} -> ${basename(pb)}`,
+    `  matches     ${g.matches.count}`,
+    `  inliers     ${g.inliers}`,
+    `  overlap     ${pct(g.overlap)}`,
+    `  EV change   ${ev ? `${ev.ev >= 0 ? '+' : ''}${ev.ev.toFixed(2)} EV (${basename(pb)} ${ev.ev >= 0 ? 'brighter' : 'darker'})` : 'n/a'}`,
+    `  RMS error   ${g.rmsError === null ? 'n/a' : `${g.rmsError.toFixed(2)} px at analysis size`}`,
+    `  result      ${g.homography ? 'matched' : `no model (${g.noModel})`}`,
+  ];
+  process.stdout.write(lines.join('\n') + '\n');
+  return g.homography ? 0 : 1;
+}
+
+export async function main(argv: string[]): Promise<number> {
+  const [command, ...rest] = argv;
+  if (!command || command === '--help' || command === 'help') {
+    process.stdout.write(usage);
+    return command ? 0 : 2;
+  }
+  try {
+    if (command === 'pair') return await pairCommand(rest);
+    process.stderr.write(`Expected a command (pair) but received ${command}\n\n${usage}`);
+    return 2;
+  } catch (err) {
+    process.stderr.write(`seamscout: ${(err as Error).message}\n`);
+    return 2;
+  }
+}
+
+main(process.argv.slice(2)).then((code) => {
+  process.exitCode = code;
+});
