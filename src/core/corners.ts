@@ -45,13 +45,16 @@ export function findCandidates(
     for (let x = m; x < width - m; x++) {
       const o = row + x;
       const v = response[o];
-      if (v <= 0) continue;
-      if (v <= response[o - 1] || v < response[o + 1]) continue;
+      if (v <= 0 || v < response[o + 1]) continue;
+      if (v <= response[o - 1]) continue;
+      // v >= its right neighbour, so that neighbour cannot be a strict maximum: skip it (Neubeck &
+      // Van Gool, "Efficient non-maximum suppression", ICPR 2006).
       const u = o - width;
       const d = o + width;
-      if (v <= response[u - 1] || v <= response[u] || v <= response[u + 1]) continue;
-      if (v < response[d - 1] || v < response[d] || v < response[d + 1]) continue;
-      if (count < idxBuf.length) idxBuf[count++] = o;
+      if (v > response[u - 1] && v > response[u] && v > response[u + 1] && v >= response[d - 1] && v >= response[d] && v >= response[d + 1]) {
+        if (count < idxBuf.length) idxBuf[count++] = o;
+      }
+      x++;
     }
   }
   const values = pool.float32('candVal', count);

@@ -16,6 +16,8 @@ export interface PairGeometry {
   /** Per tentative match, 1 when it is an inlier of the accepted model. */
   readonly inlierMask: Uint8Array;
   readonly inliers: number;
+  /** Inliers as a share of the tentative matches (0 when there is no model). */
+  readonly inlierRatio: number;
   /** a -> b, or null: "no model", never a guess. */
   readonly homography: Homography | null;
   readonly overlap: number | null;
@@ -61,7 +63,7 @@ export function estimatePairGeometry(fa: Features, fb: Features, params: Partial
   const p = { ...defaultPairParams, ...params };
   const matches = matchDescriptors(fa.descriptors, fb.descriptors, p.match);
   const none = (reason: NoModelReason, inlierMask = new Uint8Array(matches.count), inOverlap = 0): PairGeometry => ({
-    matches, inlierMask, inliers: 0, homography: null, overlap: null, rmsError: null, matchesInOverlap: inOverlap, noModel: reason,
+    matches, inlierMask, inliers: 0, inlierRatio: 0, homography: null, overlap: null, rmsError: null, matchesInOverlap: inOverlap, noModel: reason,
   });
   if (matches.count < p.minMatches) return none('too-few-matches');
   const c = correspondencesOf(fa, fb, matches);
@@ -75,6 +77,7 @@ export function estimatePairGeometry(fa: Features, fb: Features, params: Partial
     matches,
     inlierMask: fit.inliers,
     inliers: fit.inlierCount,
+    inlierRatio: fit.inlierCount / matches.count,
     homography: fit.homography,
     overlap: regions.overlap,
     rmsError: fit.rmsError,
