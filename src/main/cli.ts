@@ -3,15 +3,15 @@ import { parseArgs } from 'node:util';
 import { exposureDifference } from '../core/exposure.js';
 import { detectAndDescribe } from '../core/features.js';
 import { estimatePairGeometry } from '../core/pair-geometry.js';
+import { checkCommand, checkUsage } from './check-command.js';
 import { decodeForAnalysis } from './decode.js';
 
 const usage = `Usage:
-  seamscout pair <frameA> <frameB> [--size N]   match two frames and print overlap, inliers and EV difference
+  seamscout check [folder] [options]   check a shot sequence (the demo shoot when no folder is given)
+  seamscout pair <frameA> <frameB>     match two frames and print overlap, inliers and EV difference
+  seamscout help [command]             this text, or a command's options
 
-Options:
-  --size N   longest side of the analysis image in pixels (default 1500)
-  --help     this text
-`;
+${checkUsage}`;
 
 async function pairCommand(args: string[]): Promise<number> {
   const { values, positionals } = parseArgs({ args, allowPositionals: true, options: { size: { type: 'string', default: '1500' } } });
@@ -50,7 +50,8 @@ export async function main(argv: string[]): Promise<number> {
   }
   try {
     if (command === 'pair') return await pairCommand(rest);
-    process.stderr.write(`Expected a command (pair) but received ${command}\n\n${usage}`);
+    if (command === 'check') return await checkCommand(rest);
+    process.stderr.write(`Expected a command (check, pair) but received ${command}\n\n${usage}`);
     return 2;
   } catch (err) {
     process.stderr.write(`seamscout: ${(err as Error).message}\n`);

@@ -1,0 +1,34 @@
+import type { Report } from '../report.js';
+
+/** One CSV field per RFC 4180: quoted when it holds a comma, a quote or a line break. */
+export function csvField(v: unknown): string {
+  const s = v === null || v === undefined ? '' : String(v);
+  return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
+}
+
+export function csvRows(rows: readonly (readonly unknown[])[]): string {
+  return rows.map((r) => r.map(csvField).join(',')).join('\r\n') + '\r\n';
+}
+
+/** One row per pair (RFC 4180, CRLF line ends, header first). */
+export function reportToCsv(report: Report): string {
+  const header = ['a', 'b', 'kind', 'verdict', 'reasons', 'matches', 'inliers', 'matches_in_overlap', 'overlap', 'ev_diff', 'rms_error_px', 'shift_px', 'homography', 'advice'];
+  const rows = report.pairs.map((p) => [
+    p.a, p.b, p.kind, p.verdict, p.reasons.join(' '), p.matches, p.inliers, p.matchesInOverlap,
+    p.overlap === null ? '' : p.overlap.toFixed(4),
+    p.evDiff === null ? '' : p.evDiff.toFixed(3),
+    p.rmsError === null ? '' : p.rmsError.toFixed(3),
+    p.shiftPx === null ? '' : p.shiftPx.toFixed(2),
+    p.homography === null ? '' : p.homography.map((v) => Number(v.toPrecision(10))).join(' '),
+    p.advice.join(' / '),
+  ]);
+  return csvRows([header, ...rows]);
+}
+
+/** Inlier correspondences at full resolution: a, b, xa, ya, xb, yb. */
+export function tiePointsToCsv(sets: readonly { a: string; b: string; points: ArrayLike<number> }[]): string {
+  const rows: unknown[][] = [['a', 'b', 'xa', 'ya', 'xb', 'yb']];
+  for (const s of sets)
+    for (let k = 0; k + 3 < s.points.length; k += 4) rows.push([s.a, s.b, s.points[k].toFixed(2), s.points[k + 1].toFixed(2), s.points[k + 2].toFixed(2), s.points[k + 3].toFixed(2)]);
+  return csvRows(rows);
+}

@@ -1,0 +1,75 @@
+import type { Report } from '../report.js';
+
+const esc = (s: string): string => s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;');
+
+type KeyType = 'string' | 'int' | 'double' | 'boolean';
+interface Key {
+  readonly id: string;
+  readonly for: 'node' | 'edge' | 'graph';
+  readonly name: string;
+  readonly type: KeyType;
+}
+
+const keys: Key[] = [
+  { id: 'g_verdict', for: 'graph', name: 'verdict', type: 'string' },
+  { id: 'g_sweep', for: 'graph', name: 'sweepDeg', type: 'double' },
+  { id: 'n_file', for: 'node', name: 'file', type: 'string' },
+  { id: 'n_station', for: 'node', name: 'station', type: 'int' },
+  { id: 'n_reference', for: 'node', name: 'reference', type: 'boolean' },
+  { id: 'n_width', for: 'node', name: 'width', type: 'int' },
+  { id: 'n_height', for: 'node', name: 'height', type: 'int' },
+  { id: 'n_capture', for: 'node', name: 'captureTime', type: 'string' },
+  { id: 'n_verdict', for: 'node', name: 'verdict', type: 'string' },
+  { id: 'n_flags', for: 'node', name: 'flags', type: 'string' },
+  { id: 'e_kind', for: 'edge', name: 'kind', type: 'string' },
+  { id: 'e_verdict', for: 'edge', name: 'verdict', type: 'string' },
+  { id: 'e_reasons', for: 'edge', name: 'reasons', type: 'string' },
+  { id: 'e_matches', for: 'edge', name: 'matches', type: 'int' },
+  { id: 'e_inliers', for: 'edge', name: 'inliers', type: 'int' },
+  { id: 'e_in_overlap', for: 'edge', name: 'matchesInOverlap', type: 'int' },
+  { id: 'e_overlap', for: 'edge', name: 'overlap', type: 'double' },
+  { id: 'e_ev', for: 'edge', name: 'evDiff', type: 'double' },
+  { id: 'e_rms', for: 'edge', name: 'rmsError', type: 'double' },
+  { id: 'e_shift', for: 'edge', name: 'shiftPx', type: 'double' },
+  { id: 'e_h', for: 'edge', name: 'homography', type: 'string' },
+  { id: 'e_advice', for: 'edge', name: 'advice', type: 'string' },
+];
+
+function data(id: string, v: unknown): string {
+  if (v === null || v === undefined) return '';
+  return `<data key="${id}">${esc(String(v))}</data>`;
+}
+
+/**
+ * The pair graph as GraphML (graphml.graphdrawing.org, the GraphML primer): frames as nodes with
+ * file and station, pairs as undirected edges from a to b, every measure a declared data key; a
+ * missing measure (an unmatched pair) is an absent data element.
+ */
+export function reportToGraphml(report: Report): string {
+  const ids = new Map(report.frames.map((f, i) => [f.file, `f${i}`]));
+  const refs = new Set(report.stations.map((s) => s.reference));
+  const out: string[] = [
+    '<?xml version="1.0" encoding="UTF-8"?>',
+    '<graphml xmlns="http://graphml.graphdrawing.org/xmlns" xmlns:xsi="http://www.w3.org/2001/XMLSchema-instance" xsi:schemaLocation="http://graphml.graphdrawing.org/xmlns http://graphml.graphdrawing.org/xmlns/1.0/graphml.xsd">',
+    ...keys.map((k) => `  <key id="${k.id}" for="${k.for}" attr.name="${k.name}" attr.type="${k.type}"/>`),
+    '  <graph id="sequence" edgedefault="undirected">',
+    `    ${data('g_verdict', report.verdict)}${data('g_sweep', report.sweepDeg)}`,
+  ];
+  for (const f of report.frames) {
+    out.push(
+      `    <node id="${ids.get(f.file)}">${data('n_file', f.file)}${data('n_station', f.station)}${data('n_reference', refs.has(f.file))}` +
+        `${data('n_width', f.width)}${data('n_height', f.height)}${data('n_capture', f.captureTime)}${data('n_verdict', f.verdict)}${data('n_flags', f.flags.join(' ') || null)}</node>`,
+    );
+  }
+  report.pairs.forEach((p, i) => {
+    const s = ids.get(p.a), t = ids.get(p.b);
+    if (!s || !t) return;
+    out.push(
+      `    <edge id="e${i}" source="${s}" target="${t}">${data('e_kind', p.kind)}${data('e_verdict', p.verdict)}${data('e_reasons', p.reasons.join(' ') || null)}` +
+        `${data('e_matches', p.matches)}${data('e_inliers', p.inliers)}${data('e_in_overlap', p.matchesInOverlap)}${data('e_overlap', p.overlap)}${data('e_ev', p.evDiff)}` +
+        `${data('e_rms', p.rmsError)}${data('e_shift', p.shiftPx)}${data('e_h', p.homography ? p.homography.join(' ') : null)}${data('e_advice', p.advice.join(' / ') || null)}</edge>`,
+    );
+  });
+  out.push('  </graph>', '</graphml>', '');
+  return out.join('\n');
+}

@@ -1,0 +1,159 @@
+/**
+ * The one report type: what the command line writes, what the app shows and what every export is
+ * made from. Measurements come from analysis; verdicts, reasons and advice are applied to them by
+ * `judge` (verdicts.ts) against a match budget, so a new budget re-judges without re-analysis.
+ */
+
+export type Verdict = 'ok' | 'weak' | 'reshoot';
+
+/** Flag codes, lower-case-hyphenated words of our own. */
+export type FlagCode =
+  | 'low-overlap'
+  | 'few-inliers'
+  | 'no-match'
+  | 'exposure-jump'
+  | 'settings-drift'
+  | 'blurred'
+  | 'incomplete-bracket'
+  | 'bracket-drift'
+  | 'no-closure';
+
+export type SkipCode = 'unreadable' | 'too-large' | 'not-an-image';
+
+export type PairKind = 'neighbour' | 'closure' | 'bracket' | 'other';
+
+/** Camera settings of a frame as read from EXIF (null where absent or implausible). */
+export interface FrameSettings {
+  readonly exposureTime: number | null;
+  readonly fNumber: number | null;
+  readonly iso: number | null;
+  readonly evBias: number | null;
+  readonly focalLength: number | null;
+  readonly focalLength35: number | null;
+  readonly whiteBalance: string | null;
+  readonly make: string | null;
+  readonly model: string | null;
+}
+
+export interface FrameMeasure {
+  /** Base name of the file. */
+  readonly file: string;
+  /** Full resolution after orientation. */
+  readonly width: number;
+  readonly height: number;
+  /** Capture time as local ISO 8601 with milliseconds, or null. */
+  readonly captureTime: string | null;
+  readonly settings: FrameSettings;
+  /** Contrast-independent sharpness (fine over coarse gradient energy); compared within the sequence. */
+  readonly sharpness: number;
+  readonly keypoints: number;
+}
+
+export interface StationMeasure {
+  readonly index: number;
+  readonly frames: readonly string[];
+  readonly reference: string;
+  /** Each frame's exposure offset against the reference in EV (from EXIF), null where unknown. */
+  readonly evOffsets: readonly (number | null)[];
+  /** How the frames were grouped: from EXIF, from content, or a single frame. */
+  readonly groupedBy: 'exif' | 'content' | 'single';
+}
+
+export interface PairMeasure {
+  readonly a: string;
+  readonly b: string;
+  readonly kind: PairKind;
+  readonly matches: number;
+  readonly inliers: number;
+  /** Tentative matches inside the overlap (n_f of Brown & Lowe's verification). */
+  readonly matchesInOverlap: number;
+  /** 0..1, null when unmatched. */
+  readonly overlap: number | null;
+  /** Row-major, full-resolution pixel (x, y) of a to b, pixel centres at integers; null when unmatched. */
+  readonly homography: readonly number[] | null;
+  /** b minus a in EV over the overlap, in linear light; null when unmatched or unmeasurable. */
+  readonly evDiff: number | null;
+  /** Root-mean-square transfer error of the inliers at full resolution, px. */
+  readonly rmsError: number | null;
+  /** Largest displacement of a frame corner under the homography, full-resolution px (bracket pairs). */
+  readonly shiftPx: number | null;
+}
+
+export interface SkippedFile {
+  readonly file: string;
+  readonly code: SkipCode;
+  readonly reason: string;
+}
+
+/** Everything analysis produces, before judging. */
+export interface Analysis {
+  readonly folder: string;
+  readonly frames: readonly FrameMeasure[];
+  readonly stations: readonly StationMeasure[];
+  readonly pairs: readonly PairMeasure[];
+  readonly skipped: readonly SkippedFile[];
+  /** Sweep in degrees estimated from the neighbour chain (needs a focal length), or null. */
+  readonly sweepDeg: number | null;
+}
+
+export interface Finding {
+  readonly verdict: Verdict;
+  readonly reasons: readonly FlagCode[];
+  readonly advice: readonly string[];
+}
+
+export const reportSchema = 'seamscout-report/1';
+
+export interface ReportFrame extends FrameMeasure, Finding {
+  readonly station: number;
+  readonly flags: readonly FlagCode[];
+}
+
+export interface ReportStation extends StationMeasure, Finding {
+  readonly flags: readonly FlagCode[];
+}
+
+export type ReportPair = PairMeasure & Finding;
+
+export interface Report {
+  readonly schema: typeof reportSchema;
+  readonly verdict: Verdict;
+  readonly folder: string;
+  readonly budget: MatchBudget;
+  readonly sweepDeg: number | null;
+  readonly counts: { readonly frames: number; readonly stations: number; readonly ok: number; readonly weak: number; readonly reshoot: number };
+  readonly frames: readonly ReportFrame[];
+  readonly stations: readonly ReportStation[];
+  readonly pairs: readonly ReportPair[];
+  readonly skipped: readonly SkippedFile[];
+}
+
+/** The minimum evidence a pair needs, and the other thresholds verdicts are judged by. */
+export interface MatchBudget {
+  /** Fewest inliers for an ok pair; below it weak, below half of it reshoot. Brown & Lowe's rule applies on top. */
+  readonly minInliers: number;
+  /** Overlap (0..1) under which a neighbour pair must be reshot. */
+  readonly reshootOverlap: number;
+  /** Overlap (0..1) under which a neighbour pair is weak. */
+  readonly weakOverlap: number;
+  /** Largest EV difference between neighbouring reference frames before it counts as an exposure jump. */
+  readonly maxEvDiff: number;
+  /** Sharpness below this share of the sequence's median flags a frame as blurred. */
+  readonly minSharpnessRatio: number;
+  /** Largest shift of a bracket frame against its reference, full-resolution px. */
+  readonly maxBracketShiftPx: number;
+}
+
+/**
+ * Defaults: overlap under 20 % reshoot and under 30 % weak, exposure within 0.5 EV (common practice:
+ * photography guides ask for 30-50 % overlap and locked exposure); inliers at least 20 over Brown &
+ * Lowe's n_i > 8 + 0.3 n_f; blur and bracket shift thresholds of our own, set on rendered sequences.
+ */
+export const defaultBudget: MatchBudget = {
+  minInliers: 20,
+  reshootOverlap: 0.2,
+  weakOverlap: 0.3,
+  maxEvDiff: 0.5,
+  minSharpnessRatio: 0.6,
+  maxBracketShiftPx: 4,
+};

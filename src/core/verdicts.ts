@@ -1,0 +1,224 @@
+import type { Analysis, FlagCode, Finding, FrameSettings, MatchBudget, PairMeasure, Report, ReportFrame, ReportPair, ReportStation, StationMeasure, Verdict } from './report.js';
+import { reportSchema } from './report.js';
+import { modalPattern, patternOf } from './stations.js';
+
+const rank: Record<Verdict, number> = { ok: 0, weak: 1, reshoot: 2 };
+export const worst = (...vs: Verdict[]): Verdict => vs.reduce<Verdict>((w, v) => (rank[v] > rank[w] ? v : w), 'ok');
+
+class Findings {
+  verdict: Verdict = 'ok';
+  readonly reasons: FlagCode[] = [];
+  readonly advice: string[] = [];
+  add(code: FlagCode, verdict: Verdict, advice: string): void {
+    if (!this.reasons.includes(code)) this.reasons.push(code);
+    this.advice.push(advice);
+    this.verdict = worst(this.verdict, verdict);
+  }
+  done(): Finding {
+    return { verdict: this.verdict, reasons: [...this.reasons], advice: [...this.advice] };
+  }
+}
+
+const pct = (v: number): string => `${Math.round(100 * v)} %`;
+const signedEv = (v: number): string => `${v >= 0 ? '+' : ''}${v.toFixed(1)} EV`;
+const shutter = (t: number): string => (t >= 0.3 ? `${Number(t.toPrecision(2))} s` : `1/${Math.round(1 / t)} s`);
+
+function median(xs: number[]): number {
+  if (xs.length === 0) return NaN;
+  const s = [...xs].sort((a, b) => a - b);
+  const m = s.length >> 1;
+  return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
+}
+
+function mode<T>(xs: T[]): T | null {
+  const counts = new Map<T, number>();
+  for (const x of xs) counts.set(x, (counts.get(x) ?? 0) + 1);
+  let best: T | null = null, n = 0;
+  for (const [x, c] of counts) if (c > n) [best, n] = [x, c];
+  return best;
+}
+
+/** Judges a pair between stations (neighbour or closure) against the budget. */
+function judgeStationPair(p: PairMeasure, budget: MatchBudget, sweepDeg: number | null): Finding {
+  const f = new Findings();
+  const between = `${p.a} and ${p.b}`;
+  if (p.homography === null) {
+    if (p.kind === 'closure') f.add('no-closure', sweepDeg !== null && sweepDeg >= 330 ? 'reshoot' : 'weak', `the turn does not close between ${between}: add a frame between them`);
+    else f.add('no-match', 'reshoot', `no reliable match between ${between}: add a frame between them, or aim the overlap at more detail`);
+    return f.done();
+  }
+  const overlap = p.overlap ?? 0;
+  if (overlap < budget.reshootOverlap) f.add('low-overlap', 'reshoot', `overlap is only ${pct(overlap)} between ${between}: add a frame between them`);
+  else if (overlap < budget.weakOverlap) f.add('low-overlap', 'weak', `overlap is ${pct(overlap)} between ${between}: aim for 30-50 %, or add a frame between them`);
+  if (p.inliers < budget.minInliers / 2) f.add('few-inliers', 'reshoot', `only ${p.inliers} matching points between ${between}: add a frame between them`);
+  else if (p.inliers < budget.minInliers) f.add('few-inliers', 'weak', `only ${p.inliers} matching points between ${between}: more overlap or more detail in it would help`);
+  if (p.evDiff !== null && Math.abs(p.evDiff) > budget.maxEvDiff) {
+    const v: Verdict = Math.abs(p.evDiff) > 2 * budget.maxEvDiff ? 'reshoot' : 'weak';
+    f.add('exposure-jump', v, `exposure changed by ${signedEv(p.evDiff)} between ${between}: lock exposure and reshoot`);
+  }
+  return f.done();
+}
+
+function settingsDrift(ref: FrameSettings, modal: ModalSettings): string[] {
+  const out: string[] = [];
+  const stops = (a: number, b: number): number => Math.abs(Math.log2(a / b));
+  if (ref.fNumber !== null && modal.fNumber !== null && stops(ref.fNumber * ref.fNumber, modal.fNumber * modal.fNumber) > 0.3) out.push(`aperture f/${ref.fNumber} instead of f/${modal.fNumber}`);
+  if (ref.iso !== null && modal.iso !== null && stops(ref.iso, modal.iso) > 0.3) out.push(`ISO ${ref.iso} instead of ${modal.iso}`);
+  if (ref.exposureTime !== null && modal.exposureTime !== null && stops(ref.exposureTime, modal.exposureTime) > 0.3) out.push(`shutter ${shutter(ref.exposureTime)} instead of ${shutter(modal.exposureTime)}`);
+  if (ref.focalLength !== null && modal.focalLength !== null && Math.abs(ref.focalLength - modal.focalLength) > 0.02 * modal.focalLength) out.push(`focal length ${ref.focalLength} mm instead of ${modal.focalLength} mm`);
+  if (ref.whiteBalance !== null && modal.whiteBalance !== null && ref.whiteBalance !== modal.whiteBalance) out.push(`white balance ${ref.whiteBalance} instead of ${modal.whiteBalance}`);
+  return out;
+}
+
+interface ModalSettings {
+  fNumber: number | null;
+  iso: number | null;
+  exposureTime: number | null;
+  focalLength: number | null;
+  whiteBalance: string | null;
+}
+
+/**
+ * Applies the budget to the measurements: verdicts, reason codes and plain advice for every pair,
+ * frame and station, and the overall verdict. Pure: judging again with another budget needs no
+ * re-analysis.
+ */
+export function judge(analysis: Analysis, budget: MatchBudget): Report {
+  const frameFindings = new Map(analysis.frames.map((f) => [f.file, new Findings()]));
+  const stationOf = new Map<string, StationMeasure>();
+  for (const s of analysis.stations) for (const file of s.frames) stationOf.set(file, s);
+  const settingsOf = new Map(analysis.frames.map((f) => [f.file, f.settings]));
+  const stationFindings = analysis.stations.map(() => new Findings());
+
+  // Brackets: incomplete stations.
+  const patterns = analysis.stations.map((s) => patternOf(s.evOffsets));
+  const modal = modalPattern(patterns);
+  const modalSize = modal ? modal.split(',').length : 1;
+  if (modal && modalSize > 1) {
+    analysis.stations.forEach((s, i) => {
+      if (patterns[i] === modal) return;
+      const want = modal.split(',');
+      const have = patterns[i].split(',');
+      const missing = want.filter((o) => {
+        const k = have.indexOf(o);
+        if (k < 0) return true;
+        have.splice(k, 1);
+        return false;
+      });
+      const missingText = missing.length ? ` (missing ${missing.map((o) => signedEv(Number(o))).join(', ')})` : '';
+      const advice = `station ${s.index + 1} has ${s.frames.length} of ${modalSize} bracket frames${missingText}: reshoot the station`;
+      stationFindings[i].add('incomplete-bracket', 'reshoot', advice);
+      for (const file of s.frames) frameFindings.get(file)?.add('incomplete-bracket', 'reshoot', advice);
+    });
+  }
+
+  // Blur: against the sequence's own typical sharpness, among frames of the same bracket offset.
+  const offsetOf = new Map<string, string>();
+  for (const s of analysis.stations) s.frames.forEach((file, k) => offsetOf.set(file, s.evOffsets[k] === null ? 'x' : (Math.round((s.evOffsets[k] as number) * 3) / 3).toFixed(2)));
+  const all = analysis.frames.map((f) => f.sharpness).filter((v) => v > 0);
+  for (const f of analysis.frames) {
+    const peers = analysis.frames.filter((g) => offsetOf.get(g.file) === offsetOf.get(f.file) && g.sharpness > 0).map((g) => g.sharpness);
+    const typical = peers.length >= 3 ? median(peers) : median(all);
+    if (Number.isFinite(typical) && f.sharpness < budget.minSharpnessRatio * typical) {
+      frameFindings.get(f.file)?.add('blurred', 'reshoot', `${f.file} looks blurred (sharpness ${pct(f.sharpness / typical)} of the sequence's typical): reshoot it with a faster shutter or steadier support`);
+    }
+  }
+
+  // Settings that photographers lock, compared between stations' reference frames (common practice).
+  const refs = analysis.stations.map((s) => settingsOf.get(s.reference)).filter((s): s is FrameSettings => !!s);
+  if (refs.length >= 3) {
+    const modalSettings: ModalSettings = {
+      fNumber: mode(refs.map((s) => s.fNumber).filter((v): v is number => v !== null)),
+      iso: mode(refs.map((s) => s.iso).filter((v): v is number => v !== null)),
+      exposureTime: mode(refs.map((s) => s.exposureTime).filter((v): v is number => v !== null)),
+      focalLength: mode(refs.map((s) => s.focalLength).filter((v): v is number => v !== null)),
+      whiteBalance: mode(refs.map((s) => s.whiteBalance).filter((v): v is string => v !== null)),
+    };
+    analysis.stations.forEach((s, i) => {
+      const ref = settingsOf.get(s.reference);
+      if (!ref) return;
+      const drift = settingsDrift(ref, modalSettings);
+      if (drift.length === 0) return;
+      const advice = `${drift.join(', ')} at ${s.reference} (station ${s.index + 1}): lock these settings for the whole sequence`;
+      stationFindings[i].add('settings-drift', 'weak', advice);
+      for (const file of s.frames) frameFindings.get(file)?.add('settings-drift', 'weak', advice);
+    });
+  }
+
+  // Pairs.
+  const pairs: ReportPair[] = analysis.pairs.map((p) => {
+    if (p.kind === 'neighbour' || p.kind === 'closure') return { ...p, ...judgeStationPair(p, budget, analysis.sweepDeg) };
+    if (p.kind === 'bracket') {
+      const f = new Findings();
+      if (p.homography === null) {
+        f.add('bracket-drift', 'weak', `${p.b} could not be aligned with its reference ${p.a}: check it for movement`);
+      } else if (p.shiftPx !== null && p.shiftPx > budget.maxBracketShiftPx) {
+        const v: Verdict = p.shiftPx > 2 * budget.maxBracketShiftPx ? 'reshoot' : 'weak';
+        f.add('bracket-drift', v, `${p.b} moved ${Math.round(p.shiftPx)} px against its reference ${p.a}: the bracket will ghost when merged; reshoot it from a steady support`);
+      }
+      const found = f.done();
+      for (const code of found.reasons) frameFindings.get(p.b)?.add(code, found.verdict, found.advice[0]);
+      if (found.reasons.length) {
+        const st = stationOf.get(p.b);
+        if (st) stationFindings[analysis.stations.indexOf(st)].add('bracket-drift', found.verdict, found.advice[0]);
+      }
+      return { ...p, ...found };
+    }
+    return { ...p, verdict: 'ok', reasons: [], advice: [] };
+  });
+
+  const frames: ReportFrame[] = analysis.frames.map((f) => {
+    const found = frameFindings.get(f.file)!.done();
+    return { ...f, station: stationOf.get(f.file)?.index ?? -1, flags: found.reasons, ...found };
+  });
+  const stations: ReportStation[] = analysis.stations.map((s, i) => {
+    const found = stationFindings[i].done();
+    return { ...s, flags: found.reasons, ...found };
+  });
+  const verdicts = [...pairs.map((p) => p.verdict), ...frames.map((f) => f.verdict), ...stations.map((s) => s.verdict)];
+  const problems = [...pairs.map((p) => p.verdict), ...frames.map((f) => f.verdict)];
+  return {
+    schema: reportSchema,
+    verdict: worst(...verdicts, analysis.skipped.length ? 'weak' : 'ok'),
+    folder: analysis.folder,
+    budget,
+    sweepDeg: analysis.sweepDeg,
+    counts: {
+      frames: frames.length,
+      stations: stations.length,
+      ok: problems.filter((v) => v === 'ok').length,
+      weak: problems.filter((v) => v === 'weak').length,
+      reshoot: problems.filter((v) => v === 'reshoot').length,
+    },
+    frames,
+    stations,
+    pairs,
+    skipped: analysis.skipped,
+  };
+}
+
+/** The measurements a report was judged from, to judge them again against another budget. */
+export function analysisOf(report: Report): Analysis {
+  const strip = <T extends Finding>(x: T): Omit<T, keyof Finding> => {
+    const { verdict: _v, reasons: _r, advice: _a, ...rest } = x;
+    return rest;
+  };
+  return {
+    folder: report.folder,
+    sweepDeg: report.sweepDeg,
+    skipped: report.skipped,
+    frames: report.frames.map((f) => {
+      const { station: _s, flags: _f, ...rest } = strip(f);
+      return rest;
+    }),
+    stations: report.stations.map((s) => {
+      const { flags: _f, ...rest } = strip(s);
+      return rest;
+    }),
+    pairs: report.pairs.map((p) => strip(p)),
+  };
+}
+
+export function rejudge(report: Report, budget: MatchBudget): Report {
+  return judge(analysisOf(report), budget);
+}

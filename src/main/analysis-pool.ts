@@ -1,0 +1,45 @@
+import { availableParallelism } from 'node:os';
+import { Piscina } from 'piscina';
+import type { AnalysisTask } from './analysis-worker.js';
+import runTask from './analysis-worker.js';
+import type { FrameAnalysis, PairAnalysis } from './frame-analysis.js';
+
+export interface AnalysisPool {
+  analyseFrame(path: string, maxSide: number): Promise<FrameAnalysis>;
+  analysePair(a: FrameAnalysis, b: FrameAnalysis): Promise<PairAnalysis>;
+  readonly threads: number;
+  destroy(): Promise<void>;
+}
+
+/**
+ * Runs decoding, detection and matching on worker threads (piscina), one per core by default.
+ * With `threads` 0 the same tasks run in this thread (tests, tiny jobs). Under tsx (a checkout) the
+ * workers load the TypeScript sources through tsx; built, they load the compiled files.
+ */
+export function createAnalysisPool(threads = availableParallelism()): AnalysisPool {
+  if (threads <= 0) {
+    return {
+      threads: 0,
+      analyseFrame: (path, maxSide) => runTask({ kind: 'frame', path, maxSide }) as Promise<FrameAnalysis>,
+      analysePair: (a, b) => runTask({ kind: 'pair', a, b }) as Promise<PairAnalysis>,
+      destroy: async () => {},
+    };
+  }
+  const self = new URL(import.meta.url);
+  const fromSource = self.pathname.endsWith('.ts');
+  const filename = new URL(`./analysis-worker.${fromSource ? 'ts' : 'js'}`, self).href;
+  const pool = new Piscina({
+    filename,
+    minThreads: 1,
+    maxThreads: threads,
+    idleTimeout: 2000,
+    execArgv: fromSource ? ['--import', 'tsx'] : process.execArgv,
+  });
+  const run = <T>(task: AnalysisTask): Promise<T> => pool.run(task) as Promise<T>;
+  return {
+    threads,
+    analyseFrame: (path, maxSide) => run<FrameAnalysis>({ kind: 'frame', path, maxSide }),
+    analysePair: (a, b) => run<PairAnalysis>({ kind: 'pair', a, b }),
+    destroy: () => pool.destroy(),
+  };
+}

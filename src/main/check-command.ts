@@ -1,0 +1,163 @@
+import { stat } from 'node:fs/promises';
+import { resolve } from 'node:path';
+import { parseArgs } from 'node:util';
+import { resolveBudget } from '../core/budget.js';
+import { reportToCsv, tiePointsToCsv } from '../core/exports/csv.js';
+import { reportToDot } from '../core/exports/dot.js';
+import { reportToGraphml } from '../core/exports/graphml.js';
+import type { Report } from '../core/report.js';
+import { judge } from '../core/verdicts.js';
+import { defaultMaxSide, runCheck } from './check.js';
+import { createFeatureCache } from './feature-cache.js';
+import { readSettings } from './settings.js';
+import { progressLine, formatSummary } from './summary.js';
+import { writeFileAtomic } from './write-file.js';
+
+export const checkUsage = `Usage: seamscout check [folder] [options]
+
+Checks a shot sequence: which frames to reshoot and why. Without a folder, checks the demo shoot.
+
+Options:
+  --recursive              look in sub-folders too
+  --all-pairs              match every plausible pair (multi-row or unordered sets)
+  --size N                 longest side of the analysis image in px (default ${defaultMaxSide})
+  --threads N              worker threads (default: one per core; 0 = none)
+  --json FILE              write the report (schema seamscout-report/1)
+  --graphml FILE           write the pair graph as GraphML
+  --csv FILE               write one row per pair (RFC 4180)
+  --dot FILE               write the pair graph in the DOT language
+  --tie-points FILE        write the inlier correspondences (CSV: a,b,xa,ya,xb,yb, full-resolution px)
+  --force                  overwrite existing output files
+  --no-cache               analyse every frame again (the cache lives in the user's cache folder)
+  --settings FILE          settings file (default: the user settings file, if present)
+Match budget (also in the settings file under "budget"):
+  --min-inliers N          fewest inliers for an ok pair (default 20)
+  --reshoot-overlap PCT    reshoot a pair under this overlap, percent (default 20)
+  --weak-overlap PCT       weak under this overlap, percent (default 30)
+  --max-ev EV              largest exposure difference between neighbours (default 0.5)
+  --min-sharpness R        blurred below this share of the typical sharpness (default 0.6)
+  --max-bracket-shift PX   largest bracket frame shift, full-resolution px (default 4)
+
+Exit status: 0 all ok, 1 something flagged, 2 usage error or unreadable folder.
+`;
+
+export interface CheckCommandDeps {
+  /** Folder of the demo shoot, made on first use. */
+  readonly demoFolder?: () => Promise<string>;
+}
+
+const percent = (v: string | undefined): number | undefined => (v === undefined ? undefined : Number(v.replace(/%$/, '')) / 100);
+
+export async function checkCommand(args: string[], deps: CheckCommandDeps = {}): Promise<number> {
+  let parsed;
+  try {
+    parsed = parseArgs({
+      args,
+      allowPositionals: true,
+      options: {
+        recursive: { type: 'boolean' }, 'all-pairs': { type: 'boolean' }, size: { type: 'string' }, threads: { type: 'string' },
+        json: { type: 'string' }, graphml: { type: 'string' }, csv: { type: 'string' }, dot: { type: 'string' }, 'tie-points': { type: 'string' },
+        force: { type: 'boolean' }, 'no-cache': { type: 'boolean' }, settings: { type: 'string' }, 'no-progress': { type: 'boolean' }, help: { type: 'boolean' },
+        'min-inliers': { type: 'string' }, 'reshoot-overlap': { type: 'string' }, 'weak-overlap': { type: 'string' }, 'max-ev': { type: 'string' },
+        'min-sharpness': { type: 'string' }, 'max-bracket-shift': { type: 'string' },
+      },
+    });
+  } catch (err) {
+    process.stderr.write(`${(err as Error).message}\n\n${checkUsage}`);
+    return 2;
+  }
+  const { values: v, positionals } = parsed;
+  if (v.help) {
+    process.stdout.write(checkUsage);
+    return 0;
+  }
+  if (positionals.length > 1) {
+    process.stderr.write(`Expected at most one folder for check but received ${positionals.length}\n\n${checkUsage}`);
+    return 2;
+  }
+  const whole = (name: string, value: string | undefined, min: number): number | undefined => {
+    if (value === undefined) return undefined;
+    const n = Number(value);
+    if (!Number.isInteger(n) || n < min) throw new TypeError(`Expected a whole number of at least ${min} for --${name} but received ${value}`);
+    return n;
+  };
+  let budget, size: number, threads: number | undefined;
+  try {
+    size = whole('size', v.size, 64) ?? defaultMaxSide;
+    threads = whole('threads', v.threads, 0);
+    const settings = await readSettings(v.settings);
+    budget = resolveBudget(settings.budget ?? {}, {
+      minInliers: v['min-inliers'],
+      reshootOverlap: percent(v['reshoot-overlap']),
+      weakOverlap: percent(v['weak-overlap']),
+      maxEvDiff: v['max-ev'],
+      minSharpnessRatio: v['min-sharpness'],
+      maxBracketShiftPx: v['max-bracket-shift'],
+    });
+  } catch (err) {
+    process.stderr.write(`seamscout: ${(err as Error).message}\n`);
+    return 2;
+  }
+
+  let folder: string;
+  if (positionals.length === 1) folder = resolve(positionals[0]);
+  else if (deps.demoFolder) {
+    process.stderr.write('No folder given: checking the demo shoot.\n');
+    folder = await deps.demoFolder();
+  } else {
+    process.stderr.write(`Expected a folder for check but received none\n\n${checkUsage}`);
+    return 2;
+  }
+  try {
+    if (!(await stat(folder)).isDirectory()) throw new Error('not a folder');
+  } catch {
+    process.stderr.write(`seamscout: Expected a readable folder but received ${folder}\n`);
+    return 2;
+  }
+
+  const showProgress = process.stderr.isTTY && !v['no-progress'];
+  let report: Report;
+  let tiePoints;
+  try {
+    const result = await runCheck(folder, {
+      recursive: v.recursive,
+      allPairs: v['all-pairs'],
+      maxSide: size,
+      threads,
+      cache: v['no-cache'] ? null : createFeatureCache(),
+      onProgress: showProgress ? (p) => process.stderr.write(progressLine(p.phase, p.done, p.total)) : undefined,
+    });
+    if (showProgress) process.stderr.write('\r\x1b[K');
+    report = judge(result.analysis, budget);
+    tiePoints = result.tiePoints;
+  } catch (err) {
+    if (showProgress) process.stderr.write('\n');
+    process.stderr.write(`seamscout: ${(err as Error).message}\n`);
+    return 2;
+  }
+  if (report.frames.length === 0 && report.skipped.length === 0) {
+    process.stderr.write(`seamscout: no image files in ${folder}\n`);
+  }
+  process.stdout.write(formatSummary(report));
+
+  const outputs: [string | undefined, () => string][] = [
+    [v.json, () => JSON.stringify(report, null, 2) + '\n'],
+    [v.graphml, () => reportToGraphml(report)],
+    [v.csv, () => reportToCsv(report)],
+    [v.dot, () => reportToDot(report)],
+    [v['tie-points'], () => tiePointsToCsv(tiePoints)],
+  ];
+  let failed = false;
+  for (const [path, make] of outputs) {
+    if (!path) continue;
+    try {
+      await writeFileAtomic(resolve(path), make(), v.force ?? false);
+      process.stderr.write(`wrote ${path}\n`);
+    } catch (err) {
+      process.stderr.write(`seamscout: ${(err as Error).message}\n`);
+      failed = true;
+    }
+  }
+  if (failed) return 2;
+  return report.verdict === 'ok' ? 0 : 1;
+}

@@ -1,0 +1,50 @@
+import { createHash } from 'node:crypto';
+import { mkdir, readFile } from 'node:fs/promises';
+import { join } from 'node:path';
+import { deserialize, serialize } from 'node:v8';
+import { defaultFeatureParams } from '../core/features.js';
+import type { FrameAnalysis } from './frame-analysis.js';
+import type { ScannedFile } from './scan.js';
+import { cacheDir } from './user-dirs.js';
+import { writeFileAtomic } from './write-file.js';
+
+/** Bump when the analysis changes in a way the parameters do not show. */
+const analysisVersion = 1;
+
+export interface FeatureCache {
+  get(file: ScannedFile, maxSide: number): Promise<FrameAnalysis | null>;
+  put(file: ScannedFile, maxSide: number, data: FrameAnalysis): Promise<void>;
+}
+
+/**
+ * Frame analyses kept in the user's cache folder (never beside the photographs), keyed by path,
+ * size, modification time, analysis size and engine parameters, so a re-check after reshooting
+ * analyses only new or changed frames. A damaged entry is a miss.
+ */
+export function createFeatureCache(dir = join(cacheDir(), 'features')): FeatureCache {
+  const params = JSON.stringify(defaultFeatureParams);
+  const keyOf = (f: ScannedFile, maxSide: number): string =>
+    createHash('sha256').update(JSON.stringify([analysisVersion, params, f.path, f.size, f.mtimeMs, maxSide])).digest('hex').slice(0, 40);
+  let made = false;
+  return {
+    async get(file, maxSide) {
+      try {
+        const value = deserialize(await readFile(join(dir, `${keyOf(file, maxSide)}.bin`))) as FrameAnalysis;
+        return value && value.features && value.thumb ? value : null;
+      } catch {
+        return null;
+      }
+    },
+    async put(file, maxSide, data) {
+      try {
+        if (!made) {
+          await mkdir(dir, { recursive: true });
+          made = true;
+        }
+        await writeFileAtomic(join(dir, `${keyOf(file, maxSide)}.bin`), serialize(data), true);
+      } catch {
+        // A cache that cannot be written only costs time.
+      }
+    },
+  };
+}

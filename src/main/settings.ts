@@ -1,0 +1,32 @@
+import { readFile } from 'node:fs/promises';
+import { join } from 'node:path';
+import { configDir } from './user-dirs.js';
+
+/** The settings file: `{ "budget": { "minInliers": 30, ... } }`; more sections may follow. */
+export interface SettingsFile {
+  readonly budget?: Record<string, unknown>;
+}
+
+export const defaultSettingsPath = (): string => join(configDir(), 'settings.json');
+
+/** Reads a settings file; a missing default file is no settings, a broken one an error that says where. */
+export async function readSettings(path: string | undefined): Promise<SettingsFile> {
+  const file = path ?? defaultSettingsPath();
+  let text: string;
+  try {
+    text = await readFile(file, 'utf8');
+  } catch (err) {
+    if (!path && (err as NodeJS.ErrnoException).code === 'ENOENT') return {};
+    throw new Error(`Expected a readable settings file at ${file} but received ${(err as NodeJS.ErrnoException).code ?? 'an error'}`);
+  }
+  let parsed: unknown;
+  try {
+    parsed = JSON.parse(text);
+  } catch (err) {
+    throw new Error(`Expected JSON in the settings file ${file} but received: ${(err as Error).message}`);
+  }
+  if (typeof parsed !== 'object' || parsed === null || Array.isArray(parsed)) throw new Error(`Expected an object in the settings file ${file}`);
+  const budget = (parsed as SettingsFile).budget;
+  if (budget !== undefined && (typeof budget !== 'object' || budget === null)) throw new Error(`Expected an object for budget in ${file}`);
+  return parsed as SettingsFile;
+}

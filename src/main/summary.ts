@@ -1,0 +1,48 @@
+import type { Report, Verdict } from '../core/report.js';
+
+const word: Record<Verdict, string> = { ok: 'ok', weak: 'WEAK', reshoot: 'RESHOOT' };
+const mark: Record<Verdict, string> = { ok: '  ', weak: '~ ', reshoot: '! ' };
+
+function pad(s: string, n: number): string {
+  return s.length >= n ? s : s + ' '.repeat(n - s.length);
+}
+
+/** The summary a photographer reads in the terminal: pairs in shooting order, then what to reshoot. */
+export function formatSummary(report: Report): string {
+  const out: string[] = [];
+  const sweep = report.sweepDeg === null ? '' : `, sweep about ${Math.round(report.sweepDeg)} deg`;
+  out.push(`Seamscout check of ${report.folder}`);
+  out.push(`${report.counts.frames} frames in ${report.counts.stations} stations${sweep}`);
+  out.push('');
+  const w = Math.max(8, ...report.frames.map((f) => f.file.length));
+  out.push(`  ${pad('pair', 2 * w + 4)}  ${pad('kind', 9)} overlap  inliers  EV      verdict`);
+  for (const p of report.pairs) {
+    const overlap = p.overlap === null ? '   -  ' : `${(100 * p.overlap).toFixed(0).padStart(4)} %`;
+    const ev = p.evDiff === null ? '  -   ' : `${p.evDiff >= 0 ? '+' : ''}${p.evDiff.toFixed(2)}`.padStart(6);
+    out.push(`${mark[p.verdict]}${pad(`${p.a} -> ${p.b}`, 2 * w + 4)}  ${pad(p.kind, 9)} ${overlap}  ${String(p.inliers).padStart(7)}  ${ev}  ${word[p.verdict]}${p.reasons.length ? ` (${p.reasons.join(', ')})` : ''}`);
+  }
+  const flaggedFrames = report.frames.filter((f) => f.verdict !== 'ok');
+  if (flaggedFrames.length) {
+    out.push('', 'Frames:');
+    for (const f of flaggedFrames) out.push(`${mark[f.verdict]}${pad(f.file, w)}  station ${f.station + 1}  ${word[f.verdict]} (${f.flags.join(', ')})`);
+  }
+  if (report.skipped.length) {
+    out.push('', 'Not checked:');
+    for (const s of report.skipped) out.push(`! ${s.file}: ${s.reason}`);
+  }
+  const advice = [...new Set([...report.pairs.flatMap((p) => p.advice), ...report.frames.flatMap((f) => f.advice)])];
+  out.push('');
+  if (report.verdict === 'ok') out.push('Verdict: ok. Every pair and frame is within the match budget.');
+  else {
+    out.push(`Verdict: ${word[report.verdict]}. ${report.counts.reshoot} to reshoot, ${report.counts.weak} weak.`);
+    if (advice.length) out.push('', 'What to do:', ...advice.map((a) => `  - ${a}`));
+  }
+  return out.join('\n') + '\n';
+}
+
+/** A one-line progress bar for a terminal. */
+export function progressLine(label: string, done: number, total: number, width = 30): string {
+  const f = total > 0 ? done / total : 0;
+  const n = Math.round(f * width);
+  return `\r${label.padEnd(7)} [${'#'.repeat(n)}${'.'.repeat(width - n)}] ${done}/${total}`;
+}
