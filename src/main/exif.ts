@@ -49,7 +49,7 @@ export function parseExifDate(value: unknown, subSec: unknown): { ms: number; is
 
 /** Reads the EXIF a check needs; a file without EXIF, or with absurd values, gives nulls, never an error. */
 export async function readFrameExif(path: string): Promise<FrameExif> {
-  let raw: Record<string, unknown> = {};
+  let raw: Record<string, unknown>;
   try {
     raw = (await exifr.parse(path, { pick: tags, reviveValues: false, translateValues: false })) ?? {};
   } catch {

@@ -17,13 +17,13 @@ export async function readSettings(path: string | undefined): Promise<SettingsFi
     text = await readFile(file, 'utf8');
   } catch (err) {
     if (!path && (err as NodeJS.ErrnoException).code === 'ENOENT') return {};
-    throw new Error(`Expected a readable settings file at ${file} but received ${(err as NodeJS.ErrnoException).code ?? 'an error'}`);
+    throw new Error(`Expected a readable settings file at ${file} but received ${(err as NodeJS.ErrnoException).code ?? 'an error'}`, { cause: err });
   }
   let parsed: unknown;
   try {
     parsed = JSON.parse(text);
   } catch (err) {
-    throw new Error(`Expected JSON in the settings file ${file} but received: ${(err as Error).message}`);
+    throw new Error(`Expected JSON in the settings file ${file} but received: ${(err as Error).message}`, { cause: err });
   }
   if (typeof parsed !== 'object' || parsed === null || Array.isArray(parsed)) throw new Error(`Expected an object in the settings file ${file}`);
   const budget = (parsed as SettingsFile).budget;

@@ -25,7 +25,7 @@ export async function writeFileAtomic(target: string, content: string | Uint8Arr
   } catch (err) {
     await unlink(tmp).catch(() => {});
     if ((err as NodeJS.ErrnoException).code === 'EEXIST') {
-      throw new Error(`Expected a new file for ${target} but it exists (use --force to overwrite)`);
+      throw new Error(`Expected a new file for ${target} but it exists (use --force to overwrite)`, { cause: err });
     }
     throw err;
   }
