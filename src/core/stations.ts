@@ -57,17 +57,10 @@ export function groupStations(frames: readonly StationInput[], contentLinks: rea
   let groups: number[][] = [];
   let groupedBy: StationGroup['groupedBy'] = 'exif';
   if (source !== null) {
-    let current: number[] = [0];
-    for (let i = 1; i < n; i++) {
-      const k = keys[i];
-      const repeats = k === null || current.some((j) => keys[j] !== null && Math.abs((keys[j] as number) - k) < sameExposure);
-      if (repeats) {
-        groups.push(current);
-        current = [i];
-      } else current.push(i);
-    }
-    groups.push(current);
-    groups = splitByTime(groups, frames);
+    // First pass: split where a bracket exposure repeats, to learn the gaps inside brackets.
+    const byRepeat = splitOnRepeat([...frames.keys()], keys);
+    // Then split at long pauses first and on repeats inside each stretch between pauses.
+    groups = splitByTime([[...frames.keys()]], frames, innerGaps(byRepeat, frames)).flatMap((run) => splitOnRepeat(run, keys));
   } else if (contentLinks) {
     groupedBy = 'content';
     let current: number[] = [0];
@@ -90,14 +83,36 @@ export function groupStations(frames: readonly StationInput[], contentLinks: rea
   });
 }
 
-/** Splits groups where the time between two members is far longer than the sequence's bracket gaps. */
-function splitByTime(groups: number[][], frames: readonly StationInput[]): number[][] {
-  const inner: number[] = [];
+/** Splits a run of frames wherever a bracket exposure repeats one already in the current station. */
+function splitOnRepeat(run: number[], keys: (number | null)[]): number[][] {
+  const out: number[][] = [];
+  let current: number[] = [];
+  for (const i of run) {
+    const k = keys[i];
+    const repeats = current.length > 0 && (k === null || current.some((j) => keys[j] !== null && Math.abs((keys[j] as number) - k) < sameExposure));
+    if (repeats) {
+      out.push(current);
+      current = [];
+    }
+    current.push(i);
+  }
+  if (current.length) out.push(current);
+  return out;
+}
+
+/** Time gaps between consecutive members of the groups, in ms, where both times are known. */
+function innerGaps(groups: number[][], frames: readonly StationInput[]): number[] {
+  const gaps: number[] = [];
   for (const g of groups)
     for (let k = 1; k < g.length; k++) {
       const a = frames[g[k - 1]].captureMs, b = frames[g[k]].captureMs;
-      if (a !== null && b !== null) inner.push(Math.abs(b - a));
+      if (a !== null && b !== null) gaps.push(Math.abs(b - a));
     }
+  return gaps;
+}
+
+/** Splits groups where the time between two members is far longer than the typical bracket gap. */
+function splitByTime(groups: number[][], frames: readonly StationInput[], inner: number[]): number[][] {
   if (inner.length === 0) return groups;
   const typical = median(inner);
   const limit = Math.max(3 * typical, typical + 1000);

@@ -1,0 +1,119 @@
+// Exports of the report: GraphML parsed back with a general XML parser and checked against the
+// GraphML structure (GraphML primer, graphml.graphdrawing.org: keys declared with id, for,
+// attr.name and attr.type; data elements refer to declared keys for their element kind; edges
+// refer to nodes); CSV parsed back per RFC 4180 (csv-parse); DOT against the DOT grammar's basics
+// (Graphviz documentation).
+import { parse as parseCsv } from 'csv-parse/sync';
+import { XMLParser } from 'fast-xml-parser';
+import { describe, expect, it } from 'vitest';
+import { reportToCsv, tiePointsToCsv } from '../src/core/exports/csv.js';
+import { reportToDot } from '../src/core/exports/dot.js';
+import { reportToGraphml } from '../src/core/exports/graphml.js';
+import type { Analysis } from '../src/core/report.js';
+import { defaultBudget } from '../src/core/report.js';
+import { judge } from '../src/core/verdicts.js';
+
+const settings = { exposureTime: 0.004, fNumber: 8, iso: 100, evBias: 0, focalLength: 35, focalLength35: 35, whiteBalance: null, make: null, model: null };
+const analysis: Analysis = {
+  folder: '/card',
+  frames: ['A, "first".jpg', 'B <2>.jpg', 'C & D.jpg'].map((file) => ({ file, width: 3000, height: 2000, captureTime: '2026-06-01T05:00:00.000', settings, sharpness: 2, keypoints: 1500 })),
+  stations: ['A, "first".jpg', 'B <2>.jpg', 'C & D.jpg'].map((file, index) => ({ index, frames: [file], reference: file, evOffsets: [0], groupedBy: 'single' as const })),
+  pairs: [
+    { a: 'A, "first".jpg', b: 'B <2>.jpg', kind: 'neighbour', matches: 320, inliers: 250, matchesInOverlap: 300, overlap: 0.44, homography: [0.9, 0.01, 1700, -0.01, 1, 3, -1e-5, 0, 1], evDiff: 0.1, rmsError: 0.9, shiftPx: null },
+    { a: 'B <2>.jpg', b: 'C & D.jpg', kind: 'neighbour', matches: 12, inliers: 0, matchesInOverlap: 0, overlap: null, homography: null, evDiff: null, rmsError: null, shiftPx: null },
+  ],
+  skipped: [],
+  sweepDeg: null,
+};
+const report = judge(analysis, defaultBudget);
+
+describe('GraphML export', () => {
+  const xml = reportToGraphml(report);
+  const doc = new XMLParser({ ignoreAttributes: false, attributeNamePrefix: '@', isArray: (name) => ['key', 'node', 'edge', 'data'].includes(name) }).parse(xml);
+
+  it('is GraphML: namespace, declared keys, a graph with nodes and edges', () => {
+    const g = doc.graphml;
+    expect(g['@xmlns']).toBe('http://graphml.graphdrawing.org/xmlns');
+    const keys = new Map<string, { for: string; type: string; name: string }>();
+    for (const k of g.key) {
+      expect(['node', 'edge', 'graph', 'all']).toContain(k['@for']);
+      expect(['boolean', 'int', 'long', 'float', 'double', 'string']).toContain(k['@attr.type']);
+      keys.set(k['@id'], { for: k['@for'], type: k['@attr.type'], name: k['@attr.name'] });
+    }
+    const graph = g.graph;
+    expect(graph['@edgedefault']).toBe('undirected');
+    const nodeIds = new Set(graph.node.map((n: { '@id': string }) => n['@id']));
+    expect(nodeIds.size).toBe(3);
+    for (const e of graph.edge) {
+      expect(nodeIds.has(e['@source'])).toBe(true);
+      expect(nodeIds.has(e['@target'])).toBe(true);
+    }
+    const checkData = (el: { data?: { '@key': string; '#text'?: unknown }[] }, kind: string): void => {
+      for (const d of el.data ?? []) {
+        const k = keys.get(d['@key']);
+        expect(k, `undeclared key ${d['@key']}`).toBeDefined();
+        expect([kind, 'all']).toContain(k!.for);
+        if (k!.type === 'int') expect(Number.isInteger(Number(d['#text']))).toBe(true);
+        if (k!.type === 'double') expect(Number.isFinite(Number(d['#text']))).toBe(true);
+      }
+    };
+    graph.node.forEach((n: never) => checkData(n, 'node'));
+    graph.edge.forEach((e: never) => checkData(e, 'edge'));
+  });
+
+  it('carries every measure of a pair, and escapes file names', () => {
+    const graph = doc.graphml.graph;
+    const keyName = new Map(doc.graphml.key.map((k: Record<string, string>) => [k['@id'], k['@attr.name']]));
+    const fields = (el: { data: { '@key': string; '#text': unknown }[] }): Record<string, string> =>
+      Object.fromEntries(el.data.map((d) => [keyName.get(d['@key']), String(d['#text'])]));
+    const files = graph.node.map((n: never) => fields(n).file);
+    expect(files).toEqual(analysis.frames.map((f) => f.file));
+    const e0 = fields(graph.edge[0]);
+    expect(Number(e0.overlap)).toBeCloseTo(0.44, 10);
+    expect(Number(e0.inliers)).toBe(250);
+    expect(e0.homography.split(' ').map(Number)).toEqual(analysis.pairs[0].homography);
+    const e1 = fields(graph.edge[1]);
+    expect(e1.overlap).toBeUndefined();
+    expect(e1.verdict).toBe('reshoot');
+  });
+});
+
+describe('CSV export (RFC 4180)', () => {
+  it('parses back to one row per pair with the report values', () => {
+    const text = reportToCsv(report);
+    expect(text.includes('\r\n')).toBe(true);
+    const rows = parseCsv(text, { columns: true }) as Record<string, string>[];
+    expect(rows).toHaveLength(report.pairs.length);
+    expect(rows[0].a).toBe('A, "first".jpg');
+    expect(Number(rows[0].overlap)).toBeCloseTo(0.44, 4);
+    expect(rows[0].homography.split(' ').map(Number)).toEqual(analysis.pairs[0].homography);
+    expect(rows[1].overlap).toBe('');
+    expect(rows[1].verdict).toBe('reshoot');
+    expect(rows[1].reasons).toBe('no-match');
+  });
+
+  it('writes tie points as a, b, xa, ya, xb, yb', () => {
+    const rows = parseCsv(tiePointsToCsv([{ a: 'x.jpg', b: 'y.jpg', points: [1, 2, 3, 4, 5.5, 6, 7, 8] }]), { columns: true }) as Record<string, string>[];
+    expect(rows).toEqual([
+      { a: 'x.jpg', b: 'y.jpg', xa: '1.00', ya: '2.00', xb: '3.00', yb: '4.00' },
+      { a: 'x.jpg', b: 'y.jpg', xa: '5.50', ya: '6.00', xb: '7.00', yb: '8.00' },
+    ]);
+  });
+});
+
+describe('DOT export', () => {
+  it('is one undirected graph with an edge per pair and the verdict in words', () => {
+    const dot = reportToDot(report);
+    expect(dot.startsWith('graph sequence {')).toBe(true);
+    expect((dot.match(/ -- /g) ?? []).length).toBe(report.pairs.length);
+    expect(dot).toContain('"A, \\"first\\".jpg" -- "B <2>.jpg"');
+    expect(dot).toMatch(/reshoot: no-match/);
+    let depth = 0;
+    for (const ch of dot.replace(/"(?:[^"\\]|\\.)*"/g, '')) {
+      if (ch === '{') depth++;
+      if (ch === '}') depth--;
+      expect(depth).toBeGreaterThanOrEqual(0);
+    }
+    expect(depth).toBe(0);
+  });
+});

@@ -1,0 +1,30 @@
+import { spawn } from 'node:child_process';
+import { mkdtempSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+
+export const projectRoot = fileURLToPath(new URL('../..', import.meta.url));
+
+/** A fresh temporary folder. */
+export const tempDir = (prefix = 'seamscout-test-'): string => mkdtempSync(join(tmpdir(), prefix));
+
+/**
+ * Runs the command line as a user would (node with tsx on the sources), with its cache and settings
+ * folders moved to temporary ones so tests never touch the user's.
+ */
+export function runCli(args: string[], env: Record<string, string> = {}): Promise<{ code: number; stdout: string; stderr: string }> {
+  const home = tempDir('seamscout-home-');
+  return new Promise((resolve, reject) => {
+    const child = spawn(process.execPath, ['--import', 'tsx', join(projectRoot, 'src/main/cli.ts'), ...args], {
+      cwd: projectRoot,
+      env: { ...process.env, SEAMSCOUT_CACHE_DIR: join(home, 'cache'), SEAMSCOUT_CONFIG_DIR: join(home, 'config'), ...env },
+      stdio: ['ignore', 'pipe', 'pipe'],
+    });
+    let stdout = '', stderr = '';
+    child.stdout.on('data', (d) => (stdout += d));
+    child.stderr.on('data', (d) => (stderr += d));
+    child.on('error', reject);
+    child.on('close', (code) => resolve({ code: code ?? -1, stdout, stderr }));
+  });
+}
