@@ -13,7 +13,7 @@ const nodeBuiltins = [...builtinModules, ...builtinModules.map((m) => `node:${m}
 
 const layers = {
   core: ['src/core/**/*.ts'],
-  main: ['src/main/**/*.ts'],
+  main: ['src/main/**/*.ts', 'src/main/**/*.cts'],
   renderer: ['src/renderer/**/*.ts'],
   tests: ['test/**/*.ts', 'bench/**/*.ts'],
   tooling: ['*.config.js', '*.config.ts', 'bin/**/*.js', '.ci/**/*.js'],
@@ -76,7 +76,7 @@ export default tseslint.config(
     languageOptions: { globals: { ...globals.node } },
   },
   {
-    files: ['**/*.ts', '**/*.js'],
+    files: ['**/*.ts', '**/*.cts', '**/*.js'],
     ignores: Object.values(layers).flat(),
     plugins: { layering },
     rules: { 'layering/unclassified': 'error' },

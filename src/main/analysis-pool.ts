@@ -5,8 +5,8 @@ import runTask from './analysis-worker.js';
 import type { FrameAnalysis, PairAnalysis } from './frame-analysis.js';
 
 export interface AnalysisPool {
-  analyseFrame(path: string, maxSide: number): Promise<FrameAnalysis>;
-  analysePair(a: FrameAnalysis, b: FrameAnalysis): Promise<PairAnalysis>;
+  analyseFrame(path: string, maxSide: number, signal?: AbortSignal): Promise<FrameAnalysis>;
+  analysePair(a: FrameAnalysis, b: FrameAnalysis, signal?: AbortSignal): Promise<PairAnalysis>;
   readonly threads: number;
   destroy(): Promise<void>;
 }
@@ -35,11 +35,12 @@ export function createAnalysisPool(threads = availableParallelism()): AnalysisPo
     idleTimeout: 2000,
     execArgv: fromSource ? ['--import', 'tsx'] : process.execArgv,
   });
-  const run = <T>(task: AnalysisTask): Promise<T> => pool.run(task) as Promise<T>;
+  // An aborted task ends its worker thread (piscina replaces it), so a cancel does not wait for it.
+  const run = <T>(task: AnalysisTask, signal?: AbortSignal): Promise<T> => pool.run(task, { signal }) as Promise<T>;
   return {
     threads,
-    analyseFrame: (path, maxSide) => run<FrameAnalysis>({ kind: 'frame', path, maxSide }),
-    analysePair: (a, b) => run<PairAnalysis>({ kind: 'pair', a, b }),
+    analyseFrame: (path, maxSide, signal) => run<FrameAnalysis>({ kind: 'frame', path, maxSide }, signal),
+    analysePair: (a, b, signal) => run<PairAnalysis>({ kind: 'pair', a, b }, signal),
     destroy: () => pool.destroy(),
   };
 }

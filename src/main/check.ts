@@ -1,3 +1,4 @@
+import { sampleFeatures, screenPairs } from '../core/candidate-pairs.js';
 import { invert, multiply, normalise, project } from '../core/homography.js';
 import { shootingOrder } from '../core/natural-order.js';
 import type { Analysis, FrameMeasure, PairKind, PairMeasure, SkipCode, SkippedFile, StationMeasure } from '../core/report.js';
@@ -119,7 +120,7 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
       try {
         let data = (await options.cache?.get(o.scanned, maxSide)) ?? null;
         if (!data) {
-          data = await pool.analyseFrame(o.scanned.path, maxSide);
+          data = await pool.analyseFrame(o.scanned.path, maxSide, options.signal);
           await options.cache?.put(o.scanned, maxSide, data);
         }
         return { file: o.scanned, exif: o.exif, data } as LoadedFrame;
@@ -140,7 +141,7 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
       const todo = pairs.filter(([i, j]) => !pairResults.has(`${i}:${j}`));
       pairsTotal += todo.length;
       await inOrder(todo, Math.max(2, pool.threads), async ([i, j]) => {
-        pairResults.set(`${i}:${j}`, await pool.analysePair(frames[i].data, frames[j].data));
+        pairResults.set(`${i}:${j}`, await pool.analysePair(frames[i].data, frames[j].data, options.signal));
         options.onProgress?.({ phase: 'pairs', done: ++pairsDone, total: pairsTotal, file: frames[j].file.name });
       }, options.signal);
     };
@@ -164,10 +165,14 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
     for (const g of groups) for (const m of g.members) if (m !== g.reference) planned.push({ i: g.reference, j: m, kind: 'bracket' });
     for (let s = 0; s + 1 < groups.length; s++) planned.push({ i: groups[s].reference, j: groups[s + 1].reference, kind: 'neighbour' });
     if (options.allPairs) {
+      // Every other pair of reference frames, screened cheaply on a sample of keypoints first.
       const refs = groups.map((g) => g.reference);
       const done = new Set(planned.map((p) => `${p.i}:${p.j}`));
+      const samples = frames.map((f) => sampleFeatures(f.data.features));
+      const others: [number, number][] = [];
       for (let x = 0; x < refs.length; x++)
-        for (let y = x + 2; y < refs.length; y++) if (!done.has(`${refs[x]}:${refs[y]}`)) planned.push({ i: refs[x], j: refs[y], kind: 'other' });
+        for (let y = x + 2; y < refs.length; y++) if (!done.has(`${refs[x]}:${refs[y]}`)) others.push([refs[x], refs[y]]);
+      for (const [i, j] of screenPairs(samples, others)) planned.push({ i, j, kind: 'other' });
     }
     await analyse(planned.map((p) => [p.i, p.j]));
 

@@ -1,0 +1,70 @@
+// The one contract between the page (src/renderer) and the Node side (src/main). The page imports
+// these types only; the preload bridge (Electron) or the browser host's client implements them.
+import type { MatchBudget, Report } from '../core/report.js';
+
+/** Progress of a running check, as it streams. */
+export interface CheckProgressEvent {
+  readonly checkId: number;
+  readonly phase: 'frames' | 'pairs';
+  readonly done: number;
+  readonly total: number;
+  readonly file?: string;
+  /** Estimated seconds left, or null while unknown. */
+  readonly secondsLeft: number | null;
+}
+
+/** A finished (or failed, or cancelled) check. */
+export interface CheckDoneEvent {
+  readonly checkId: number;
+  readonly report: Report | null;
+  readonly error: string | null;
+  readonly cancelled: boolean;
+}
+
+export type ExportFormat = 'json' | 'graphml' | 'csv' | 'dot';
+
+export interface HostInfo {
+  /** 'desktop' inside the Electron window, 'browser' from the local browser host. */
+  readonly shell: 'desktop' | 'browser';
+  readonly version: string;
+  /** What to open first: the folder given on the command line, the demo shoot, or nothing (start screen). */
+  readonly initialTarget?: { folder: string } | { demo: true } | null;
+}
+
+export interface SeamscoutApi {
+  hostInfo(): Promise<HostInfo>;
+  /** Native folder dialog (desktop); null when cancelled or where there is none. */
+  chooseFolder(): Promise<string | null>;
+  recentFolders(): Promise<string[]>;
+  /** Starts a check of a folder (absolute path) or of the demo shoot; returns its id. */
+  startCheck(target: { folder: string } | { demo: true }): Promise<number>;
+  cancelCheck(checkId: number): Promise<void>;
+  /** The budget stored between runs. */
+  loadBudget(): Promise<MatchBudget>;
+  saveBudget(budget: MatchBudget): Promise<MatchBudget>;
+  /** Writes an export of the report; asks where (desktop: save dialog; browser: a download). Returns the path or name written, or null when cancelled. */
+  exportReport(checkId: number, format: ExportFormat, budget: MatchBudget): Promise<string | null>;
+  /** Inlier correspondences of a pair of the check, full-resolution px: xa, ya, xb, yb per point. */
+  tiePoints(checkId: number, a: string, b: string): Promise<number[]>;
+  /** URL of a frame of the opened folder at display size; only files of the current check resolve. */
+  frameUrl(checkId: number, file: string, maxSide: number): string;
+  onProgress(listener: (e: CheckProgressEvent) => void): () => void;
+  onDone(listener: (e: CheckDoneEvent) => void): () => void;
+}
+
+/** Channel names of the desktop bridge, all under our own prefix. */
+export const channels = {
+  hostInfo: 'seamscout:host-info',
+  chooseFolder: 'seamscout:choose-folder',
+  recentFolders: 'seamscout:recent-folders',
+  startCheck: 'seamscout:start-check',
+  cancelCheck: 'seamscout:cancel-check',
+  loadBudget: 'seamscout:load-budget',
+  saveBudget: 'seamscout:save-budget',
+  exportReport: 'seamscout:export-report',
+  tiePoints: 'seamscout:tie-points',
+  progress: 'seamscout:on-progress',
+  done: 'seamscout:on-done',
+} as const;
+
+export const frameProtocol = 'seamscout-frame';

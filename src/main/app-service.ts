@@ -1,0 +1,164 @@
+import { realpath } from 'node:fs/promises';
+import { isAbsolute, relative, resolve, sep } from 'node:path';
+import sharp from 'sharp';
+import { reportToCsv } from '../core/exports/csv.js';
+import { reportToDot } from '../core/exports/dot.js';
+import { reportToGraphml } from '../core/exports/graphml.js';
+import type { MatchBudget, Report } from '../core/report.js';
+import { judge, rejudge } from '../core/verdicts.js';
+import type { AnalysisPool } from './analysis-pool.js';
+import { createAnalysisPool } from './analysis-pool.js';
+import type { CheckDoneEvent, CheckProgressEvent, ExportFormat } from './app-api.js';
+import { loadStoredBudget } from './budget-store.js';
+import type { TiePointSet } from './check.js';
+import { runCheck } from './check.js';
+import { pixelLimit } from './decode.js';
+import { createFeatureCache } from './feature-cache.js';
+import { rememberFolder } from './recent-folders.js';
+
+interface CheckState {
+  readonly id: number;
+  readonly folder: string;
+  readonly controller: AbortController;
+  report: Report | null;
+  tiePoints: readonly TiePointSet[];
+  /** Real path of the folder, for containment checks. */
+  realFolder: string | null;
+}
+
+export interface AppServiceOptions {
+  /** Makes (once) and returns the demo shoot's folder. */
+  readonly demoFolder: () => Promise<string>;
+  readonly threads?: number;
+  readonly onProgress: (e: CheckProgressEvent) => void;
+  readonly onDone: (e: CheckDoneEvent) => void;
+}
+
+/** Text of an export of a report, and the file name to suggest for it. */
+export function exportContent(report: Report, format: ExportFormat): { text: string; name: string } {
+  switch (format) {
+    case 'json':
+      return { text: JSON.stringify(report, null, 2) + '\n', name: 'seamscout-report.json' };
+    case 'graphml':
+      return { text: reportToGraphml(report), name: 'seamscout-pairs.graphml' };
+    case 'csv':
+      return { text: reportToCsv(report), name: 'seamscout-pairs.csv' };
+    case 'dot':
+      return { text: reportToDot(report), name: 'seamscout-pairs.dot' };
+  }
+}
+
+/**
+ * What both shells (the desktop window and the browser host) do for the page: run checks in the
+ * worker pool with progress, keep their results, and hand out exports, tie points and frame images
+ * of the opened folder only.
+ */
+export class AppService {
+  private readonly checks = new Map<number, CheckState>();
+  private nextId = 1;
+  private pool: AnalysisPool | null = null;
+  private readonly frameCache = new Map<string, Buffer>();
+
+  constructor(private readonly options: AppServiceOptions) {}
+
+  private getPool(): AnalysisPool {
+    this.pool ??= createAnalysisPool(this.options.threads);
+    return this.pool;
+  }
+
+  async startCheck(target: { folder: string } | { demo: true }): Promise<number> {
+    const id = this.nextId++;
+    const folder = 'demo' in target ? await this.options.demoFolder() : resolve(target.folder);
+    const state: CheckState = { id, folder, controller: new AbortController(), report: null, tiePoints: [], realFolder: null };
+    // Only the latest check is kept: frames of older ones stop resolving.
+    for (const old of this.checks.values()) old.controller.abort();
+    this.checks.clear();
+    this.checks.set(id, state);
+    void this.run(state, !('demo' in target));
+    return id;
+  }
+
+  private async run(state: CheckState, remember: boolean): Promise<void> {
+    const started = Date.now();
+    try {
+      state.realFolder = await realpath(state.folder);
+      if (remember) await rememberFolder(state.folder);
+      const result = await runCheck(state.folder, {
+        pool: this.getPool(),
+        cache: createFeatureCache(),
+        signal: state.controller.signal,
+        onProgress: (p) => {
+          const elapsed = (Date.now() - started) / 1000;
+          const secondsLeft = p.phase === 'frames' && p.done > 0 ? (elapsed / p.done) * (p.total - p.done) : null;
+          this.options.onProgress({ checkId: state.id, ...p, secondsLeft });
+        },
+      });
+      state.report = judge(result.analysis, await loadStoredBudget());
+      state.tiePoints = result.tiePoints;
+      this.options.onDone({ checkId: state.id, report: state.report, error: null, cancelled: false });
+    } catch (err) {
+      const cancelled = state.controller.signal.aborted;
+      this.options.onDone({ checkId: state.id, report: null, error: cancelled ? null : (err as Error).message, cancelled });
+    }
+  }
+
+  cancelCheck(id: number): void {
+    this.checks.get(id)?.controller.abort();
+  }
+
+  private state(id: number): CheckState {
+    const s = this.checks.get(id);
+    if (!s) throw new Error(`Expected the id of the current check but received ${id}`);
+    return s;
+  }
+
+  /** The report of a finished check, judged against `budget`. */
+  report(id: number, budget?: MatchBudget): Report {
+    const s = this.state(id);
+    if (!s.report) throw new Error(`Expected a finished check but check ${id} is still running`);
+    return budget ? rejudge(s.report, budget) : s.report;
+  }
+
+  exportReport(id: number, format: ExportFormat, budget: MatchBudget): { text: string; name: string } {
+    return exportContent(this.report(id, budget), format);
+  }
+
+  tiePoints(id: number, a: string, b: string): number[] {
+    const s = this.state(id);
+    const set = s.tiePoints.find((t) => t.a === a && t.b === b);
+    return set ? Array.from(set.points) : [];
+  }
+
+  /**
+   * A JPEG of one frame of the check at most `maxSide` px, or null when `file` is not a frame of
+   * that check or resolves outside its folder (a symbolic link leading out, say).
+   */
+  async frameImage(id: number, file: string, maxSide: number): Promise<Buffer | null> {
+    const s = this.checks.get(id);
+    if (!s || !s.report || !s.realFolder) return null;
+    if (!s.report.frames.some((f) => f.file === file)) return null;
+    if (isAbsolute(file) || file.split(/[\\/]/).includes('..')) return null;
+    const side = Math.max(32, Math.min(4096, Math.round(maxSide) || 320));
+    const key = `${id}:${file}:${side}`;
+    const cached = this.frameCache.get(key);
+    if (cached) return cached;
+    let real: string;
+    try {
+      real = await realpath(resolve(s.folder, file));
+    } catch {
+      return null;
+    }
+    const rel = relative(s.realFolder, real);
+    if (rel === '' || rel.startsWith('..' + sep) || rel === '..' || isAbsolute(rel)) return null;
+    const jpeg = await sharp(real, { limitInputPixels: pixelLimit }).autoOrient().resize(side, side, { fit: 'inside' }).jpeg({ quality: 82 }).toBuffer();
+    if (this.frameCache.size > 200) this.frameCache.clear();
+    this.frameCache.set(key, jpeg);
+    return jpeg;
+  }
+
+  async close(): Promise<void> {
+    for (const s of this.checks.values()) s.controller.abort();
+    await this.pool?.destroy();
+    this.pool = null;
+  }
+}

@@ -1,0 +1,104 @@
+// The desktop window (Electron main process). Loaded only by Electron: nothing in the tests or the
+// command line imports this file.
+import { readFile, writeFile } from 'node:fs/promises';
+import { dirname, extname, join, normalize, relative, isAbsolute } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { app, BrowserWindow, dialog, ipcMain, protocol, session } from 'electron';
+import type { IpcMainInvokeEvent } from 'electron';
+import type { MatchBudget } from '../core/report.js';
+import type { ExportFormat } from './app-api.js';
+import { channels, frameProtocol } from './app-api.js';
+import { AppService } from './app-service.js';
+import { loadStoredBudget, storeBudget } from './budget-store.js';
+import { ensureDemoShoot } from './demo-shoot.js';
+import { readRecentFolders } from './recent-folders.js';
+import { appOrigin, appScheme, desktopContentSecurityPolicy, isAllowedNavigation, isTrustedSender, windowOptions } from './window-options.js';
+
+const here = dirname(fileURLToPath(import.meta.url));
+const assets = join(here, '..', 'renderer');
+const types: Record<string, string> = { '.html': 'text/html', '.js': 'text/javascript', '.css': 'text/css', '.svg': 'image/svg+xml', '.png': 'image/png' };
+
+protocol.registerSchemesAsPrivileged([
+  { scheme: appScheme, privileges: { standard: true, secure: true, supportFetchAPI: true } },
+  { scheme: frameProtocol, privileges: { standard: true, secure: true } },
+]);
+
+let win: BrowserWindow | null = null;
+const initial = process.argv.slice(app.isPackaged ? 1 : 2).find((a) => !a.startsWith('-')) ?? null;
+
+const service = new AppService({
+  demoFolder: ensureDemoShoot,
+  onProgress: (e) => win?.webContents.send(channels.progress, e),
+  onDone: (e) => win?.webContents.send(channels.done, e),
+});
+
+function handle(channel: string, fn: (...args: unknown[]) => unknown): void {
+  ipcMain.handle(channel, (event: IpcMainInvokeEvent, ...args: unknown[]) => {
+    if (!isTrustedSender(event.senderFrame?.url)) throw new Error('refused: not our page');
+    return fn(...args);
+  });
+}
+
+app.whenReady().then(async () => {
+  session.defaultSession.setPermissionRequestHandler((_wc, _permission, callback) => callback(false));
+  session.defaultSession.setPermissionCheckHandler(() => false);
+
+  protocol.handle(appScheme, async (request) => {
+    const url = new URL(request.url);
+    if (url.host !== 'app') return new Response('not found', { status: 404 });
+    const path = url.pathname === '/' ? 'index.html' : decodeURIComponent(url.pathname.slice(1));
+    const target = normalize(join(assets, path));
+    const rel = relative(assets, target);
+    if (rel.startsWith('..') || isAbsolute(rel)) return new Response('not found', { status: 404 });
+    try {
+      return new Response(await readFile(target), { headers: { 'Content-Type': types[extname(target)] ?? 'application/octet-stream', 'Content-Security-Policy': desktopContentSecurityPolicy } });
+    } catch {
+      return new Response('not found', { status: 404 });
+    }
+  });
+  protocol.handle(frameProtocol, async (request) => {
+    const url = new URL(request.url);
+    const [, id, ...rest] = url.pathname.split('/');
+    const image = await service.frameImage(Number(id), decodeURIComponent(rest.join('/')), Number(url.searchParams.get('max') ?? 320)).catch(() => null);
+    return image ? new Response(new Uint8Array(image), { headers: { 'Content-Type': 'image/jpeg' } }) : new Response('not found', { status: 404 });
+  });
+
+  handle(channels.hostInfo, () => ({ shell: 'desktop', version: app.getVersion(), initialTarget: initial ? { folder: initial } : { demo: true } }));
+  handle(channels.chooseFolder, async () => {
+    const r = await dialog.showOpenDialog(win!, { properties: ['openDirectory'] });
+    return r.canceled ? null : r.filePaths[0] ?? null;
+  });
+  handle(channels.recentFolders, () => readRecentFolders());
+  handle(channels.startCheck, (target) => {
+    const t = target as { folder?: unknown; demo?: unknown };
+    if (t?.demo === true) return service.startCheck({ demo: true });
+    if (typeof t?.folder === 'string' && isAbsolute(t.folder)) return service.startCheck({ folder: t.folder });
+    throw new TypeError('Expected { folder: <absolute path> } or { demo: true } for startCheck');
+  });
+  handle(channels.cancelCheck, (id) => service.cancelCheck(Number(id)));
+  handle(channels.loadBudget, () => loadStoredBudget());
+  handle(channels.saveBudget, (b) => storeBudget((b ?? {}) as Record<string, unknown>));
+  handle(channels.tiePoints, (id, a, b) => service.tiePoints(Number(id), String(a), String(b)));
+  handle(channels.exportReport, async (id, format, budget) => {
+    if (!['json', 'graphml', 'csv', 'dot'].includes(String(format))) throw new TypeError(`Expected json, graphml, csv or dot for format but received ${String(format)}`);
+    const { text, name } = service.exportReport(Number(id), format as ExportFormat, budget as MatchBudget);
+    // The save dialog asks before replacing an existing file.
+    const r = await dialog.showSaveDialog(win!, { defaultPath: name });
+    if (r.canceled || !r.filePath) return null;
+    await writeFile(r.filePath, text);
+    return r.filePath;
+  });
+
+  win = new BrowserWindow(windowOptions(join(here, 'preload.cjs')));
+  win.webContents.setWindowOpenHandler(() => ({ action: 'deny' }));
+  win.webContents.on('will-navigate', (event, url) => {
+    if (!isAllowedNavigation(url)) event.preventDefault();
+  });
+  win.webContents.on('will-attach-webview', (event) => event.preventDefault());
+  win.once('ready-to-show', () => win?.show());
+  await win.loadURL(`${appOrigin}/index.html`);
+});
+
+app.on('window-all-closed', () => {
+  void service.close().finally(() => app.quit());
+});

@@ -1,0 +1,46 @@
+// The desktop bridge: a sandboxed preload exposing one small object to the page, never ipcRenderer
+// itself. Sandboxed preloads cannot load our own modules, so the channel names are repeated here,
+// checked against the contract's type.
+// A sandboxed preload is CommonJS; this is its import form.
+// eslint-disable-next-line @typescript-eslint/no-require-imports
+import electron = require('electron');
+import type { IpcRendererEvent } from 'electron';
+import type { SeamscoutApi, channels as Channels } from './app-api.js';
+
+const ch: typeof Channels = {
+  hostInfo: 'seamscout:host-info',
+  chooseFolder: 'seamscout:choose-folder',
+  recentFolders: 'seamscout:recent-folders',
+  startCheck: 'seamscout:start-check',
+  cancelCheck: 'seamscout:cancel-check',
+  loadBudget: 'seamscout:load-budget',
+  saveBudget: 'seamscout:save-budget',
+  exportReport: 'seamscout:export-report',
+  tiePoints: 'seamscout:tie-points',
+  progress: 'seamscout:on-progress',
+  done: 'seamscout:on-done',
+};
+
+function listen<T>(channel: string, listener: (e: T) => void): () => void {
+  const handler = (_event: IpcRendererEvent, data: T): void => listener(data);
+  electron.ipcRenderer.on(channel, handler);
+  return () => electron.ipcRenderer.removeListener(channel, handler);
+}
+
+const api: SeamscoutApi & { pathForFile(file: File): string } = {
+  hostInfo: () => electron.ipcRenderer.invoke(ch.hostInfo),
+  chooseFolder: () => electron.ipcRenderer.invoke(ch.chooseFolder),
+  recentFolders: () => electron.ipcRenderer.invoke(ch.recentFolders),
+  startCheck: (target) => electron.ipcRenderer.invoke(ch.startCheck, target),
+  cancelCheck: (id) => electron.ipcRenderer.invoke(ch.cancelCheck, id),
+  loadBudget: () => electron.ipcRenderer.invoke(ch.loadBudget),
+  saveBudget: (b) => electron.ipcRenderer.invoke(ch.saveBudget, b),
+  exportReport: (id, format, budget) => electron.ipcRenderer.invoke(ch.exportReport, id, format, budget),
+  tiePoints: (id, a, b) => electron.ipcRenderer.invoke(ch.tiePoints, id, a, b),
+  frameUrl: (id, file, maxSide) => `seamscout-frame://frames/${id}/${encodeURIComponent(file)}?max=${Math.round(maxSide)}`,
+  onProgress: (l) => listen(ch.progress, l),
+  onDone: (l) => listen(ch.done, l),
+  pathForFile: (file) => electron.webUtils.getPathForFile(file),
+};
+
+electron.contextBridge.exposeInMainWorld('seamscout', api);

@@ -1,0 +1,89 @@
+// The local browser host's guards (GUIDE section 7; Electron's security checklist applied to a
+// local server): 127.0.0.1 only, a per-run token, our own Host and Origin only, nothing served
+// outside its assets and the check's frames.
+import { request } from 'node:http';
+import { mkdirSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { BrowserHost } from '../src/main/browser-host.js';
+import { startBrowserHost } from '../src/main/browser-host.js';
+import { tempDir } from './helpers/cli.js';
+
+let host: BrowserHost;
+let assets: string;
+
+function get(path: string, headers: Record<string, string> = {}, method = 'GET', body?: string): Promise<{ status: number; body: string; headers: Record<string, string | string[] | undefined> }> {
+  return new Promise((resolve, reject) => {
+    const req = request({ host: '127.0.0.1', port: host.port, path, method, headers: { host: `127.0.0.1:${host.port}`, ...headers } }, (res) => {
+      let text = '';
+      res.on('data', (d) => (text += d));
+      res.on('end', () => resolve({ status: res.statusCode ?? 0, body: text, headers: res.headers }));
+    });
+    req.on('error', reject);
+    if (body) req.write(body);
+    req.end();
+  });
+}
+
+beforeAll(async () => {
+  const root = tempDir('seamscout-host-');
+  assets = join(root, 'assets');
+  mkdirSync(assets);
+  writeFileSync(join(assets, 'index.html'), '<!doctype html><title>test page</title>');
+  writeFileSync(join(root, 'secret.txt'), 'outside the assets');
+  process.env.SEAMSCOUT_CONFIG_DIR = join(root, 'config');
+  process.env.SEAMSCOUT_CACHE_DIR = join(root, 'cache');
+  host = await startBrowserHost({ assets, demoFolder: async () => root, version: 'test', threads: 0 });
+});
+afterAll(async () => {
+  await host?.close();
+});
+
+describe('browser host', () => {
+  it('listens on 127.0.0.1 only', () => {
+    const address = host.server.address();
+    expect(typeof address === 'object' && address?.address).toBe('127.0.0.1');
+    expect(host.url).toMatch(/^http:\/\/127\.0\.0\.1:\d+\/\?t=[\w-]{20,}$/);
+  });
+
+  it('refuses requests without its token, or with a wrong one', async () => {
+    expect((await get('/')).status).toBe(401);
+    expect((await get('/?t=guess')).status).toBe(401);
+    expect((await get(`/?t=${host.token}x`)).status).toBe(401);
+    const ok = await get(`/?t=${host.token}`);
+    expect(ok.status).toBe(200);
+    expect(ok.body).toContain('test page');
+    expect(ok.headers['content-security-policy']).toMatch(/default-src 'self'/);
+  });
+
+  it('refuses a foreign Host header (DNS rebinding) and a foreign Origin', async () => {
+    expect((await get(`/?t=${host.token}`, { host: `evil.example:${host.port}` })).status).toBe(421);
+    expect((await get(`/?t=${host.token}`, { host: '127.0.0.1' })).status).toBe(421);
+    expect((await get(`/?t=${host.token}`, { origin: 'http://evil.example' })).status).toBe(403);
+    expect((await get(`/?t=${host.token}`, { origin: `http://127.0.0.1:${host.port}` })).status).toBe(200);
+  });
+
+  it('takes API calls only as POST with the token header', async () => {
+    const body = JSON.stringify([]);
+    expect((await get(`/api/hostInfo?t=${host.token}`, {}, 'POST', body)).status).toBe(403);
+    const r = await get('/api/hostInfo', { 'x-seamscout-token': host.token, 'content-type': 'application/json' }, 'POST', body);
+    expect(r.status).toBe(200);
+    expect(JSON.parse(r.body)).toEqual({ ok: { shell: 'browser', version: 'test', initialTarget: null } });
+    // Names inherited from Object's prototype are not calls.
+    expect((await get('/api/constructor', { 'x-seamscout-token': host.token }, 'POST', body)).status).toBe(404);
+  });
+
+  it('serves nothing outside its assets, whatever the encoding', async () => {
+    const t = `t=${host.token}`;
+    for (const path of ['/../secret.txt', '/%2e%2e/secret.txt', '/%2E%2E%2Fsecret.txt', '/..%2fsecret.txt', '/%2fetc%2fpasswd', '/.hidden']) {
+      const r = await get(`${path}?${t}`);
+      expect(r.status, path).toBe(404);
+      expect(r.body).not.toContain('outside the assets');
+    }
+  });
+
+  it('serves no frame that is not part of the current check', async () => {
+    const t = `t=${host.token}`;
+    for (const path of ['/frame/1/..%2Fsecret.txt', '/frame/1/%2Fetc%2Fpasswd', '/frame/999/x.jpg']) expect((await get(`${path}?${t}`)).status, path).toBe(404);
+  });
+});
