@@ -34,7 +34,8 @@ export function formatSummary(report: Report): string {
   out.push('');
   if (report.verdict === 'ok') out.push('Verdict: ok. Every pair and frame is within the match budget.');
   else {
-    out.push(`Verdict: ${word[report.verdict]}. ${report.counts.reshoot} to reshoot, ${report.counts.weak} weak.`);
+    const notChecked = report.skipped.length ? `, ${report.skipped.length} file${report.skipped.length === 1 ? '' : 's'} not checked` : '';
+    out.push(`Verdict: ${word[report.verdict]}. ${report.counts.reshoot} to reshoot, ${report.counts.weak} weak${notChecked}.`);
     if (advice.length) out.push('', 'What to do:', ...advice.map((a) => `  - ${a}`));
   }
   return out.join('\n') + '\n';
