@@ -1,0 +1,541 @@
+// The page's controller: holds the state (screen, report, budget, selection), talks to main only
+// through the SeamscoutApi object, and hands plain data to the views, which build DOM from it.
+import type { CheckDoneEvent, CheckProgressEvent, ExportFormat, HostInfo, SeamscoutApi } from '../main/app-api.js';
+import type { MatchBudget, Report } from '../core/report.js';
+import { defaultBudget } from '../core/report.js';
+import { rejudge } from '../core/verdicts.js';
+import { renderAdvice } from './advice-view.js';
+import { createBudgetPanel } from './budget-panel.js';
+import type { TiePointState } from './detail-view.js';
+import { renderDetail } from './detail-view.js';
+import { button, el, replaceChildren, svg } from './dom.js';
+import type { ExportResult } from './export-panel.js';
+import { renderExport } from './export-panel.js';
+import { chainPairs, findPair, pairKey } from './pairs.js';
+import type { ProgressModel, ProgressView } from './progress-view.js';
+import { createProgressView, emptyProgress, withEvent } from './progress-view.js';
+import type { StartModel } from './start-view.js';
+import { renderStart } from './start-view.js';
+import { renderStrip } from './strip-view.js';
+import { renderSummary } from './summary-view.js';
+import { applyStoredTheme, themeToggle } from './theme.js';
+
+export interface MountOptions {
+  /** Delay before a changed budget is saved (ms); edits within it are saved once. */
+  readonly saveDelayMs?: number;
+  /** Where the theme choice is kept; defaults to localStorage. */
+  readonly storage?: Storage | null;
+}
+
+export interface MountedApp {
+  /** Settles when host info, recent folders and the stored budget have been asked for. */
+  readonly ready: Promise<void>;
+  destroy(): void;
+}
+
+type Screen = 'start' | 'progress' | 'results';
+
+interface Running {
+  id: number | null;
+  model: ProgressModel;
+  readonly view: ProgressView;
+  cancelAsked: boolean;
+}
+
+/** The desktop bridge adds this beside the contract: a dropped file's path (Electron's webUtils). */
+type Bridge = SeamscoutApi & { pathForFile?: (file: File) => string };
+
+const thumbSide = 320;
+const detailSide = 1200;
+const sameBudget = (x: MatchBudget, y: MatchBudget): boolean => (Object.keys(x) as (keyof MatchBudget)[]).every((k) => x[k] === y[k]);
+const messageOf = (e: unknown): string => (e instanceof Error ? e.message : String(e));
+
+export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOptions = {}): MountedApp {
+  const doc = root.ownerDocument;
+  const win = doc.defaultView ?? window;
+  const storage = options.storage !== undefined ? options.storage : (() => {
+    try {
+      return win.localStorage;
+    } catch {
+      return null;
+    }
+  })();
+  const saveDelay = options.saveDelayMs ?? 400;
+  const bridge = api as Bridge;
+
+  // State.
+  let screen: Screen = 'start';
+  let host: HostInfo | null = null;
+  let recent: string[] = [];
+  let showPathField = false;
+  let message: StartModel['message'] = null;
+  let budget: MatchBudget = defaultBudget;
+  let budgetEdited = false;
+  let running: Running | null = null;
+  let early: ({ kind: 'progress'; e: CheckProgressEvent } | { kind: 'done'; e: CheckDoneEvent })[] = [];
+  let checkId: number | null = null;
+  let raw: Report | null = null;
+  let report: Report | null = null;
+  let selected: string | null = null;
+  let detail: string | null = null;
+  let lines = true;
+  let ties = new Map<string, TiePointState>();
+  let exportResult: ExportResult = { state: 'idle' };
+  let saveTimer: ReturnType<typeof setTimeout> | null = null;
+  let budgetStatus = '';
+  let thumbs = new Map<string, HTMLImageElement>();
+  let fulls = new Map<string, SVGImageElement>();
+
+  // The frame.
+  applyStoredTheme(doc, storage);
+  const newCheck = button({ class: 'small', 'data-new-check': '' }, () => goStart(), 'New check');
+  const view = el('main', { class: 'view', id: 'view', tabindex: -1 });
+  const footer = el('footer', { class: 'footer' });
+  replaceChildren(
+    root,
+    el('div', { class: 'app' }, el('header', { class: 'topbar' }, el('span', { class: 'brand' }, 'Seamscout'), el('span', { class: 'spacer' }), newCheck, themeToggle(doc, win, storage)), view, footer),
+  );
+
+  // The results screen's parts, built once; the parts that depend on the report are refilled.
+  const panel = createBudgetPanel(budget, (b) => {
+    budgetEdited = true;
+    setBudget(b);
+    scheduleSave(b);
+  });
+  const summarySlot = el('div', { class: 'summary-slot' });
+  const stripSlot = el('div', { class: 'strip-slot' });
+  const stripSection = el('section', { class: 'strip-section', 'aria-label': 'Strip' }, el('h2', { class: 'visually-hidden' }, 'Strip'), stripSlot);
+  const detailSlot = el('div', { class: 'detail-slot' });
+  const adviceSlot = el('div', { class: 'advice-slot' });
+  const exportSlot = el('div', { class: 'export-slot' });
+  const budgetStatusEl = el('p', { class: 'budget-status', role: 'status', 'data-budget-status': '' });
+  const results = el(
+    'div',
+    { class: 'results' },
+    summarySlot,
+    el('div', { class: 'results-wide' }, stripSection, detailSlot),
+    el('div', { class: 'results-main' }, adviceSlot),
+    el('aside', { class: 'results-side' }, panel.element, budgetStatusEl, exportSlot),
+  );
+
+  const thumbnail = (file: string): HTMLImageElement => {
+    let img = thumbs.get(file);
+    if (!img) {
+      img = el('img', { src: api.frameUrl(checkId ?? 0, file, thumbSide), loading: 'lazy', decoding: 'async', draggable: 'false', alt: file });
+      thumbs.set(file, img);
+    }
+    return img;
+  };
+  const fullImage = (file: string): SVGImageElement => {
+    let img = fulls.get(file);
+    if (!img) {
+      img = svg('image', { href: api.frameUrl(checkId ?? 0, file, detailSide) });
+      fulls.set(file, img);
+    }
+    return img;
+  };
+
+  // Rendering.
+  function render(): void {
+    newCheck.hidden = screen !== 'results';
+    if (screen === 'start') {
+      replaceChildren(view, renderStart(startModel(), startActions));
+    } else if (screen === 'progress' && running) {
+      replaceChildren(view, running.view.element);
+      running.view.update(running.model);
+    } else if (screen === 'results' && report) {
+      replaceChildren(view, results);
+      fillResults();
+    }
+  }
+
+  function startModel(): StartModel {
+    return { shell: host?.shell ?? null, recent, showPathField, canDrop: typeof bridge.pathForFile === 'function', message, hasResults: report !== null };
+  }
+
+  function fillResults(): void {
+    if (!report) return;
+    const hadFocus = stripSlot.contains(doc.activeElement) ? doc.activeElement?.getAttribute('data-pair') ?? null : null;
+    replaceChildren(summarySlot, renderSummary(report));
+    // While the detail is open the strip is out of the document, so that [data-pair="a|b"] names
+    // one element only (the detail); thumbnails are kept and come back without reloading.
+    if (detail) replaceChildren(stripSlot);
+    else replaceChildren(stripSlot, renderStrip(report, { thumbnail, selected, onOpen: openDetail, onSelect: (k) => select(k, false) }));
+    replaceChildren(adviceSlot, renderAdvice(report, openDetail));
+    replaceChildren(exportSlot, renderExport(exportResult, doExport));
+    budgetStatusEl.textContent = budgetStatus;
+    stripSection.hidden = detail !== null;
+    adviceSlot.hidden = detail !== null;
+    if (detail) {
+      const onToggleLines = (): void => {
+        lines = !lines;
+        refreshDetail();
+      };
+      replaceChildren(detailSlot, renderDetail(report, detail, { image: fullImage, tiePoints: ties.get(detail) ?? { state: 'loading' }, lines, onBack: closeDetail, onToggleLines }));
+    } else {
+      replaceChildren(detailSlot);
+    }
+    if (hadFocus) stripSlot.querySelector<HTMLElement>(`[data-pair="${cssEscape(hadFocus)}"]`)?.focus();
+  }
+
+  /** Redraws an open detail (tie points arrived, lines toggled), keeping focus on the same control. */
+  function refreshDetail(): void {
+    if (screen !== 'results' || !report || !detail) return;
+    const a = doc.activeElement;
+    const focused = a && detailSlot.contains(a) ? (a.hasAttribute('data-toggle-lines') ? '[data-toggle-lines]' : '.back') : null;
+    fillResults();
+    if (focused) detailSlot.querySelector<HTMLElement>(focused)?.focus();
+  }
+
+  // Selection and the detail.
+  function markSelection(): void {
+    for (const n of stripSlot.querySelectorAll<HTMLElement>('[data-pair]')) {
+      const on = n.getAttribute('data-pair') === selected;
+      n.classList.toggle('is-selected', on);
+      if (on) n.setAttribute('aria-current', 'true');
+      else n.removeAttribute('aria-current');
+    }
+  }
+
+  function select(key: string, focus: boolean): void {
+    selected = key;
+    markSelection();
+    if (focus) stripSlot.querySelector<HTMLElement>(`[data-pair="${cssEscape(key)}"]`)?.focus();
+  }
+
+  function move(step: 1 | -1): void {
+    if (!report) return;
+    const chain = chainPairs(report).map(pairKey);
+    if (chain.length === 0) return;
+    const at = selected ? chain.indexOf(selected) : -1;
+    const next = at < 0 ? (step > 0 ? 0 : chain.length - 1) : Math.max(0, Math.min(chain.length - 1, at + step));
+    if (detail) {
+      if (chain[next] !== detail) openDetail(chain[next]);
+    } else {
+      select(chain[next], true);
+    }
+  }
+
+  function openDetail(key: string): void {
+    if (!report || checkId === null) return;
+    const p = findPair(report, key);
+    if (!p) return;
+    detail = key;
+    if (chainPairs(report).some((q) => pairKey(q) === key)) selected = key;
+    if (!ties.has(key)) {
+      ties.set(key, { state: 'loading' });
+      const id = checkId;
+      api.tiePoints(id, p.a, p.b).then(
+        (points) => {
+          if (checkId !== id) return;
+          ties.set(key, { state: 'ready', points });
+          if (detail === key) refreshDetail();
+        },
+        (e) => {
+          if (checkId !== id) return;
+          ties.set(key, { state: 'failed', message: messageOf(e) });
+          if (detail === key) refreshDetail();
+        },
+      );
+    }
+    fillResults();
+    detailSlot.querySelector<HTMLElement>('.back')?.focus();
+  }
+
+  function closeDetail(): void {
+    const key = detail;
+    detail = null;
+    fillResults();
+    const target = (selected && stripSlot.querySelector<HTMLElement>(`[data-pair="${cssEscape(selected)}"]`)) || (key && stripSlot.querySelector<HTMLElement>(`[data-pair="${cssEscape(key)}"]`));
+    if (target) target.focus();
+  }
+
+  // Budget.
+  function setBudget(b: MatchBudget): void {
+    budget = b;
+    if (raw) {
+      report = sameBudget(raw.budget, b) ? raw : rejudge(raw, b);
+      if (screen === 'results') fillResults();
+    }
+  }
+
+  function scheduleSave(b: MatchBudget): void {
+    if (saveTimer !== null) clearTimeout(saveTimer);
+    saveTimer = setTimeout(() => {
+      saveTimer = null;
+      api.saveBudget(b).then(
+        () => setBudgetStatus(''),
+        (e) => setBudgetStatus(`The budget could not be saved: ${messageOf(e)}`),
+      );
+    }, saveDelay);
+  }
+
+  function setBudgetStatus(text: string): void {
+    budgetStatus = text;
+    budgetStatusEl.textContent = text;
+  }
+
+  // Checks.
+  async function startCheck(target: { folder: string } | { demo: true }, label: string): Promise<void> {
+    if (running) return;
+    const r: Running = { id: null, model: emptyProgress(label), view: createProgressView(cancel), cancelAsked: false };
+    running = r;
+    early = [];
+    message = null;
+    screen = 'progress';
+    render();
+    r.view.element.querySelector<HTMLElement>('[data-cancel]')?.focus();
+    try {
+      const id = await api.startCheck(target);
+      if (running !== r) return;
+      r.id = id;
+      if (r.cancelAsked) void api.cancelCheck(id).catch(() => undefined);
+      const pending = early.filter((x) => x.e.checkId === id);
+      early = [];
+      for (const x of pending) {
+        if (x.kind === 'progress') progressed(x.e);
+        else finished(x.e);
+      }
+    } catch (e) {
+      if (running !== r) return;
+      running = null;
+      message = { kind: 'error', text: `The check could not start: ${messageOf(e)}` };
+      screen = 'start';
+      render();
+    }
+  }
+
+  function cancel(): void {
+    const r = running;
+    if (!r) return;
+    r.model = { ...r.model, cancelling: true };
+    r.view.update(r.model);
+    if (r.id === null) r.cancelAsked = true;
+    else void api.cancelCheck(r.id).catch(() => undefined);
+  }
+
+  function progressed(e: CheckProgressEvent): void {
+    const r = running;
+    if (!r) return;
+    if (r.id === null) {
+      early.push({ kind: 'progress', e });
+      return;
+    }
+    if (e.checkId !== r.id) return;
+    r.model = withEvent(r.model, e);
+    if (screen === 'progress') r.view.update(r.model);
+  }
+
+  function finished(e: CheckDoneEvent): void {
+    const r = running;
+    if (!r) return;
+    if (r.id === null) {
+      early.push({ kind: 'done', e });
+      return;
+    }
+    if (e.checkId !== r.id) return;
+    running = null;
+    if (e.report) {
+      receiveReport(e.checkId, e.report);
+    } else {
+      message = e.cancelled ? { kind: 'info', text: 'Check cancelled.' } : { kind: 'error', text: `The check stopped: ${e.error ?? 'unknown error'}` };
+      screen = 'start';
+      render();
+    }
+    void refreshRecent();
+  }
+
+  /** Shows a report. Called again with a fuller report of the same check, it keeps selection and detail. */
+  function receiveReport(id: number, r: Report): void {
+    if (id !== checkId) {
+      checkId = id;
+      selected = null;
+      detail = null;
+      ties = new Map();
+      thumbs = new Map();
+      fulls = new Map();
+      exportResult = { state: 'idle' };
+    }
+    raw = r;
+    report = sameBudget(r.budget, budget) ? r : rejudge(r, budget);
+    screen = 'results';
+    render();
+  }
+
+  async function doExport(format: ExportFormat): Promise<void> {
+    if (checkId === null || exportResult.state === 'busy') return;
+    exportResult = { state: 'busy', format };
+    replaceChildren(exportSlot, renderExport(exportResult, doExport));
+    try {
+      const path = await api.exportReport(checkId, format, budget);
+      exportResult = path === null ? { state: 'cancelled' } : { state: 'written', path };
+    } catch (e) {
+      exportResult = { state: 'failed', message: messageOf(e) };
+    }
+    if (screen === 'results') {
+      replaceChildren(exportSlot, renderExport(exportResult, doExport));
+      exportSlot.querySelector<HTMLElement>(`[data-export="${format}"]`)?.focus();
+    }
+  }
+
+  // Start screen.
+  function goStart(): void {
+    if (screen === 'progress') return;
+    screen = 'start';
+    render();
+    view.querySelector<HTMLElement>('[data-back-to-results], [data-choose-folder]')?.focus();
+  }
+
+  const openFolder = (folder: string): void => {
+    void startCheck({ folder }, folder.split(/[\\/]/).filter(Boolean).pop() ?? folder);
+  };
+
+  const startActions = {
+    chooseFolder: async (): Promise<void> => {
+      let folder: string | null = null;
+      try {
+        folder = await api.chooseFolder();
+      } catch (e) {
+        message = { kind: 'error', text: `No folder dialog: ${messageOf(e)}` };
+      }
+      if (folder) {
+        openFolder(folder);
+        return;
+      }
+      if ((host ?? (await api.hostInfo().catch(() => null)))?.shell === 'browser') showPathField = true;
+      if (screen === 'start') {
+        render();
+        view.querySelector<HTMLInputElement>('input[name="folder"]')?.focus();
+      }
+    },
+    openFolder,
+    tryDemo: (): void => void startCheck({ demo: true }, 'the demo shoot'),
+    backToResults: (): void => {
+      if (!report) return;
+      screen = 'results';
+      render();
+    },
+  };
+
+  async function refreshRecent(): Promise<void> {
+    try {
+      recent = await api.recentFolders();
+    } catch {
+      recent = [];
+    }
+    if (screen === 'start') render();
+  }
+
+  // Keyboard: arrows move between the strip's pairs, Enter opens, Escape goes back.
+  const onKey = (e: KeyboardEvent): void => {
+    if (e.defaultPrevented || e.altKey || e.ctrlKey || e.metaKey || screen !== 'results' || !report) return;
+    const t = e.target instanceof Element ? e.target : null;
+    const typing = !!t && (/^(INPUT|TEXTAREA|SELECT)$/.test(t.tagName) || (t as HTMLElement).isContentEditable === true);
+    if (typing) {
+      if (e.key === 'Escape') (t as HTMLElement).blur();
+      return;
+    }
+    if (e.key === 'ArrowRight' || e.key === 'ArrowLeft') {
+      e.preventDefault();
+      move(e.key === 'ArrowRight' ? 1 : -1);
+    } else if (e.key === 'Enter' && !detail) {
+      const onPair = t?.closest('[data-pair]')?.getAttribute('data-pair') ?? null;
+      // Other controls (export, budget defaults, "Show pair") act on Enter themselves.
+      if (!onPair && t?.closest('button, a, summary')) return;
+      const key = onPair ?? selected;
+      if (key) {
+        e.preventDefault();
+        openDetail(key);
+      }
+    } else if (e.key === 'Escape') {
+      e.preventDefault();
+      if (detail) closeDetail();
+      else goStart();
+    }
+  };
+
+  // Dropping a folder on the window opens it where its path can be read (the desktop app).
+  const hasFiles = (e: DragEvent): boolean => !!e.dataTransfer && Array.from(e.dataTransfer.types ?? []).includes('Files');
+  const onDragOver = (e: DragEvent): void => {
+    if (!hasFiles(e)) return;
+    e.preventDefault();
+    if (e.dataTransfer) e.dataTransfer.dropEffect = screen === 'progress' ? 'none' : 'copy';
+    root.classList.toggle('is-dragging', screen !== 'progress');
+  };
+  const onDragLeave = (e: DragEvent): void => {
+    if (e.relatedTarget === null) root.classList.remove('is-dragging');
+  };
+  const onDrop = (e: DragEvent): void => {
+    root.classList.remove('is-dragging');
+    if (!e.dataTransfer || !hasFiles(e)) return;
+    // Never let the page navigate to a dropped file.
+    e.preventDefault();
+    if (screen === 'progress') return;
+    const file = e.dataTransfer.files?.[0];
+    if (!file) return;
+    let path: string;
+    try {
+      path = bridge.pathForFile?.(file) ?? '';
+    } catch {
+      path = '';
+    }
+    if (path) {
+      openFolder(path);
+      return;
+    }
+    message = { kind: 'info', text: 'Dropping a folder needs the desktop app: type the folder path instead, or use Open folder….' };
+    if (host?.shell === 'browser') showPathField = true;
+    screen = 'start';
+    render();
+  };
+
+  doc.addEventListener('keydown', onKey);
+  win.addEventListener('dragover', onDragOver);
+  win.addEventListener('dragleave', onDragLeave);
+  win.addEventListener('drop', onDrop);
+  const offProgress = api.onProgress(progressed);
+  const offDone = api.onDone(finished);
+
+  render();
+
+  const ready = Promise.all([
+    api.hostInfo().then((h) => {
+      host = h;
+      footer.textContent = `Seamscout ${h.version} · ${h.shell === 'desktop' ? 'desktop app' : 'in the browser'}`;
+    }, () => undefined),
+    api.recentFolders().then((r) => {
+      recent = r;
+    }, () => undefined),
+    api.loadBudget().then((b) => {
+      if (budgetEdited) return;
+      panel.set(b);
+      setBudget(b);
+    }, (e) => setBudgetStatus(`The stored budget could not be read (${messageOf(e)}); using the defaults.`)),
+  ]).then(() => {
+    // Opened with a folder (or, by default, the demo shoot): go straight to its check.
+    const first = host?.initialTarget;
+    if (screen === 'start' && first) {
+      if ('demo' in first) startActions.tryDemo();
+      else openFolder(first.folder);
+    } else if (screen === 'start') render();
+  });
+
+  return {
+    ready,
+    destroy(): void {
+      doc.removeEventListener('keydown', onKey);
+      win.removeEventListener('dragover', onDragOver);
+      win.removeEventListener('dragleave', onDragLeave);
+      win.removeEventListener('drop', onDrop);
+      offProgress();
+      offDone();
+      if (saveTimer !== null) clearTimeout(saveTimer);
+      replaceChildren(root);
+    },
+  };
+}
+
+/** Quotes a value for an attribute selector (file names may hold quotes or backslashes). */
+function cssEscape(v: string): string {
+  return v.replace(/["\\]/g, '\\$&');
+}

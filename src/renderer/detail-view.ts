@@ -1,0 +1,103 @@
+// The pair detail: both frames with the tie points and the overlap drawn, every measure with the
+// budget's limit beside it, the verdict and reasons, and the advice in plain words.
+import type { Report, ReportPair } from '../core/report.js';
+import { button, el } from './dom.js';
+import { evStep, flagMeaning, flagWords, kindWords, percent, pixels } from './format.js';
+import { backIcon, verdictBadge } from './icons.js';
+import type { CanvasFrame } from './pair-canvas.js';
+import { renderPairCanvas } from './pair-canvas.js';
+import { findPair, pairKey } from './pairs.js';
+import { flagList } from './strip-view.js';
+
+export type TiePointState = { readonly state: 'loading' } | { readonly state: 'ready'; readonly points: readonly number[] } | { readonly state: 'failed'; readonly message: string };
+
+export interface DetailContext {
+  readonly image: (file: string) => SVGImageElement;
+  readonly tiePoints: TiePointState;
+  readonly lines: boolean;
+  readonly onBack: () => void;
+  readonly onToggleLines: () => void;
+}
+
+function measure(name: string, label: string, value: string | Node, note: string | null = null): HTMLElement {
+  return el('div', { class: 'measure', 'data-measure': name }, el('dt', {}, label), el('dd', {}, el('span', { class: 'numeral' }, value), note ? el('span', { class: 'limit' }, note) : null));
+}
+
+function measures(p: ReportPair, report: Report): HTMLElement {
+  const b = report.budget;
+  const betweenStations = p.kind === 'neighbour' || p.kind === 'closure';
+  const share = p.matches > 0 ? p.inliers / p.matches : null;
+  return el(
+    'dl',
+    { class: 'measures' },
+    measure('overlap', 'Overlap', p.homography ? percent(p.overlap) : 'none found', betweenStations ? `weak below ${percent(b.weakOverlap)}, reshoot below ${percent(b.reshootOverlap)}` : null),
+    measure('inliers', 'Inliers', String(p.inliers), betweenStations ? `at least ${b.minInliers}` : null),
+    measure('matches', 'Matches', String(p.matches)),
+    measure('inlierShare', 'Inlier share', percent(share)),
+    measure('matchesInOverlap', 'Matches inside the overlap', String(p.matchesInOverlap)),
+    measure('evDiff', 'EV difference', evStep(p.evDiff), betweenStations ? `within ${evStep(b.maxEvDiff).replace('+', '±')}` : null),
+    measure('rmsError', 'RMS error', pixels(p.rmsError, 2)),
+    p.kind === 'bracket' || p.shiftPx !== null ? measure('shiftPx', 'Largest corner shift', pixels(p.shiftPx, 1), p.kind === 'bracket' ? `at most ${b.maxBracketShiftPx} px` : null) : null,
+    measure('verdict', 'Verdict', verdictBadge(p.verdict, 28)),
+    measure('reasons', 'Reasons', p.reasons.length ? p.reasons.map((r) => `${flagWords(r)} (${flagMeaning[r]})`).join('; ') : 'none'),
+  );
+}
+
+function frameCaption(report: Report, file: string, side: 'a' | 'b'): HTMLElement {
+  const f = report.frames.find((x) => x.file === file);
+  return el(
+    'figcaption',
+    { class: 'detail-frame', 'data-side': side },
+    el('span', { class: 'frame-name' }, file),
+    f && f.verdict !== 'ok' ? verdictBadge(f.verdict, 20) : null,
+    f ? flagList(f.flags) : null,
+  );
+}
+
+function canvasFrame(report: Report, file: string): CanvasFrame {
+  const f = report.frames.find((x) => x.file === file);
+  // Unknown sizes (never in a whole report) fall back to 3:2 so the layout still stands.
+  return f && f.width > 0 && f.height > 0 ? { file, width: f.width, height: f.height } : { file, width: 1500, height: 1000 };
+}
+
+export function renderDetail(report: Report, key: string, ctx: DetailContext): HTMLElement {
+  const p = findPair(report, key);
+  if (!p) return el('section', { class: 'detail', 'data-detail': '', 'data-pair': key }, el('p', {}, 'This pair is not in the report.'), button({ class: 'back' }, ctx.onBack, backIcon(), 'Back'));
+  const ties = ctx.tiePoints;
+  const canvas = renderPairCanvas(canvasFrame(report, p.a), canvasFrame(report, p.b), p.homography, { image: ctx.image, tiePoints: ties.state === 'ready' ? ties.points : null, lines: ctx.lines });
+  const tieNote =
+    ties.state === 'loading' ? 'Loading tie points…'
+    : ties.state === 'failed' ? `Tie points could not be loaded: ${ties.message}`
+    : ties.points.length === 0 ? 'No tie points: the frames did not line up.'
+    : `${ties.points.length / 4} tie points drawn; the outline is the overlap.`;
+  return el(
+    'section',
+    { class: `detail detail-${p.verdict}`, 'data-detail': '', 'data-pair': pairKey(p), 'data-kind': p.kind, 'data-verdict': p.verdict, 'aria-label': `Pair ${p.a} and ${p.b}` },
+    el(
+      'header',
+      { class: 'detail-head' },
+      button({ class: 'back', 'aria-keyshortcuts': 'Escape' }, ctx.onBack, backIcon(), 'Back to the strip (Esc)'),
+      el('h2', {}, `${p.a} → ${p.b}`),
+      el('span', { class: 'kind' }, kindWords[p.kind]),
+      verdictBadge(p.verdict, 32),
+    ),
+    el('figure', { class: 'detail-figure' }, canvas, el('div', { class: 'detail-captions' }, frameCaption(report, p.a, 'a'), frameCaption(report, p.b, 'b'))),
+    el(
+      'div',
+      { class: 'detail-tools' },
+      el('p', { class: 'tie-note', 'data-tie-note': ties.state }, tieNote),
+      button({ class: 'small', 'aria-pressed': String(ctx.lines), 'data-toggle-lines': '' }, ctx.onToggleLines, ctx.lines ? 'Hide lines' : 'Show lines'),
+    ),
+    el(
+      'div',
+      { class: 'detail-body' },
+      measures(p, report),
+      el(
+        'div',
+        { class: 'detail-advice', 'data-advice': p.advice.length },
+        el('h3', {}, 'What to do'),
+        p.advice.length ? el('ul', {}, p.advice.map((a) => el('li', {}, a))) : el('p', {}, 'Nothing: this pair is within the match budget.'),
+      ),
+    ),
+  );
+}

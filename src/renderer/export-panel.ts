@@ -1,0 +1,33 @@
+// Export buttons: the report and its pair graph in the formats of the check command.
+import type { ExportFormat } from '../main/app-api.js';
+import { button, el } from './dom.js';
+
+export const exportButtons: readonly { format: ExportFormat; label: string }[] = [
+  { format: 'json', label: 'Export report (JSON)' },
+  { format: 'graphml', label: 'Export pair graph (GraphML)' },
+  { format: 'csv', label: 'Export pairs (CSV)' },
+  { format: 'dot', label: 'Export graph (DOT)' },
+];
+
+export type ExportResult = { readonly state: 'idle' } | { readonly state: 'busy'; readonly format: ExportFormat } | { readonly state: 'written'; readonly path: string } | { readonly state: 'cancelled' } | { readonly state: 'failed'; readonly message: string };
+
+export function exportResultText(r: ExportResult): string {
+  switch (r.state) {
+    case 'idle': return '';
+    case 'busy': return 'Writing…';
+    case 'written': return `Written: ${r.path}`;
+    case 'cancelled': return 'Export cancelled.';
+    case 'failed': return `Export failed: ${r.message}`;
+  }
+}
+
+export function renderExport(result: ExportResult, onExport: (format: ExportFormat) => void): HTMLElement {
+  const busy = result.state === 'busy';
+  return el(
+    'section',
+    { class: 'export', 'aria-label': 'Export' },
+    el('h2', {}, 'Export'),
+    el('div', { class: 'export-buttons' }, exportButtons.map((b) => button({ 'data-export': b.format, disabled: busy }, () => onExport(b.format), b.label))),
+    el('p', { class: `export-result export-${result.state}`, 'data-export-result': result.state, role: 'status' }, exportResultText(result)),
+  );
+}

@@ -1,0 +1,464 @@
+// @vitest-environment happy-dom
+// The mounted page against a fake SeamscoutApi: start screen, progress, results, the budget panel
+// re-judging without re-analysis, keyboard navigation, the detail, export, drop and theme. The
+// report is four single-frame stations judged by core's `judge` with the default budget.
+import { afterEach, beforeEach, describe, expect, it } from 'vitest';
+import type { CheckDoneEvent, CheckProgressEvent, ExportFormat, HostInfo, SeamscoutApi } from '../src/main/app-api.js';
+import type { Analysis, MatchBudget, PairMeasure, Report } from '../src/core/report.js';
+import { defaultBudget } from '../src/core/report.js';
+import { judge } from '../src/core/verdicts.js';
+import type { MountedApp } from '../src/renderer/app.js';
+import { mountApp } from '../src/renderer/app.js';
+
+const W = 4000, H = 6000; // portrait frames
+const pair = (a: string, b: string, overlap: number, extra: Partial<PairMeasure> = {}): PairMeasure => ({
+  a, b, kind: 'neighbour', matches: 320, inliers: 210, matchesInOverlap: 250, overlap, homography: [1, 0, -W * (1 - overlap), 0, 1, 0, 0, 0, 1], evDiff: 0.1, rmsError: 0.6, shiftPx: null, ...extra,
+});
+const files = ['F1.jpg', 'F2.jpg', 'F3.jpg', 'F4.jpg'];
+const analysis: Analysis = {
+  folder: '/card/shoot',
+  frames: files.map((file) => ({ file, width: W, height: H, captureTime: null, settings: { exposureTime: 0.01, fNumber: 8, iso: 100, evBias: 0, focalLength: 24, focalLength35: 24, whiteBalance: 'auto', make: null, model: null }, sharpness: 2, keypoints: 1500 })),
+  stations: files.map((f, i) => ({ index: i, frames: [f], reference: f, evOffsets: [0], groupedBy: 'single' as const })),
+  pairs: [pair('F1.jpg', 'F2.jpg', 0.15), pair('F2.jpg', 'F3.jpg', 0.45), pair('F3.jpg', 'F4.jpg', 0.25)],
+  skipped: [],
+  sweepDeg: null,
+};
+const report: Report = judge(analysis, defaultBudget);
+const K12 = 'F1.jpg|F2.jpg', K23 = 'F2.jpg|F3.jpg', K34 = 'F3.jpg|F4.jpg';
+
+interface Call { readonly name: string; readonly args: unknown[] }
+
+function fakeApi(opts: { shell?: HostInfo['shell']; chooseFolder?: string | null; budget?: MatchBudget; exportResult?: () => Promise<string | null>; startCheck?: () => Promise<number>; pathForFile?: (f: File) => string } = {}) {
+  const calls: Call[] = [];
+  const progress: ((e: CheckProgressEvent) => void)[] = [];
+  const done: ((e: CheckDoneEvent) => void)[] = [];
+  const log = <T>(name: string, args: unknown[], value: T): T => {
+    calls.push({ name, args });
+    return value;
+  };
+  const api: SeamscoutApi & { pathForFile?: (f: File) => string } = {
+    hostInfo: async () => log('hostInfo', [], { shell: opts.shell ?? 'desktop', version: '0.1.0' }),
+    chooseFolder: async () => log('chooseFolder', [], opts.chooseFolder ?? null),
+    recentFolders: async () => log('recentFolders', [], ['/card/yesterday', '/card/shoot']),
+    startCheck: (target) => log('startCheck', [target], opts.startCheck ? opts.startCheck() : Promise.resolve(7)),
+    cancelCheck: async (id) => log('cancelCheck', [id], undefined),
+    loadBudget: async () => log('loadBudget', [], opts.budget ?? defaultBudget),
+    saveBudget: async (b) => log('saveBudget', [b], b),
+    exportReport: (id: number, format: ExportFormat, budget: MatchBudget) => log('exportReport', [id, format, budget], opts.exportResult ? opts.exportResult() : Promise.resolve(`/home/me/shoot.${format}`)),
+    tiePoints: async (id, a, b) => log('tiePoints', [id, a, b], [3500, 3000, 100, 3000, 3700, 1000, 300, 1000, 3900, 5000, 500, 5000]),
+    frameUrl: (id, file, maxSide) => `seamscout-frame://frames/${id}/${encodeURIComponent(file)}?max=${maxSide}`,
+    onProgress: (l) => {
+      progress.push(l);
+      return () => progress.splice(progress.indexOf(l), 1);
+    },
+    onDone: (l) => {
+      done.push(l);
+      return () => done.splice(done.indexOf(l), 1);
+    },
+  };
+  if (opts.pathForFile) api.pathForFile = opts.pathForFile;
+  return {
+    api,
+    calls,
+    names: () => calls.map((c) => c.name),
+    emitProgress: (e: CheckProgressEvent) => progress.forEach((l) => l(e)),
+    emitDone: (e: CheckDoneEvent) => done.forEach((l) => l(e)),
+    listeners: () => progress.length + done.length,
+  };
+}
+
+const tick = (ms = 0): Promise<void> => new Promise((r) => setTimeout(r, ms));
+const text = (n: Element | null | undefined): string => (n?.textContent ?? '').replace(/\s+/g, ' ').trim();
+const $ = <T extends Element = HTMLElement>(sel: string): T | null => document.querySelector<T>(sel);
+const buttonNamed = (label: string): HTMLButtonElement => {
+  const b = [...document.querySelectorAll('button')].find((x) => text(x) === label);
+  if (!b) throw new Error(`no button "${label}"`);
+  return b;
+};
+const press = (key: string): void => {
+  const target = document.activeElement && document.activeElement !== document.body ? document.activeElement : document.body;
+  target.dispatchEvent(new KeyboardEvent('keydown', { key, bubbles: true, cancelable: true }));
+};
+const type = (name: string, value: string): void => {
+  const input = $<HTMLInputElement>(`input[name="${name}"]`)!;
+  input.value = value;
+  input.dispatchEvent(new Event('input', { bubbles: true }));
+};
+
+let root: HTMLElement;
+let app: MountedApp | null = null;
+const storage = new Map<string, string>();
+const fakeStorage = { getItem: (k: string) => storage.get(k) ?? null, setItem: (k: string, v: string) => void storage.set(k, v) } as unknown as Storage;
+
+beforeEach(() => {
+  storage.clear();
+  delete document.documentElement.dataset.theme;
+  root = document.createElement('div');
+  document.body.replaceChildren(root);
+});
+afterEach(() => {
+  app?.destroy();
+  app = null;
+});
+
+async function mount(f: ReturnType<typeof fakeApi>): Promise<void> {
+  app = mountApp(root, f.api, { saveDelayMs: 0, storage: fakeStorage });
+  await app.ready;
+}
+
+/** Mounts, starts the demo shoot and delivers the report. */
+async function withResults(f: ReturnType<typeof fakeApi>, r: Report = report): Promise<void> {
+  await mount(f);
+  buttonNamed('Try the demo shoot').click();
+  await tick();
+  f.emitDone({ checkId: 7, report: r, error: null, cancelled: false });
+  await tick();
+}
+
+describe('start screen', () => {
+  it('offers the folder dialog, the recent folders and the demo shoot', async () => {
+    const f = fakeApi();
+    await mount(f);
+    expect(f.names().sort()).toEqual(['hostInfo', 'loadBudget', 'recentFolders']);
+    expect(text($('[data-choose-folder]'))).toBe('Open folder…');
+    expect([...document.querySelectorAll('[data-recent]')].map((b) => b.getAttribute('data-recent'))).toEqual(['/card/yesterday', '/card/shoot']);
+    buttonNamed('Try the demo shoot').click();
+    expect(f.calls.at(-1)).toEqual({ name: 'startCheck', args: [{ demo: true }] });
+  });
+
+  it('opens a recent folder on click, and the dialog\'s folder', async () => {
+    const f = fakeApi({ chooseFolder: '/media/card/DCIM' });
+    await mount(f);
+    ($('[data-recent="/card/yesterday"]') as HTMLElement).click();
+    expect(f.calls.at(-1)).toEqual({ name: 'startCheck', args: [{ folder: '/card/yesterday' }] });
+    f.emitDone({ checkId: 7, report: null, error: null, cancelled: true });
+    await tick();
+    ($('[data-choose-folder]') as HTMLElement).click();
+    await tick();
+    expect(f.calls.filter((c) => c.name === 'startCheck').at(-1)?.args).toEqual([{ folder: '/media/card/DCIM' }]);
+  });
+
+  it('shows a path field in the browser shell when there is no folder dialog', async () => {
+    const f = fakeApi({ shell: 'browser', chooseFolder: null });
+    await mount(f);
+    expect($('[data-path-form]')).toBeNull();
+    ($('[data-choose-folder]') as HTMLElement).click();
+    await tick();
+    const form = $<HTMLFormElement>('[data-path-form]')!;
+    expect(form).not.toBeNull();
+    form.querySelector('input')!.value = '/home/me/card';
+    form.requestSubmit();
+    expect(f.calls.at(-1)).toEqual({ name: 'startCheck', args: [{ folder: '/home/me/card' }] });
+  });
+
+  it('keeps the desktop dialog\'s cancel quiet: no path field, no check', async () => {
+    const f = fakeApi({ shell: 'desktop', chooseFolder: null });
+    await mount(f);
+    ($('[data-choose-folder]') as HTMLElement).click();
+    await tick();
+    expect($('[data-path-form]')).toBeNull();
+    expect(f.names()).not.toContain('startCheck');
+  });
+
+  const drop = (file: File): Event => {
+    const e = new Event('drop', { bubbles: true, cancelable: true });
+    Object.defineProperty(e, 'dataTransfer', { value: { types: ['Files'], files: [file], dropEffect: 'none' } });
+    window.dispatchEvent(e);
+    return e;
+  };
+
+  it('opens a dropped folder where the desktop bridge gives its path', async () => {
+    const f = fakeApi({ pathForFile: (file) => `/media/${file.name}` });
+    await mount(f);
+    const e = drop(new File([], 'DCIM'));
+    expect(e.defaultPrevented).toBe(true);
+    expect(f.calls.at(-1)).toEqual({ name: 'startCheck', args: [{ folder: '/media/DCIM' }] });
+  });
+
+  it('says that dropping needs the desktop app where no path is available', async () => {
+    const f = fakeApi({ shell: 'browser' });
+    await mount(f);
+    expect(text($('[data-drop-zone]'))).toContain('needs the desktop app');
+    drop(new File([], 'DCIM'));
+    expect(f.names()).not.toContain('startCheck');
+    expect(text($('.message'))).toContain('Dropping a folder needs the desktop app');
+    expect($('[data-path-form]')).not.toBeNull();
+  });
+});
+
+describe('progress', () => {
+  it('shows phase, counts, time left and a progress bar, from events of its own check only', async () => {
+    let resolveId: (id: number) => void = () => undefined;
+    const f = fakeApi({ startCheck: () => new Promise<number>((r) => (resolveId = r)) });
+    await mount(f);
+    buttonNamed('Try the demo shoot').click();
+    const bar = $('[role="progressbar"]')!;
+    expect(bar).not.toBeNull();
+    // An event before startCheck has answered is kept until its id is known.
+    f.emitProgress({ checkId: 7, phase: 'frames', done: 3, total: 36, secondsLeft: null });
+    resolveId(7);
+    await tick();
+    expect(text($('[data-count="frames"]'))).toBe('frames 3 / 36');
+    expect(text($('.eta'))).toBe('working out the time left…');
+    f.emitProgress({ checkId: 7, phase: 'frames', done: 12, total: 36, secondsLeft: 40, file: 'F12.jpg' });
+    f.emitProgress({ checkId: 99, phase: 'frames', done: 30, total: 36, secondsLeft: 1 });
+    expect(bar.getAttribute('aria-valuenow')).toBe('12');
+    expect(bar.getAttribute('aria-valuemax')).toBe('36');
+    expect(text($('.phase'))).toBe('Reading frames');
+    expect(text($('[data-count="frames"]'))).toBe('frames 12 / 36');
+    expect(text($('.eta'))).toBe('about 40 s left');
+    expect(text($('.current-file'))).toBe('F12.jpg');
+    f.emitProgress({ checkId: 7, phase: 'pairs', done: 4, total: 11, secondsLeft: 12 });
+    expect(text($('.phase'))).toBe('Matching pairs');
+    expect(text($('[data-count="frames"]'))).toBe('frames 12 / 36');
+    expect(text($('[data-count="pairs"]'))).toBe('pairs 4 / 11');
+    expect($('[role="progressbar"]')?.getAttribute('aria-valuenow')).toBe('4');
+    f.emitDone({ checkId: 7, report, error: null, cancelled: false });
+    expect($('[role="progressbar"]')).toBeNull();
+    expect($('[data-summary]')).not.toBeNull();
+    expect(document.querySelectorAll('[data-pair]').length).toBe(3);
+  });
+
+  it('cancels the check and goes back to the start screen', async () => {
+    const f = fakeApi();
+    await mount(f);
+    buttonNamed('Try the demo shoot').click();
+    await tick();
+    buttonNamed('Cancel').click();
+    expect(f.calls.at(-1)).toEqual({ name: 'cancelCheck', args: [7] });
+    expect(text($('.phase'))).toBe('Cancelling…');
+    f.emitDone({ checkId: 7, report: null, error: null, cancelled: true });
+    expect($('[data-start]')).not.toBeNull();
+    expect(text($('.message'))).toBe('Check cancelled.');
+  });
+
+  it('shows a failed check\'s error on the start screen', async () => {
+    const f = fakeApi();
+    await mount(f);
+    buttonNamed('Try the demo shoot').click();
+    await tick();
+    f.emitDone({ checkId: 7, report: null, error: 'folder not found', cancelled: false });
+    expect(text($('.message'))).toBe('The check stopped: folder not found');
+  });
+});
+
+describe('results and the budget panel', () => {
+  it('shows the summary and the strip with the report\'s verdicts', async () => {
+    const f = fakeApi();
+    await withResults(f);
+    expect($('[data-summary] [data-verdict]')?.getAttribute('data-verdict')).toBe('reshoot');
+    expect([...document.querySelectorAll('[data-pair]')].map((n) => [n.getAttribute('data-pair'), n.getAttribute('data-verdict')])).toEqual([[K12, 'reshoot'], [K23, 'ok'], [K34, 'weak']]);
+    expect(text($(`[data-pair="${K12}"]`))).toContain('15 %');
+    expect($<HTMLImageElement>('[data-frame="F2.jpg"] img')?.getAttribute('src')).toBe('seamscout-frame://frames/7/F2.jpg?max=320');
+  });
+
+  it('re-judges at once when the minimum overlap changes, calling no API but saveBudget', async () => {
+    const f = fakeApi();
+    await withResults(f);
+    const before = f.calls.length;
+    expect($('[name="reshootOverlap"]')?.getAttribute('value')).toBe('20');
+    type('reshootOverlap', '10');
+    // At once, before any save: 15 % is now above "reshoot below 10 %" but still under "weak below 30 %".
+    expect($(`[data-pair="${K12}"]`)?.getAttribute('data-verdict')).toBe('weak');
+    expect(text($(`[data-pair="${K12}"] .badge`))).toBe('weak');
+    expect($('[data-summary] [data-verdict]')?.getAttribute('data-verdict')).toBe('weak');
+    type('weakOverlap', '50');
+    expect($(`[data-pair="${K23}"]`)?.getAttribute('data-verdict')).toBe('weak');
+    await tick(5);
+    const after = f.calls.slice(before);
+    expect(after.map((c) => c.name)).toEqual(['saveBudget']);
+    expect(after[0].args[0]).toEqual({ ...defaultBudget, reshootOverlap: 0.1, weakOverlap: 0.5 });
+  });
+
+  it('shows resolveBudget\'s message beside a bad field and keeps the last good budget', async () => {
+    const f = fakeApi();
+    await withResults(f);
+    const before = f.calls.length;
+    type('weakOverlap', '150');
+    const error = $('[data-error-for="weakOverlap"]')!;
+    expect(error.hidden).toBe(false);
+    expect(text(error)).toBe('Expected a number from 0 to 100 (%) for weakOverlap but received "150"');
+    expect($('[name="weakOverlap"]')?.getAttribute('aria-invalid')).toBe('true');
+    expect($(`[data-pair="${K34}"]`)?.getAttribute('data-verdict')).toBe('weak');
+    type('weakOverlap', '30');
+    expect(error.hidden).toBe(true);
+    type('minInliers', 'many');
+    expect(text($('[data-error-for="minInliers"]'))).toBe('Expected a number from 0 to 10000 for minInliers but received "many"');
+    type('minInliers', '20');
+    type('reshootOverlap', '40');
+    expect(text($('[data-error-for="reshootOverlap"]'))).toBe('Expected reshootOverlap (40 %) not above weakOverlap (30 %)');
+    expect($(`[data-pair="${K12}"]`)?.getAttribute('data-verdict')).toBe('reshoot');
+    await tick(5);
+    // The only good edits restored the defaults; nothing else was asked of main.
+    expect(f.calls.slice(before).map((c) => c.name).every((n) => n === 'saveBudget')).toBe(true);
+    expect(f.calls.filter((c) => c.name === 'saveBudget').every((c) => JSON.stringify(c.args[0]) === JSON.stringify(defaultBudget))).toBe(true);
+  });
+
+  it('accepts a decimal comma, and restores the defaults with one button', async () => {
+    const f = fakeApi();
+    await withResults(f);
+    type('maxEvDiff', '0,05');
+    expect($(`[data-pair="${K12}"] [data-flag="exposure-jump"]`)).not.toBeNull();
+    buttonNamed('Defaults').click();
+    expect($<HTMLInputElement>('[name="maxEvDiff"]')?.value).toBe('0.5');
+    expect($(`[data-pair="${K12}"] [data-flag="exposure-jump"]`)).toBeNull();
+    await tick(5);
+    expect(f.calls.filter((c) => c.name === 'saveBudget').at(-1)?.args[0]).toEqual(defaultBudget);
+  });
+
+  it('loads the stored budget at start and judges the report by it', async () => {
+    const f = fakeApi({ budget: { ...defaultBudget, reshootOverlap: 0.1, weakOverlap: 0.14 } });
+    await withResults(f);
+    expect($<HTMLInputElement>('[name="reshootOverlap"]')?.value).toBe('10');
+    expect($<HTMLInputElement>('[name="weakOverlap"]')?.value).toBe('14');
+    expect($(`[data-pair="${K12}"]`)?.getAttribute('data-verdict')).toBe('ok');
+    expect($('[data-summary] [data-verdict]')?.getAttribute('data-verdict')).toBe('ok');
+  });
+});
+
+describe('keyboard and the pair detail', () => {
+  it('moves between pairs with the arrows, opens with Enter and goes back with Escape', async () => {
+    const f = fakeApi();
+    await withResults(f);
+    press('ArrowRight');
+    expect(document.activeElement?.getAttribute('data-pair')).toBe(K12);
+    expect($(`[data-pair="${K12}"]`)?.classList.contains('is-selected')).toBe(true);
+    press('ArrowRight');
+    press('ArrowRight');
+    press('ArrowRight');
+    expect(document.activeElement?.getAttribute('data-pair')).toBe(K34);
+    press('ArrowLeft');
+    expect(document.activeElement?.getAttribute('data-pair')).toBe(K23);
+    expect(document.querySelectorAll('.is-selected').length).toBe(1);
+
+    press('Enter');
+    expect(document.activeElement?.classList.contains('back')).toBe(true);
+    const detail = $('[data-detail]')!;
+    expect(detail.getAttribute('data-pair')).toBe(K23);
+    for (const m of ['overlap', 'inliers', 'matches', 'evDiff', 'rmsError']) expect($(`[data-detail] [data-measure="${m}"]`)).not.toBeNull();
+    expect(text($('[data-measure="overlap"] .numeral'))).toBe('45 %');
+    expect(f.calls.at(-1)).toEqual({ name: 'tiePoints', args: [7, 'F2.jpg', 'F3.jpg'] });
+    await tick();
+    expect(document.querySelectorAll('[data-detail] [data-tie]').length).toBe(3);
+    // Redrawn with its tie points, the detail keeps focus on its Back button.
+    expect(document.activeElement?.classList.contains('back')).toBe(true);
+    expect($('[data-detail] image')?.getAttribute('href')).toBe('seamscout-frame://frames/7/F2.jpg?max=1200');
+
+    press('Escape');
+    expect($('[data-detail]')).toBeNull();
+    expect(document.activeElement?.getAttribute('data-pair')).toBe(K23);
+    press('Escape');
+    expect($('[data-start]')).not.toBeNull();
+    buttonNamed('Back to the results').click();
+    expect($('[data-summary]')).not.toBeNull();
+  });
+
+  it('steps to the next pair inside the detail, and loads each pair\'s tie points once', async () => {
+    const f = fakeApi();
+    await withResults(f);
+    ($(`[data-pair="${K12}"]`) as HTMLElement).click();
+    expect($('[data-detail]')?.getAttribute('data-pair')).toBe(K12);
+    press('ArrowRight');
+    expect($('[data-detail]')?.getAttribute('data-pair')).toBe(K23);
+    press('ArrowLeft');
+    await tick();
+    expect(f.calls.filter((c) => c.name === 'tiePoints').map((c) => c.args.slice(1))).toEqual([['F1.jpg', 'F2.jpg'], ['F2.jpg', 'F3.jpg']]);
+    buttonNamed('Hide lines').click();
+    expect(document.querySelectorAll('[data-detail] .tie-line').length).toBe(0);
+    expect(document.querySelectorAll('[data-detail] [data-tie]').length).toBe(3);
+    buttonNamed('Back to the strip (Esc)').click();
+    expect($('[data-detail]')).toBeNull();
+    expect(document.activeElement?.getAttribute('data-pair')).toBe(K12);
+  });
+
+  it('leaves arrows and Escape to the budget fields while typing', async () => {
+    const f = fakeApi();
+    await withResults(f);
+    const input = $<HTMLInputElement>('[name="minInliers"]')!;
+    input.focus();
+    press('ArrowRight');
+    expect(document.querySelectorAll('.is-selected').length).toBe(0);
+    press('Escape');
+    expect($('[data-summary]')).not.toBeNull();
+  });
+
+  it('updates an open detail when the budget changes', async () => {
+    const f = fakeApi();
+    await withResults(f);
+    ($(`[data-pair="${K12}"]`) as HTMLElement).click();
+    expect($('[data-detail]')?.getAttribute('data-verdict')).toBe('reshoot');
+    type('reshootOverlap', '10');
+    expect($('[data-detail]')?.getAttribute('data-verdict')).toBe('weak');
+    expect(text($('[data-detail] [data-measure="overlap"] .limit'))).toBe('weak below 30 %, reshoot below 10 %');
+  });
+});
+
+describe('export and theme', () => {
+  it('exports each format with the current budget and shows the path written', async () => {
+    const f = fakeApi();
+    await withResults(f);
+    type('minInliers', '50');
+    ($('[data-export="graphml"]') as HTMLElement).click();
+    expect(f.calls.at(-1)).toEqual({ name: 'exportReport', args: [7, 'graphml', { ...defaultBudget, minInliers: 50 }] });
+    await tick();
+    expect(text($('[data-export-result]'))).toBe('Written: /home/me/shoot.graphml');
+    expect([...document.querySelectorAll('[data-export]')].map((b) => [b.getAttribute('data-export'), text(b)])).toEqual([
+      ['json', 'Export report (JSON)'], ['graphml', 'Export pair graph (GraphML)'], ['csv', 'Export pairs (CSV)'], ['dot', 'Export graph (DOT)'],
+    ]);
+  });
+
+  it('shows an export\'s error or its cancelling', async () => {
+    let answer: () => Promise<string | null> = () => Promise.reject(new Error('disk full'));
+    const f = fakeApi({ exportResult: () => answer() });
+    await withResults(f);
+    ($('[data-export="csv"]') as HTMLElement).click();
+    await tick();
+    expect(text($('[data-export-result]'))).toBe('Export failed: disk full');
+    answer = () => Promise.resolve(null);
+    ($('[data-export="dot"]') as HTMLElement).click();
+    await tick();
+    expect(text($('[data-export-result]'))).toBe('Export cancelled.');
+  });
+
+  it('toggles the theme and remembers it', async () => {
+    const f = fakeApi();
+    await mount(f);
+    const toggle = $('[data-theme-toggle]') as HTMLElement;
+    expect(text(toggle)).toBe('Dark theme');
+    toggle.click();
+    expect(document.documentElement.dataset.theme).toBe('dark');
+    expect(storage.get('seamscout.theme')).toBe('dark');
+    expect(text(toggle)).toBe('Light theme');
+    app?.destroy();
+    delete document.documentElement.dataset.theme;
+    app = mountApp(root, f.api, { storage: fakeStorage });
+    expect(document.documentElement.dataset.theme).toBe('dark');
+  });
+
+  it('lets go of its listeners when destroyed', async () => {
+    const f = fakeApi();
+    await mount(f);
+    expect(f.listeners()).toBe(2);
+    app?.destroy();
+    app = null;
+    expect(f.listeners()).toBe(0);
+    expect(root.childElementCount).toBe(0);
+  });
+});
+
+describe('hooks for the end-to-end tests', () => {
+  it('names each pair by one element only, in the strip or, while open, in the detail', async () => {
+    const f = fakeApi();
+    await withResults(f);
+    expect(document.querySelectorAll(`[data-pair="${K12}"]`).length).toBe(1);
+    expect(text($(`[data-pair="${K12}"]`))).toContain('15 % overlap 210 inliers +0.1 EV reshoot');
+    const thumb = $('[data-frame="F2.jpg"] img');
+    ($(`[data-pair="${K12}"]`) as HTMLElement).click();
+    expect([...document.querySelectorAll(`[data-pair="${K12}"]`)].map((n) => n.hasAttribute('data-detail'))).toEqual([true]);
+    expect(document.querySelectorAll('[data-frame]').length).toBe(0);
+    press('Escape');
+    expect(document.querySelectorAll(`[data-pair="${K12}"]`).length).toBe(1);
+    // The thumbnails come back as the same elements, so they do not load again.
+    expect($('[data-frame="F2.jpg"] img')).toBe(thumb);
+  });
+});
