@@ -3,7 +3,7 @@ import { fitHomographyDLT, fitHomographyMinimal, project, transferErrors } from 
 import { refineHomography } from './homography-refine.js';
 import type { RandomSource } from './random.js';
 import type { RansacModel, RansacParams, RansacResult } from './ransac.js';
-import { ransac } from './ransac.js';
+import { defaultRansacParams, ransac } from './ransac.js';
 
 export interface PlausibilityLimits {
   /** Largest local magnification (and smallest, as its inverse) a pair may show. */
@@ -106,7 +106,7 @@ export function fitHomography(c: Correspondences, params: Partial<HomographyFitP
   const found: RansacResult<Homography> | null = ransac(model, p.ransac, random);
   if (!found) return null;
   let h = found.model;
-  const threshold = p.ransac.threshold ?? 3;
+  const threshold = p.ransac.threshold ?? defaultRansacParams.threshold;
   const errors = new Float64Array(c.count);
   const collect = (hh: Homography): Int32Array => {
     transferErrors(hh, c, errors);

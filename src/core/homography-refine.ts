@@ -5,8 +5,8 @@ import { solveAugmented } from './linear-solve.js';
 /**
  * Levenberg-Marquardt refinement of a homography on the transfer error |b - H a|^2 over the given
  * correspondences (Hartley & Zisserman, Multiple View Geometry, sec. 4.2 and A6.2), in Hartley-
- * normalised coordinates with h33 = 1 and eight free parameters. Returns the refined homography, or
- * the input when no step lowers the cost.
+ * normalised coordinates with h33 = 1 and eight free parameters, each correspondence weighted by its
+ * `weight` when given. Returns the refined homography, or the input when no step lowers the cost.
  */
 export function refineHomography(h: Homography, c: Correspondences, idx: ArrayLike<number>, count: number, maxIterations = 10): Homography {
   if (count < 5) return h;
@@ -19,8 +19,10 @@ export function refineHomography(h: Homography, c: Correspondences, idx: ArrayLi
   let p = new Float64Array(8);
   for (let i = 0; i < 8; i++) p[i] = hn0[i] / hn0[8];
   const xs = new Float64Array(count), ys = new Float64Array(count), us = new Float64Array(count), vs = new Float64Array(count);
+  const wt = new Float64Array(count);
   for (let k = 0; k < count; k++) {
     const i = idx[k];
+    wt[k] = c.weight ? c.weight[i] : 1;
     xs[k] = ta[0] * c.ax[i] + ta[2];
     ys[k] = ta[4] * c.ay[i] + ta[5];
     us[k] = tb[0] * c.bx[i] + tb[2];
@@ -34,7 +36,7 @@ export function refineHomography(h: Homography, c: Correspondences, idx: ArrayLi
       if (w <= 1e-9) return Infinity;
       const dx = (q[0] * x + q[1] * y + q[2]) / w - us[k];
       const dy = (q[3] * x + q[4] * y + q[5]) / w - vs[k];
-      s += dx * dx + dy * dy;
+      s += wt[k] * (dx * dx + dy * dy);
     }
     return s;
   };
@@ -59,9 +61,10 @@ export function refineHomography(h: Homography, c: Correspondences, idx: ArrayLi
       const iw = 1 / w;
       jx[0] = x * iw; jx[1] = y * iw; jx[2] = iw; jx[3] = 0; jx[4] = 0; jx[5] = 0; jx[6] = -x * px * iw; jx[7] = -y * px * iw;
       jy[0] = 0; jy[1] = 0; jy[2] = 0; jy[3] = x * iw; jy[4] = y * iw; jy[5] = iw; jy[6] = -x * py * iw; jy[7] = -y * py * iw;
+      const wk = wt[k];
       for (let a = 0; a < 8; a++) {
-        jtr[a] += jx[a] * rx + jy[a] * ry;
-        for (let b = a; b < 8; b++) jtj[a * 8 + b] += jx[a] * jx[b] + jy[a] * jy[b];
+        jtr[a] += wk * (jx[a] * rx + jy[a] * ry);
+        for (let b = a; b < 8; b++) jtj[a * 8 + b] += wk * (jx[a] * jx[b] + jy[a] * jy[b]);
       }
     }
     let improved = false;

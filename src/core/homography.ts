@@ -11,6 +11,8 @@ export interface Correspondences {
   readonly ay: Float64Array;
   readonly bx: Float64Array;
   readonly by: Float64Array;
+  /** Optional weight of each correspondence in least-squares refinement (inverse variance). */
+  readonly weight?: Float64Array;
 }
 
 export function identity(): Homography {
@@ -38,10 +40,13 @@ export function invert(h: ArrayLike<number>): Homography | null {
   return inv;
 }
 
-/** Scales h so that h[8] = 1 (when h[8] is not near zero), for comparison and reporting. */
+/**
+ * Scales h so that |h[8]| = 1 (when h[8] is not near zero), for comparison and reporting. The sign
+ * is kept: it says on which side of the camera the data lie (see orientPositive).
+ */
 export function normalise(h: ArrayLike<number>): Homography {
   const out = Float64Array.from(h);
-  const s = Math.abs(out[8]) > 1e-12 ? out[8] : Math.hypot(...out);
+  const s = Math.abs(out[8]) > 1e-12 ? Math.abs(out[8]) : Math.hypot(...out);
   for (let i = 0; i < 9; i++) out[i] /= s;
   return out;
 }

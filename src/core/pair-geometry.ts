@@ -1,3 +1,4 @@
+import { patchSize } from './binary-descriptor.js';
 import type { Features } from './features.js';
 import type { Correspondences, Homography } from './homography.js';
 import type { HomographyFitParams } from './homography-estimator.js';
@@ -48,8 +49,12 @@ export function passesVerification(inliers: number, matchesInOverlap: number): b
 
 export function correspondencesOf(fa: Features, fb: Features, m: Matches): Correspondences {
   const n = m.count;
-  const c = { count: n, ax: new Float64Array(n), ay: new Float64Array(n), bx: new Float64Array(n), by: new Float64Array(n) };
+  const c = { count: n, ax: new Float64Array(n), ay: new Float64Array(n), bx: new Float64Array(n), by: new Float64Array(n), weight: new Float64Array(n) };
   for (let i = 0; i < n; i++) {
+    // Keypoints from coarser pyramid levels are located less precisely: weight by inverse variance,
+    // taking the localisation error as proportional to the level's pixel size.
+    const sa = fa.keypoints.size[m.a[i]] / patchSize, sb = fb.keypoints.size[m.b[i]] / patchSize;
+    c.weight[i] = 2 / (sa * sa + sb * sb);
     c.ax[i] = fa.keypoints.x[m.a[i]];
     c.ay[i] = fa.keypoints.y[m.a[i]];
     c.bx[i] = fb.keypoints.x[m.b[i]];

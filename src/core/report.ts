@@ -154,6 +154,6 @@ export const defaultBudget: MatchBudget = {
   reshootOverlap: 0.2,
   weakOverlap: 0.3,
   maxEvDiff: 0.5,
-  minSharpnessRatio: 0.6,
+  minSharpnessRatio: 0.65,
   maxBracketShiftPx: 4,
 };

@@ -5,9 +5,13 @@ import { detectAndDescribe } from '../core/features.js';
 import { estimatePairGeometry } from '../core/pair-geometry.js';
 import { checkCommand, checkUsage } from './check-command.js';
 import { decodeForAnalysis } from './decode.js';
+import { demoCommand } from './demo-command.js';
+import { ensureDemoShoot } from './demo-shoot.js';
+import { progressLine } from './summary.js';
 
 const usage = `Usage:
   seamscout check [folder] [options]   check a shot sequence (the demo shoot when no folder is given)
+  seamscout demo <folder> [options]    write a demo shoot with its truth file (see seamscout demo --help)
   seamscout pair <frameA> <frameB>     match two frames and print overlap, inliers and EV difference
   seamscout help [command]             this text, or a command's options
 
@@ -42,6 +46,16 @@ async function pairCommand(args: string[]): Promise<number> {
   return g.homography ? 0 : 1;
 }
 
+/** The demo shoot, written on first use with a progress line on a terminal. */
+function demoFolder(): Promise<string> {
+  const tty = process.stderr.isTTY;
+  return ensureDemoShoot((_file, done, total) => {
+    if (tty) process.stderr.write(progressLine('demo', done, total));
+  }).finally(() => {
+    if (tty) process.stderr.write('\r\x1b[K');
+  });
+}
+
 export async function main(argv: string[]): Promise<number> {
   const [command, ...rest] = argv;
   if (!command || command === '--help' || command === 'help') {
@@ -50,8 +64,9 @@ export async function main(argv: string[]): Promise<number> {
   }
   try {
     if (command === 'pair') return await pairCommand(rest);
-    if (command === 'check') return await checkCommand(rest);
-    process.stderr.write(`Expected a command (check, pair) but received ${command}\n\n${usage}`);
+    if (command === 'check') return await checkCommand(rest, { demoFolder });
+    if (command === 'demo') return await demoCommand(rest);
+    process.stderr.write(`Expected a command (check, demo, pair) but received ${command}\n\n${usage}`);
     return 2;
   } catch (err) {
     process.stderr.write(`seamscout: ${(err as Error).message}\n`);

@@ -9,7 +9,7 @@ import { cacheDir } from './user-dirs.js';
 import { writeFileAtomic } from './write-file.js';
 
 /** Bump when the analysis changes in a way the parameters do not show. */
-const analysisVersion = 1;
+const analysisVersion = 2;
 
 export interface FeatureCache {
   get(file: ScannedFile, maxSide: number): Promise<FrameAnalysis | null>;
@@ -30,7 +30,7 @@ export function createFeatureCache(dir = join(cacheDir(), 'features')): FeatureC
     async get(file, maxSide) {
       try {
         const value = deserialize(await readFile(join(dir, `${keyOf(file, maxSide)}.bin`))) as FrameAnalysis;
-        return value && value.features && value.thumb ? value : null;
+        return value && value.features && value.image ? value : null;
       } catch {
         return null;
       }

@@ -1,7 +1,12 @@
 import { exposureDifference } from '../core/exposure.js';
 import type { Features, FeatureParams } from '../core/features.js';
 import { detectAndDescribe } from '../core/features.js';
-import { multiply, invert } from '../core/homography.js';
+import type { Homography } from '../core/homography.js';
+import { transferErrors } from '../core/homography.js';
+import { isPlausible } from '../core/homography-estimator.js';
+import { refineHomography } from '../core/homography-refine.js';
+import { overlapRegions } from '../core/overlap.js';
+import { refineTiePoints } from '../core/tie-point-refine.js';
 import type { GrayImage } from '../core/image.js';
 import { estimatePairGeometry } from '../core/pair-geometry.js';
 import { sharpness } from '../core/sharpness.js';
@@ -12,8 +17,8 @@ export interface FrameAnalysis {
   readonly fullWidth: number;
   readonly fullHeight: number;
   readonly features: Features;
-  /** The analysis image at half size, for brightness measures. */
-  readonly thumb: GrayImage;
+  /** The analysis image, for refining tie points and measuring brightness. */
+  readonly image: GrayImage;
   readonly sharpness: number;
 }
 
@@ -31,55 +36,66 @@ export interface PairAnalysis {
   readonly noModel: string | null;
 }
 
-function halve(img: GrayImage): GrayImage {
-  const w = img.width >> 1, h = img.height >> 1;
-  const out = new Uint8Array(w * h);
-  const s = img.data, W = img.width;
-  for (let y = 0; y < h; y++)
-    for (let x = 0; x < w; x++) {
-      const o = 2 * y * W + 2 * x;
-      out[y * w + x] = (s[o] + s[o + 1] + s[o + W] + s[o + W + 1] + 2) >> 2;
-    }
-  return { width: w, height: h, data: out };
-}
-
 /** Decodes a frame at the analysis size and extracts everything later steps need from it. */
 export async function analyseFrameFile(path: string, maxSide: number, params: Partial<FeatureParams> = {}): Promise<FrameAnalysis> {
   const decoded = await decodeForAnalysis(path, maxSide);
   const features = detectAndDescribe(decoded.image, params);
-  return { fullWidth: decoded.fullWidth, fullHeight: decoded.fullHeight, features, thumb: halve(decoded.image), sharpness: sharpness(decoded.image) };
-}
-
-/** Analysis pixel to thumbnail pixel (half size, pixel centres at integers). */
-function toThumb(an: Features, thumb: GrayImage): Float64Array {
-  const sx = thumb.width / an.width, sy = thumb.height / an.height;
-  return Float64Array.of(sx, 0, 0.5 * sx - 0.5, 0, sy, 0.5 * sy - 0.5, 0, 0, 1);
+  return { fullWidth: decoded.fullWidth, fullHeight: decoded.fullHeight, features, image: decoded.image, sharpness: sharpness(decoded.image) };
 }
 
 /** Matches two analysed frames and measures overlap and exposure difference. */
 export function analysePair(a: FrameAnalysis, b: FrameAnalysis): PairAnalysis {
   const g = estimatePairGeometry(a.features, b.features);
   let evDiff: number | null = null;
-  const tie: number[] = [];
+  let tie = new Float32Array(0);
+  let homography: Homography | null = g.homography;
+  let overlap = g.overlap;
+  let rmsError = g.rmsError;
   if (g.homography) {
-    const ta = toThumb(a.features, a.thumb), tb = toThumb(b.features, b.thumb);
-    const hThumb = multiply(multiply(tb, g.homography), invert(ta)!);
-    evDiff = exposureDifference(a.thumb, b.thumb, hThumb, { step: 2 })?.ev ?? null;
     const ka = a.features.keypoints, kb = b.features.keypoints;
-    for (let i = 0; i < g.matches.count; i++) {
-      if (!g.inlierMask[i]) continue;
-      tie.push(ka.x[g.matches.a[i]], ka.y[g.matches.a[i]], kb.x[g.matches.b[i]], kb.y[g.matches.b[i]]);
+    const idx: number[] = [];
+    for (let i = 0; i < g.matches.count; i++) if (g.inlierMask[i]) idx.push(i);
+    const ax = Float64Array.from(idx, (i) => ka.x[g.matches.a[i]]);
+    const ay = Float64Array.from(idx, (i) => ka.y[g.matches.a[i]]);
+    const refined = refineTiePoints(a.image, b.image, g.homography, ax, ay);
+    const keep = idx.map((_, k) => k).filter((k) => refined.score[k] > 0);
+    if (keep.length >= Math.max(12, 0.5 * idx.length)) {
+      const c = {
+        count: keep.length,
+        ax: Float64Array.from(keep, (k) => ax[k]),
+        ay: Float64Array.from(keep, (k) => ay[k]),
+        bx: Float64Array.from(keep, (k) => refined.bx[k]),
+        by: Float64Array.from(keep, (k) => refined.by[k]),
+      };
+      const all = Int32Array.from(keep, (_, k) => k);
+      const h = refineHomography(g.homography, c, all, all.length, 20);
+      const errors = new Float64Array(c.count);
+      transferErrors(h, c, errors);
+      const rms = Math.sqrt(errors.reduce((s, e) => s + e, 0) / c.count);
+      const cx = c.ax.reduce((t, v) => t + v, 0) / c.count, cy = c.ay.reduce((t, v) => t + v, 0) / c.count;
+      if (Number.isFinite(rms) && isPlausible(h, cx, cy)) {
+        homography = h;
+        rmsError = rms;
+        overlap = overlapRegions(h, a.features.width, a.features.height, b.features.width, b.features.height).overlap;
+        tie = new Float32Array(4 * c.count);
+        for (let k = 0; k < c.count; k++) tie.set([c.ax[k], c.ay[k], c.bx[k], c.by[k]], 4 * k);
+      }
     }
+    if (tie.length === 0) {
+      tie = new Float32Array(4 * idx.length);
+      idx.forEach((i, k) => tie.set([ka.x[g.matches.a[i]], ka.y[g.matches.a[i]], kb.x[g.matches.b[i]], kb.y[g.matches.b[i]]], 4 * k));
+    }
+    evDiff = exposureDifference(a.image, b.image, homography!, { step: 4 })?.ev ?? null;
   }
   return {
     matches: g.matches.count,
     inliers: g.inliers,
     matchesInOverlap: g.matchesInOverlap,
-    overlap: g.overlap,
-    homography: g.homography ? Array.from(g.homography) : null,
-    rmsError: g.rmsError,
+    overlap,
+    homography: homography ? Array.from(homography) : null,
+    rmsError,
     evDiff,
-    tiePoints: Float32Array.from(tie),
+    tiePoints: tie,
     noModel: g.noModel,
   };
 }

@@ -1,0 +1,143 @@
+// End to end: the app served by the local browser host, driven in Debian's Chromium with
+// playwright-core (no browser download). Opens the demo shoot, waits for the analysis, finds each
+// planted problem flagged (the demo's own truth file says which), opens a flagged pair, changes the
+// minimum overlap and watches the verdict change, and exports GraphML to a file. Screenshots go to
+// test-results/.
+import { existsSync, mkdirSync, readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import type { Browser, Page } from 'playwright-core';
+import { chromium } from 'playwright-core';
+import { build } from 'vite';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { DemoTruth } from '../src/core/demo-truth.js';
+import type { BrowserHost } from '../src/main/browser-host.js';
+import { startBrowserHost } from '../src/main/browser-host.js';
+import { writeDemoShoot } from '../src/main/demo-writer.js';
+import { projectRoot, tempDir } from './helpers/cli.js';
+
+const chromiumPath = '/usr/bin/chromium';
+const shots = join(projectRoot, 'test-results');
+
+let host: BrowserHost;
+let browser: Browser;
+let page: Page;
+let truth: DemoTruth;
+let downloads: string;
+
+beforeAll(async () => {
+  if (!existsSync(chromiumPath)) throw new Error(`End-to-end tests need Debian's Chromium at ${chromiumPath}: apt-get install chromium (.ci/run does)`);
+  mkdirSync(shots, { recursive: true });
+  const root = tempDir('seamscout-e2e-');
+  process.env.SEAMSCOUT_CONFIG_DIR = join(root, 'config');
+  process.env.SEAMSCOUT_CACHE_DIR = join(root, 'cache');
+  downloads = join(root, 'downloads');
+  const assets = join(root, 'page');
+  await build({ configFile: join(projectRoot, 'vite.renderer.config.ts'), build: { outDir: assets, emptyOutDir: true }, logLevel: 'error' });
+  const demo = await writeDemoShoot(join(root, 'demo'), { width: 2400, height: 1600 });
+  truth = demo.truth;
+  host = await startBrowserHost({ assets, demoFolder: async () => demo.folder, version: 'e2e', threads: 2 });
+  browser = await chromium.launch({
+    executablePath: chromiumPath,
+    headless: true,
+    args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run', '--disable-quic'],
+  });
+  const context = await browser.newContext({ viewport: { width: 1600, height: 1000 }, acceptDownloads: true, deviceScaleFactor: 1 });
+  page = await context.newPage();
+  page.on('pageerror', (err) => console.error('page error:', err.message));
+}, 240_000);
+
+afterAll(async () => {
+  await browser?.close();
+  await host?.close();
+});
+
+describe('the app in a real browser', () => {
+  it('opens the demo shoot and flags every planted problem', async () => {
+    await page.goto(host.url);
+    await page.getByRole('button', { name: 'Try the demo shoot' }).click();
+    await expect.poll(() => page.locator('[role="progressbar"]').count(), { timeout: 20_000 }).toBeGreaterThan(0);
+    await page.screenshot({ path: join(shots, 'progress.png') });
+    await page.locator('[data-summary]').waitFor({ timeout: 180_000 });
+    await page.waitForLoadState('networkidle');
+    // The thumbnails come through the host's frame route (token, folder checks and all); they load
+    // lazily, so those in view have loaded and none is broken.
+    const states = await page.locator('[data-frame] img').evaluateAll((imgs) => imgs.map((i) => ({ done: (i as HTMLImageElement).complete, width: (i as HTMLImageElement).naturalWidth })));
+    expect(states.length).toBe(truth.frames.length);
+    expect(states.filter((s) => s.width > 0).length).toBeGreaterThanOrEqual(3);
+    await page.screenshot({ path: join(shots, 'strip.png'), fullPage: true });
+    expect(await page.locator('[data-summary] [data-verdict]').first().getAttribute('data-verdict')).toBe('reshoot');
+
+    for (const problem of truth.problems) {
+      if (problem.code === 'low-overlap') {
+        const [a, b] = problem.frames;
+        const link = page.locator(`[data-pair="${a}|${b}"]`);
+        expect(await link.getAttribute('data-verdict')).toBe('reshoot');
+        expect(await link.innerText()).toMatch(/low.overlap|overlap/i);
+      } else if (problem.code === 'exposure-jump') {
+        // The jumped station's reference frame: its links to both neighbours say so.
+        const jumped = problem.frames.find((f) => truth.stations.some((s) => s.reference === f))!;
+        const links = page.locator(`[data-pair$="|${jumped}"][data-kind="neighbour"]`);
+        expect(await links.count()).toBe(1);
+        expect(await links.first().innerText()).toMatch(/exposure/i);
+        expect(['weak', 'reshoot']).toContain(await links.first().getAttribute('data-verdict'));
+      } else {
+        // Frame problems show on the frame tiles, in words.
+        const words = { blurred: /blurred/i, 'incomplete-bracket': /incomplete/i, 'bracket-drift': /drift|moved/i }[problem.code]!;
+        const flagged = problem.code === 'bracket-drift' ? problem.frames.slice(0, 1) : problem.frames;
+        for (const file of flagged) {
+          const tile = page.locator(`[data-frame="${file}"]`);
+          expect(await tile.getAttribute('data-verdict'), `${problem.code} on ${file}`).not.toBe('ok');
+          expect(await tile.innerText()).toMatch(words);
+        }
+      }
+    }
+  }, 240_000);
+
+  it('opens a flagged pair and reads its numbers', async () => {
+    const gap = truth.problems.find((p) => p.code === 'low-overlap')!;
+    const [a, b] = gap.frames;
+    await page.locator(`[data-pair="${a}|${b}"]`).click();
+    const detail = page.locator('[data-detail]');
+    await detail.waitFor();
+    expect(await detail.getAttribute('data-pair')).toBe(`${a}|${b}`);
+    const overlap = await detail.locator('[data-measure="overlap"]').innerText();
+    const truthOverlap = truth.pairs.find((p) => p.a === a && p.b === b)!.overlap;
+    const shown = Number(/(\d+(?:\.\d+)?)\s*%/.exec(overlap)![1]) / 100;
+    expect(Math.abs(shown - truthOverlap)).toBeLessThan(0.03);
+    expect(await detail.locator('[data-measure="inliers"]').innerText()).toMatch(/\d/);
+    await page.waitForLoadState('networkidle');
+    await page.screenshot({ path: join(shots, 'detail.png') });
+    await page.keyboard.press('Escape');
+    await page.locator('[data-summary]').waitFor();
+  }, 60_000);
+
+  it('re-judges at once when the minimum overlap changes', async () => {
+    // Pick a neighbour link that is ok now; require more overlap than it has.
+    const links = page.locator('[data-kind="neighbour"][data-verdict="ok"]');
+    const first = links.first();
+    const pairName = (await first.getAttribute('data-pair'))!;
+    const input = page.locator('input[name="reshootOverlap"]');
+    await page.locator('input[name="weakOverlap"]').fill('90');
+    await input.fill('80');
+    await input.press('Tab');
+    await expect.poll(() => page.locator(`[data-pair="${pairName}"]`).getAttribute('data-verdict'), { timeout: 5000 }).toBe('reshoot');
+    await page.screenshot({ path: join(shots, 'budget.png') });
+    await input.fill('20');
+    await page.locator('input[name="weakOverlap"]').fill('30');
+    await page.locator('input[name="weakOverlap"]').press('Tab');
+    await expect.poll(() => page.locator(`[data-pair="${pairName}"]`).getAttribute('data-verdict'), { timeout: 5000 }).toBe('ok');
+  }, 60_000);
+
+  it('exports GraphML and the file is written', async () => {
+    const download = page.waitForEvent('download');
+    await page.locator('[data-export="graphml"]').click();
+    const d = await download;
+    const path = join(downloads, d.suggestedFilename());
+    await d.saveAs(path);
+    const xml = readFileSync(path, 'utf8');
+    expect(xml).toMatch(/^<\?xml/);
+    expect(xml).toContain('<graphml xmlns="http://graphml.graphdrawing.org/xmlns"');
+    expect((xml.match(/<node /g) ?? []).length).toBe(truth.frames.length);
+    await expect.poll(() => page.locator('[data-export-result]').innerText()).toMatch(/graphml/i);
+  }, 60_000);
+});
