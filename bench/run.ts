@@ -11,6 +11,7 @@ import { matchDescriptors } from '../src/core/match.js';
 import { correspondencesOf, estimatePairGeometry } from '../src/core/pair-geometry.js';
 import { buildPyramid } from '../src/core/pyramid.js';
 import { createScratchPool } from '../src/core/scratch.js';
+import { refineTiePoints } from '../src/core/tie-point-refine.js';
 import { meanCornerError } from '../test/helpers/images.js';
 import { loadOpenCV } from '../test/helpers/opencv.js';
 import { benchPair } from './frames.js';
@@ -71,6 +72,12 @@ for (let r = 0; r < repeats; r++) {
   const [fit, tFit] = time(() => fitHomography(c));
   record('ours: RANSAC + refit + LM', tFit);
   record('ours: match + RANSAC', tMatch + tFit);
+  if (fit) {
+    const idx: number[] = [];
+    for (let i = 0; i < c.count; i++) if (fit.inliers[i]) idx.push(i);
+    const [, tRefine] = time(() => refineTiePoints(a, b, fit.homography, Float64Array.from(idx, (i) => c.ax[i]), Float64Array.from(idx, (i) => c.ay[i])));
+    record('ours: refine tie points on pixels', tRefine);
+  }
   if (fit) {
     oursError = meanCornerError(fit.homography, truth, a.width, a.height);
     oursInliers = fit.inlierCount;

@@ -43,7 +43,13 @@ export async function analyseFrameFile(path: string, maxSide: number, params: Pa
   return { fullWidth: decoded.fullWidth, fullHeight: decoded.fullHeight, features, image: decoded.image, sharpness: sharpness(decoded.image) };
 }
 
-/** Matches two analysed frames and measures overlap and exposure difference. */
+/** Most tie points refined per pair. */
+export const refinedTiePoints = 300;
+
+/**
+ * Matches two analysed frames, refines the inlier tie points on the pixels and refits the
+ * homography to them, and measures overlap and exposure difference.
+ */
 export function analysePair(a: FrameAnalysis, b: FrameAnalysis): PairAnalysis {
   const g = estimatePairGeometry(a.features, b.features);
   let evDiff: number | null = null;
@@ -55,11 +61,14 @@ export function analysePair(a: FrameAnalysis, b: FrameAnalysis): PairAnalysis {
     const ka = a.features.keypoints, kb = b.features.keypoints;
     const idx: number[] = [];
     for (let i = 0; i < g.matches.count; i++) if (g.inlierMask[i]) idx.push(i);
-    const ax = Float64Array.from(idx, (i) => ka.x[g.matches.a[i]]);
-    const ay = Float64Array.from(idx, (i) => ka.y[g.matches.a[i]]);
+    // Refining costs about 0.05 ms a point; a few hundred spread over the overlap pin the mapping.
+    const stride = Math.max(1, Math.ceil(idx.length / refinedTiePoints));
+    const chosen = idx.filter((_, k) => k % stride === 0);
+    const ax = Float64Array.from(chosen, (i) => ka.x[g.matches.a[i]]);
+    const ay = Float64Array.from(chosen, (i) => ka.y[g.matches.a[i]]);
     const refined = refineTiePoints(a.image, b.image, g.homography, ax, ay);
-    const keep = idx.map((_, k) => k).filter((k) => refined.score[k] > 0);
-    if (keep.length >= Math.max(12, 0.5 * idx.length)) {
+    const keep = chosen.map((_, k) => k).filter((k) => refined.score[k] > 0);
+    if (keep.length >= Math.max(12, 0.5 * chosen.length)) {
       const c = {
         count: keep.length,
         ax: Float64Array.from(keep, (k) => ax[k]),
