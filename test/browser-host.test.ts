@@ -2,12 +2,13 @@
 // local server): 127.0.0.1 only, a per-run token, our own Host and Origin only, nothing served
 // outside its assets and the check's frames.
 import { request } from 'node:http';
-import { mkdirSync, writeFileSync } from 'node:fs';
+import { copyFileSync, mkdirSync, symlinkSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { BrowserHost } from '../src/main/browser-host.js';
 import { startBrowserHost } from '../src/main/browser-host.js';
 import { tempDir } from './helpers/cli.js';
+import { externalFixture } from './helpers/images.js';
 
 let host: BrowserHost;
 let assets: string;
@@ -86,4 +87,34 @@ describe('browser host', () => {
     const t = `t=${host.token}`;
     for (const path of ['/frame/1/..%2Fsecret.txt', '/frame/1/%2Fetc%2Fpasswd', '/frame/999/x.jpg']) expect((await get(`${path}?${t}`)).status, path).toBe(404);
   });
+});
+
+describe('frames of a check through the host', () => {
+  it('serves the check\'s own frames and refuses every way out of its folder', async () => {
+    const root = tempDir('seamscout-bridge-');
+    const card = join(root, 'card');
+    mkdirSync(card);
+    copyFileSync(externalFixture('leuvenA.jpg'), join(card, 'a.jpg'));
+    copyFileSync(externalFixture('leuvenB.jpg'), join(card, 'b.jpg'));
+    // A link inside the card that leads out of it, to a picture beside the card.
+    copyFileSync(externalFixture('graf1.png'), join(root, 'outside.png'));
+    symlinkSync(join(root, 'outside.png'), join(card, 'escape.png'));
+    const headers = { 'x-seamscout-token': host.token, 'content-type': 'application/json' };
+    const started = await get('/api/startCheck', headers, 'POST', JSON.stringify([{ folder: card }]));
+    const id = JSON.parse(started.body).ok as number;
+    expect(typeof id).toBe('number');
+    // Wait for the check to finish (its frames resolve only then).
+    const t = `t=${host.token}`;
+    let ok = 0;
+    for (let i = 0; i < 200 && ok !== 200; i++) {
+      await new Promise((r) => setTimeout(r, 100));
+      ok = (await get(`/frame/${id}/a.jpg?max=200&${t}`)).status;
+    }
+    expect(ok).toBe(200);
+    for (const name of ['escape.png', '..%2Foutside.png', '%2E%2E%2Foutside.png', encodeURIComponent(join(root, 'outside.png')), 'sub%2F..%2F..%2Foutside.png', 'a.jpg%00.png']) {
+      expect((await get(`/frame/${id}/${name}?${t}`)).status, name).toBe(404);
+    }
+    // An older check's frames stop resolving once a new one starts.
+    expect((await get(`/frame/${id + 1}/a.jpg?${t}`)).status).toBe(404);
+  }, 60_000);
 });

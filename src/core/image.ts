@@ -29,3 +29,14 @@ export function toFloatImage(image: GrayImage, out?: Float32Array): FloatImage {
   for (let i = 0; i < n; i++) data[i] = src[i];
   return { width: image.width, height: image.height, data };
 }
+
+/** A fingerprint of a frame's pixels (64-bit FNV-1a over size and data, as hex): equal for copies. */
+export function imageFingerprint(image: GrayImage): string {
+  let h1 = 0x811c9dc5 ^ image.width, h2 = 0x01000193 ^ image.height;
+  const d = image.data;
+  for (let i = 0; i < d.length; i++) {
+    h1 = Math.imul(h1 ^ d[i], 0x01000193);
+    h2 = Math.imul(h2 ^ d[i] ^ (i & 0xff), 0x01000193);
+  }
+  return (h1 >>> 0).toString(16).padStart(8, '0') + (h2 >>> 0).toString(16).padStart(8, '0');
+}

@@ -16,9 +16,13 @@ export type FlagCode =
   | 'blurred'
   | 'incomplete-bracket'
   | 'bracket-drift'
-  | 'no-closure';
+  | 'no-closure'
+  | 'size-mismatch';
 
-export type SkipCode = 'unreadable' | 'too-large' | 'not-an-image';
+export type SkipCode = 'unreadable' | 'too-large' | 'not-an-image' | 'duplicate';
+
+/** Problems of the folder as a whole. */
+export type FolderCode = 'no-frames' | 'one-frame';
 
 export type PairKind = 'neighbour' | 'closure' | 'bracket' | 'other';
 
@@ -47,6 +51,8 @@ export interface FrameMeasure {
   /** Contrast-independent sharpness (fine over coarse gradient energy); compared within the sequence. */
   readonly sharpness: number;
   readonly keypoints: number;
+  /** Fingerprint of the decoded pixels: equal for copies of one picture. */
+  readonly fingerprint?: string;
 }
 
 export interface StationMeasure {
@@ -96,6 +102,11 @@ export interface Analysis {
   readonly sweepDeg: number | null;
 }
 
+export interface FolderProblem {
+  readonly code: FolderCode;
+  readonly advice: string;
+}
+
 export interface Finding {
   readonly verdict: Verdict;
   readonly reasons: readonly FlagCode[];
@@ -126,6 +137,7 @@ export interface Report {
   readonly stations: readonly ReportStation[];
   readonly pairs: readonly ReportPair[];
   readonly skipped: readonly SkippedFile[];
+  readonly folderProblems: readonly FolderProblem[];
 }
 
 /** The minimum evidence a pair needs, and the other thresholds verdicts are judged by. */

@@ -1,4 +1,4 @@
-import type { Analysis, FlagCode, Finding, FrameSettings, MatchBudget, PairMeasure, Report, ReportFrame, ReportPair, ReportStation, StationMeasure, Verdict } from './report.js';
+import type { Analysis, FlagCode, Finding, FolderProblem, FrameSettings, MatchBudget, PairMeasure, Report, ReportFrame, ReportPair, ReportStation, StationMeasure, Verdict } from './report.js';
 import { reportSchema } from './report.js';
 import { modalPattern, patternOf } from './stations.js';
 
@@ -167,6 +167,21 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
     return { ...p, verdict: 'ok', reasons: [], advice: [] };
   });
 
+  // Frame sizes: photographers shoot a sequence at one size (common practice); another size is a
+  // changed setting, a crop, or a stray frame.
+  const sizeKey = (f: { width: number; height: number }): string => `${Math.max(f.width, f.height)}x${Math.min(f.width, f.height)}`;
+  const usualSize = mode(analysis.frames.map(sizeKey));
+  if (analysis.frames.length >= 3 && usualSize) {
+    for (const f of analysis.frames) {
+      if (sizeKey(f) === usualSize) continue;
+      frameFindings.get(f.file)?.add('size-mismatch', 'weak', `${f.file} is ${f.width}x${f.height} while the sequence is ${usualSize.replace('x', ' x ')}: a changed setting, a crop or a stray frame`);
+    }
+  }
+
+  const folderProblems: FolderProblem[] = [];
+  if (analysis.frames.length === 0) folderProblems.push({ code: 'no-frames', advice: 'no frame could be checked in this folder: is it the right folder, and are the files images?' });
+  else if (analysis.frames.length === 1) folderProblems.push({ code: 'one-frame', advice: 'only one frame could be checked: a panorama needs at least two overlapping frames' });
+
   const frames: ReportFrame[] = analysis.frames.map((f) => {
     const found = frameFindings.get(f.file)!.done();
     return { ...f, station: stationOf.get(f.file)?.index ?? -1, flags: found.reasons, ...found };
@@ -179,7 +194,7 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
   const problems = [...pairs.map((p) => p.verdict), ...frames.map((f) => f.verdict)];
   return {
     schema: reportSchema,
-    verdict: worst(...verdicts, analysis.skipped.length ? 'weak' : 'ok'),
+    verdict: worst(...verdicts, analysis.skipped.length || folderProblems.length ? 'weak' : 'ok'),
     folder: analysis.folder,
     budget,
     sweepDeg: analysis.sweepDeg,
@@ -194,6 +209,7 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
     stations,
     pairs,
     skipped: analysis.skipped,
+    folderProblems,
   };
 }
 

@@ -1,7 +1,7 @@
 import { sampleFeatures, screenPairs } from '../core/candidate-pairs.js';
 import { invert, multiply, normalise, project } from '../core/homography.js';
 import { shootingOrder } from '../core/natural-order.js';
-import type { Analysis, FrameMeasure, PairKind, PairMeasure, SkipCode, SkippedFile, StationMeasure } from '../core/report.js';
+import type { Analysis, FrameMeasure, PairKind, PairMeasure, SkippedFile, StationMeasure } from '../core/report.js';
 import { analysisToFull } from '../core/resolution.js';
 import { groupStations } from '../core/stations.js';
 import { focalPxFrom35mm, rotationAngleDeg } from '../core/sweep.js';
@@ -60,13 +60,18 @@ interface LoadedFrame {
   readonly data: FrameAnalysis;
 }
 
-function skipOf(file: string, err: unknown): SkippedFile {
+/** A plain reason for a file that could not be analysed, from what the decoder or the system said. */
+export function skipOf(file: string, err: unknown, size?: number): SkippedFile {
   const message = err instanceof Error ? err.message : String(err);
-  let code: SkipCode = 'unreadable';
-  if (/pixel limit/i.test(message)) code = 'too-large';
-  else if (/unsupported image format|bad seek|not a known file format|improper image header/i.test(message)) code = 'not-an-image';
-  const reason = code === 'too-large' ? 'too large to decode safely' : code === 'not-an-image' ? 'not an image sharp can read' : `cannot be read: ${message.split('\n')[0]}`;
-  return { file, code, reason };
+  const code = (err as NodeJS.ErrnoException)?.code;
+  if (size === 0) return { file, code: 'unreadable', reason: 'empty file (0 bytes): copy it from the card again' };
+  if (code === 'ENOENT') return { file, code: 'unreadable', reason: 'the file went away during the check' };
+  if (code === 'EACCES' || code === 'EPERM') return { file, code: 'unreadable', reason: 'no permission to read it' };
+  if (/pixel limit/i.test(message)) return { file, code: 'too-large', reason: 'too large to decode safely (over the pixel limit)' };
+  if (/timeout/i.test(message)) return { file, code: 'unreadable', reason: 'decoding took too long' };
+  if (/premature end|truncated|unexpected end|corrupt|invalid/i.test(message)) return { file, code: 'unreadable', reason: 'damaged or cut short: copy it from the card again' };
+  if (/unsupported image format|bad seek|not a known file format|improper image header|input buffer/i.test(message)) return { file, code: 'not-an-image', reason: 'not an image Seamscout can read' };
+  return { file, code: 'unreadable', reason: `cannot be read: ${message.split('\n')[0]}` };
 }
 
 /** Runs `task` over items with at most `limit` in flight, keeping results in input order. */
@@ -126,13 +131,24 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
         return { file: o.scanned, exif: o.exif, data } as LoadedFrame;
       } catch (err) {
         if (options.signal?.aborted) throw err;
-        skipped.push(skipOf(o.file, err));
+        skipped.push(skipOf(o.file, err, o.scanned.size));
         return null;
       } finally {
         options.onProgress?.({ phase: 'frames', done: ++framesDone, total: ordered.length, file: o.file });
       }
     }, options.signal);
-    const frames = loaded.filter((f): f is LoadedFrame => f !== null);
+    // Copies of one picture (a card copied twice into one folder): the first one counts.
+    const seenPixels = new Map<string, string>();
+    const frames = loaded.filter((f): f is LoadedFrame => {
+      if (f === null) return false;
+      const first = seenPixels.get(f.data.fingerprint);
+      if (first !== undefined) {
+        skipped.push({ file: f.file.name, code: 'duplicate', reason: `the same picture as ${first}: left out` });
+        return false;
+      }
+      seenPixels.set(f.data.fingerprint, f.file.name);
+      return true;
+    });
 
     // Pairs are analysed through one queue so progress counts them all.
     const pairResults = new Map<string, PairAnalysis>();
@@ -250,6 +266,7 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
       settings: f.exif.settings,
       sharpness: f.data.sharpness,
       keypoints: f.data.features.keypoints.count,
+      fingerprint: f.data.fingerprint,
     }));
     const stations: StationMeasure[] = groups.map((g, s) => ({
       index: s,

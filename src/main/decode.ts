@@ -4,6 +4,9 @@ import type { GrayImage } from '../core/image.js';
 /** Largest image sharp is allowed to decode (a guard against decompression bombs): 200 MP. */
 export const pixelLimit = 200_000_000;
 
+/** Longest one decode may take before the file is given up, seconds. */
+export const decodeTimeLimit = 60;
+
 export interface DecodedFrame {
   /** Greyscale pixels at the analysis size, EXIF orientation applied. */
   readonly image: GrayImage;
@@ -30,6 +33,7 @@ export async function decodeForAnalysis(path: string, maxSide: number): Promise<
   const { data, info } = await img
     .resize(width, height, { fit: 'fill', kernel: 'linear' })
     .greyscale()
+    .timeout({ seconds: decodeTimeLimit })
     .raw()
     .toBuffer({ resolveWithObject: true });
   return {

@@ -9,7 +9,7 @@ import { cacheDir } from './user-dirs.js';
 import { writeFileAtomic } from './write-file.js';
 
 /** Bump when the analysis changes in a way the parameters do not show. */
-const analysisVersion = 2;
+const analysisVersion = 3;
 
 export interface FeatureCache {
   get(file: ScannedFile, maxSide: number): Promise<FrameAnalysis | null>;

@@ -8,6 +8,7 @@ import { refineHomography } from '../core/homography-refine.js';
 import { overlapRegions } from '../core/overlap.js';
 import { refineTiePoints } from '../core/tie-point-refine.js';
 import type { GrayImage } from '../core/image.js';
+import { imageFingerprint } from '../core/image.js';
 import { estimatePairGeometry } from '../core/pair-geometry.js';
 import { sharpness } from '../core/sharpness.js';
 import { decodeForAnalysis } from './decode.js';
@@ -20,6 +21,8 @@ export interface FrameAnalysis {
   /** The analysis image, for refining tie points and measuring brightness. */
   readonly image: GrayImage;
   readonly sharpness: number;
+  /** Fingerprint of the decoded pixels, equal for copies of one picture. */
+  readonly fingerprint: string;
 }
 
 /** The measured relation of two frames, in analysis pixels. */
@@ -40,7 +43,7 @@ export interface PairAnalysis {
 export async function analyseFrameFile(path: string, maxSide: number, params: Partial<FeatureParams> = {}): Promise<FrameAnalysis> {
   const decoded = await decodeForAnalysis(path, maxSide);
   const features = detectAndDescribe(decoded.image, params);
-  return { fullWidth: decoded.fullWidth, fullHeight: decoded.fullHeight, features, image: decoded.image, sharpness: sharpness(decoded.image) };
+  return { fullWidth: decoded.fullWidth, fullHeight: decoded.fullHeight, features, image: decoded.image, sharpness: sharpness(decoded.image), fingerprint: imageFingerprint(decoded.image) };
 }
 
 /** Most tie points refined per pair. */

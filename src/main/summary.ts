@@ -15,7 +15,7 @@ export function formatSummary(report: Report): string {
   out.push(`${report.counts.frames} frames in ${report.counts.stations} stations${sweep}`);
   out.push('');
   const w = Math.max(8, ...report.frames.map((f) => f.file.length));
-  out.push(`  ${pad('pair', 2 * w + 4)}  ${pad('kind', 9)} overlap  inliers  EV      verdict`);
+  if (report.pairs.length) out.push(`  ${pad('pair', 2 * w + 4)}  ${pad('kind', 9)} overlap  inliers  EV      verdict`);
   for (const p of report.pairs) {
     const overlap = p.overlap === null ? '   -  ' : `${(100 * p.overlap).toFixed(0).padStart(4)} %`;
     const ev = p.evDiff === null ? '  -   ' : `${p.evDiff >= 0 ? '+' : ''}${p.evDiff.toFixed(2)}`.padStart(6);
@@ -25,6 +25,10 @@ export function formatSummary(report: Report): string {
   if (flaggedFrames.length) {
     out.push('', 'Frames:');
     for (const f of flaggedFrames) out.push(`${mark[f.verdict]}${pad(f.file, w)}  station ${f.station + 1}  ${word[f.verdict]} (${f.flags.join(', ')})`);
+  }
+  if (report.folderProblems.length) {
+    out.push('');
+    for (const p of report.folderProblems) out.push(`! ${p.advice}`);
   }
   if (report.skipped.length) {
     out.push('', 'Not checked:');

@@ -56,6 +56,7 @@ export const flagMeaning: Record<FlagCode, string> = {
   'incomplete-bracket': 'the station has fewer bracket frames than the others',
   'bracket-drift': 'the camera moved between frames of the bracket',
   'no-closure': 'the last station does not line up with the first',
+  'size-mismatch': 'the frame has another size than the rest of the sequence',
 };
 
 export const verdictWords: Record<Verdict, string> = { ok: 'ok', weak: 'weak', reshoot: 'reshoot' };

@@ -1,0 +1,168 @@
+// Whatever a memory card holds, the check goes on, says what is wrong with which file, and changes
+// nothing on the card. Every bad file here is made by the test (nothing downloaded); the good frames
+// are two real photographs (test/fixtures/external/SOURCES.md) and renders of the demo generator.
+import { createHash } from 'node:crypto';
+import { chmodSync, copyFileSync, mkdirSync, readdirSync, readFileSync, rmSync, statSync, symlinkSync, writeFileSync } from 'node:fs';
+import { join, relative } from 'node:path';
+import sharp from 'sharp';
+import { beforeAll, describe, expect, it } from 'vitest';
+import type { Report } from '../src/core/report.js';
+import { defaultBudget } from '../src/core/report.js';
+import { judge } from '../src/core/verdicts.js';
+import { createAnalysisPool } from '../src/main/analysis-pool.js';
+import { runCheck } from '../src/main/check.js';
+import { runCli, tempDir } from './helpers/cli.js';
+import { externalFixture } from './helpers/images.js';
+
+const pool = createAnalysisPool(2);
+const check = async (folder: string, recursive = false): Promise<Report> => judge((await runCheck(folder, { pool, recursive })).analysis, defaultBudget);
+
+/** Every file below a folder with its bytes' hash, and the listing itself. */
+function snapshot(folder: string): string[] {
+  const out: string[] = [];
+  const walk = (dir: string): void => {
+    for (const e of readdirSync(dir, { withFileTypes: true }).sort((a, b) => (a.name < b.name ? -1 : 1))) {
+      const p = join(dir, e.name);
+      if (e.isSymbolicLink()) out.push(`${relative(folder, p)} -> link`);
+      else if (e.isDirectory()) {
+        out.push(`${relative(folder, p)}/`);
+        walk(p);
+      } else {
+        const st = statSync(p);
+        const hash = st.mode & 0o444 ? createHash('sha256').update(readFileSync(p)).digest('hex') : 'unreadable';
+        out.push(`${relative(folder, p)} ${st.size} ${st.mtimeMs} ${hash}`);
+      }
+    }
+  };
+  walk(folder);
+  return out;
+}
+
+let card: string;
+let report: Report;
+let before: string[];
+const good = readFileSync(externalFixture('leuvenA.jpg'));
+
+beforeAll(async () => {
+  card = tempDir('seamscout-card-');
+  writeFileSync(join(card, 'zero.jpg'), Buffer.alloc(0));
+  writeFileSync(join(card, 'half.jpg'), good.subarray(0, good.length >> 1));
+  writeFileSync(join(card, 'notes.jpg'), 'this is a text file, not a photograph\n');
+  // A PNG whose header declares 60000 x 60000 pixels: a decompression bomb, refused by the limit.
+  const png = Buffer.from(await sharp({ create: { width: 8, height: 8, channels: 3, background: '#777' } }).png().toBuffer());
+  png.writeUInt32BE(60000, 16);
+  png.writeUInt32BE(60000, 20);
+  writeFileSync(join(card, 'bomb.png'), png);
+  await sharp(good).toColourspace('rgb16').tiff().toFile(join(card, 'deep-16bit.tif'));
+  await sharp(good).toColourspace('cmyk').jpeg().toFile(join(card, 'print-cmyk.jpg'));
+  await sharp(good).greyscale().jpeg().toFile(join(card, 'grey.jpg'));
+  copyFileSync(externalFixture('leuvenA.jpg'), join(card, 'IMG 0001 – bord de mer.jpg'));
+  copyFileSync(externalFixture('leuvenA.jpg'), join(card, 'IMG 0001 copy.jpg'));
+  copyFileSync(externalFixture('leuvenB.jpg'), join(card, '海岸 0002.jpg'));
+  await sharp(good).resize(400).jpeg().toFile(join(card, 'small.jpg'));
+  writeFileSync(join(card, 'absurd-exif.jpg'), await sharp(good).withExif({ IFD0: { Make: 'x' }, IFD2: { ExposureTime: '0/1', FocalLength: '-35/1', DateTimeOriginal: '1900:01:01 00:00:00', ISOSpeedRatings: 'lots' } }).jpeg().toBuffer());
+  mkdirSync(join(card, 'sub'));
+  symlinkSync('..', join(card, 'sub', 'loop'));
+  before = snapshot(card);
+  report = await check(card, true);
+}, 120_000);
+
+describe('bad input on a card', () => {
+  const skip = (file: string) => report.skipped.find((s) => s.file === file);
+
+  it('names each bad file with a plain reason and checks the rest', () => {
+    expect(skip('zero.jpg')?.reason).toMatch(/empty file/);
+    expect(skip('half.jpg')?.reason).toMatch(/damaged or cut short/);
+    expect(skip('notes.jpg')?.code).toBe('not-an-image');
+    expect(skip('bomb.png')?.code).toBe('too-large');
+    // The first copy counts; the second is named as a copy.
+    expect(report.skipped.filter((s) => s.code === 'duplicate').map((s) => s.reason)).toEqual([expect.stringMatching(/the same picture as IMG 0001/)]);
+    const checked = report.frames.map((f) => f.file).sort();
+    for (const f of ['deep-16bit.tif', 'print-cmyk.jpg', 'grey.jpg', '海岸 0002.jpg', 'small.jpg', 'absurd-exif.jpg']) expect(checked).toContain(f);
+    expect(report.frames.length + report.skipped.length).toBe(12);
+  });
+
+  it('decodes 16-bit, CMYK and greyscale frames to the same geometry', () => {
+    for (const f of ['deep-16bit.tif', 'print-cmyk.jpg', 'grey.jpg']) {
+      const frame = report.frames.find((x) => x.file === f)!;
+      expect([frame.width, frame.height]).toEqual([751, 563]);
+    }
+  });
+
+  it('flags a frame of another size than the sequence', () => {
+    expect(report.frames.find((f) => f.file === 'small.jpg')!.flags).toContain('size-mismatch');
+  });
+
+  it('drops absurd EXIF values instead of trusting them', () => {
+    const s = report.frames.find((f) => f.file === 'absurd-exif.jpg')!;
+    expect(s.settings.exposureTime).toBeNull();
+    expect(s.settings.focalLength).toBeNull();
+    expect(s.settings.iso).toBeNull();
+    expect(s.captureTime).toBeNull();
+  });
+
+  it('ends a symbolic-link loop under --recursive', () => {
+    // The loop leads back to the card itself, which is read once.
+    expect(report.frames.filter((f) => f.file.includes('loop')).length).toBe(0);
+  });
+
+  it('changes not a byte of the card, its listing or its times', () => {
+    expect(snapshot(card)).toEqual(before);
+  });
+});
+
+describe('folders that are not a sequence', () => {
+  it('says so for an empty folder and a folder of one frame', async () => {
+    const empty = await check(tempDir());
+    expect(empty.folderProblems.map((p) => p.code)).toEqual(['no-frames']);
+    expect(empty.verdict).not.toBe('ok');
+    const one = tempDir();
+    copyFileSync(externalFixture('leuvenA.jpg'), join(one, 'only.jpg'));
+    const single = await check(one);
+    expect(single.folderProblems.map((p) => p.code)).toEqual(['one-frame']);
+  });
+
+  it('handles a folder of 2,000 small images', async () => {
+    const many = tempDir();
+    const tile = await sharp(good).resize(96, 72).jpeg({ quality: 80 }).toBuffer();
+    for (let i = 0; i < 2000; i++) writeFileSync(join(many, `F${String(i).padStart(4, '0')}.jpg`), tile);
+    const r = await check(many);
+    // Identical files: one is checked, the others named as copies of it.
+    expect(r.frames.length).toBe(1);
+    expect(r.skipped.filter((s) => s.code === 'duplicate').length).toBe(1999);
+  }, 300_000);
+
+  it('goes on when a file goes away during the check', async () => {
+    const folder = tempDir();
+    for (const f of ['leuvenA.jpg', 'leuvenB.jpg']) copyFileSync(externalFixture(f), join(folder, f));
+    copyFileSync(externalFixture('graf1.png'), join(folder, 'gone.png'));
+    const result = await runCheck(folder, {
+      pool,
+      onProgress: (p) => {
+        if (p.phase === 'frames' && p.done === 1) rmSync(join(folder, 'gone.png'), { force: true });
+      },
+      threads: 1,
+    });
+    const r = judge(result.analysis, defaultBudget);
+    expect(r.frames.length + r.skipped.length).toBe(3);
+    expect(r.pairs.length).toBeGreaterThanOrEqual(1);
+  });
+});
+
+describe('permissions and the command line', () => {
+  it('reports a file it may not read (skipped when running as root, who may read anything)', async (ctx) => {
+    if (process.getuid?.() === 0) ctx.skip();
+    const folder = tempDir();
+    copyFileSync(externalFixture('leuvenA.jpg'), join(folder, 'locked.jpg'));
+    chmodSync(join(folder, 'locked.jpg'), 0);
+    const r = await check(folder);
+    expect(r.skipped[0].reason).toMatch(/permission/);
+  });
+
+  it('exits 1 with the reasons on stdout for a card with bad files', async () => {
+    const r = await runCli(['check', card, '--threads', '0', '--no-cache']);
+    expect(r.code).toBe(1);
+    expect(r.stdout).toMatch(/zero\.jpg: empty file/);
+    expect(snapshot(card)).toEqual(before);
+  }, 120_000);
+});
