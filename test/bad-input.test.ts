@@ -1,9 +1,8 @@
 // Whatever a memory card holds, the check goes on, says what is wrong with which file, and changes
 // nothing on the card. Every bad file here is made by the test (nothing downloaded); the good frames
 // are two real photographs (test/fixtures/external/SOURCES.md) and renders of the demo generator.
-import { createHash } from 'node:crypto';
-import { chmodSync, copyFileSync, mkdirSync, readdirSync, readFileSync, rmSync, statSync, symlinkSync, writeFileSync } from 'node:fs';
-import { join, relative } from 'node:path';
+import { chmodSync, copyFileSync, mkdirSync, readFileSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
 import sharp from 'sharp';
 import { beforeAll, describe, expect, it } from 'vitest';
 import type { Report } from '../src/core/report.js';
@@ -13,30 +12,10 @@ import { createAnalysisPool } from '../src/main/analysis-pool.js';
 import { runCheck } from '../src/main/check.js';
 import { runCli, tempDir } from './helpers/cli.js';
 import { externalFixture } from './helpers/images.js';
+import { snapshot } from './helpers/snapshot.js';
 
 const pool = createAnalysisPool(2);
 const check = async (folder: string, recursive = false): Promise<Report> => judge((await runCheck(folder, { pool, recursive })).analysis, defaultBudget);
-
-/** Every file below a folder with its bytes' hash, and the listing itself. */
-function snapshot(folder: string): string[] {
-  const out: string[] = [];
-  const walk = (dir: string): void => {
-    for (const e of readdirSync(dir, { withFileTypes: true }).sort((a, b) => (a.name < b.name ? -1 : 1))) {
-      const p = join(dir, e.name);
-      if (e.isSymbolicLink()) out.push(`${relative(folder, p)} -> link`);
-      else if (e.isDirectory()) {
-        out.push(`${relative(folder, p)}/`);
-        walk(p);
-      } else {
-        const st = statSync(p);
-        const hash = st.mode & 0o444 ? createHash('sha256').update(readFileSync(p)).digest('hex') : 'unreadable';
-        out.push(`${relative(folder, p)} ${st.size} ${st.mtimeMs} ${hash}`);
-      }
-    }
-  };
-  walk(folder);
-  return out;
-}
 
 let card: string;
 let report: Report;

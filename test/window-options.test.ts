@@ -2,7 +2,7 @@
 // tutorial/security): isolation, sandbox, no Node in the page, our page only on the IPC bridge.
 // No Electron binary is loaded: the settings are plain data.
 import { describe, expect, it } from 'vitest';
-import { desktopContentSecurityPolicy, isAllowedNavigation, isTrustedSender, windowOptions } from '../src/main/window-options.js';
+import { desktopContentSecurityPolicy, harden, isAllowedNavigation, isTrustedSender, windowOptions } from '../src/main/window-options.js';
 
 describe('desktop window settings', () => {
   it('isolate the page and keep Node out of it', () => {
@@ -30,5 +30,33 @@ describe('desktop window settings', () => {
       expect(isTrustedSender(url)).toBe(false);
     }
     expect(isAllowedNavigation('https://example.com/')).toBe(false);
+  });
+});
+
+describe('hardening of the session and the page', () => {
+  it('denies permissions and new windows, and keeps navigation on our page', () => {
+    let request: ((wc: unknown, p: string, cb: (g: boolean) => void) => void) | null = null;
+    let checkHandler: ((...a: unknown[]) => boolean) | null = null;
+    let open: ((d: { url: string }) => { action: string }) | null = null;
+    const listeners = new Map<string, (e: { preventDefault(): void }, url?: string) => void>();
+    harden(
+      { setPermissionRequestHandler: (h) => (request = h), setPermissionCheckHandler: (h) => (checkHandler = h) },
+      { setWindowOpenHandler: (h) => (open = h), on: (ev, l) => listeners.set(ev, l) },
+    );
+    const granted: boolean[] = [];
+    for (const p of ['media', 'geolocation', 'notifications', 'openExternal']) request!(null, p, (g) => granted.push(g));
+    expect(granted).toEqual([false, false, false, false]);
+    expect(checkHandler!()).toBe(false);
+    expect(open!({ url: 'https://example.com/' })).toEqual({ action: 'deny' });
+    const prevented = (event: string, url?: string): boolean => {
+      let p = false;
+      listeners.get(event)!({ preventDefault: () => (p = true) }, url);
+      return p;
+    };
+    expect(prevented('will-navigate', 'https://example.com/')).toBe(true);
+    expect(prevented('will-navigate', 'file:///etc/passwd')).toBe(true);
+    expect(prevented('will-redirect', 'http://127.0.0.1:9/')).toBe(true);
+    expect(prevented('will-navigate', 'seamscout-app://app/index.html')).toBe(false);
+    expect(prevented('will-attach-webview')).toBe(true);
   });
 });

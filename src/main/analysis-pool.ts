@@ -8,7 +8,14 @@ export interface AnalysisPool {
   analyseFrame(path: string, maxSide: number, signal?: AbortSignal): Promise<FrameAnalysis>;
   analysePair(a: FrameAnalysis, b: FrameAnalysis, signal?: AbortSignal): Promise<PairAnalysis>;
   readonly threads: number;
+  /** Worker threads alive right now. */
+  liveThreads(): number;
   destroy(): Promise<void>;
+}
+
+export interface AnalysisPoolOptions {
+  /** Worker entry file (tests use one that wraps the real worker). */
+  readonly filename?: string;
 }
 
 /**
@@ -16,18 +23,19 @@ export interface AnalysisPool {
  * With `threads` 0 the same tasks run in this thread (tests, tiny jobs). Under tsx (a checkout) the
  * workers load the TypeScript sources through tsx; built, they load the compiled files.
  */
-export function createAnalysisPool(threads = availableParallelism()): AnalysisPool {
+export function createAnalysisPool(threads = availableParallelism(), options: AnalysisPoolOptions = {}): AnalysisPool {
   if (threads <= 0) {
     return {
       threads: 0,
       analyseFrame: (path, maxSide) => runTask({ kind: 'frame', path, maxSide }) as Promise<FrameAnalysis>,
       analysePair: (a, b) => runTask({ kind: 'pair', a, b }) as Promise<PairAnalysis>,
+      liveThreads: () => 0,
       destroy: async () => {},
     };
   }
   const self = new URL(import.meta.url);
   const fromSource = self.pathname.endsWith('.ts');
-  const filename = new URL(`./analysis-worker.${fromSource ? 'ts' : 'js'}`, self).href;
+  const filename = options.filename ?? new URL(`./analysis-worker.${fromSource ? 'ts' : 'js'}`, self).href;
   const pool = new Piscina({
     filename,
     minThreads: 1,
@@ -41,6 +49,7 @@ export function createAnalysisPool(threads = availableParallelism()): AnalysisPo
     threads,
     analyseFrame: (path, maxSide, signal) => run<FrameAnalysis>({ kind: 'frame', path, maxSide }, signal),
     analysePair: (a, b, signal) => run<PairAnalysis>({ kind: 'pair', a, b }, signal),
+    liveThreads: () => pool.threads.length,
     destroy: () => pool.destroy(),
   };
 }

@@ -12,7 +12,8 @@ import { AppService } from './app-service.js';
 import { loadStoredBudget, storeBudget } from './budget-store.js';
 import { ensureDemoShoot } from './demo-shoot.js';
 import { readRecentFolders } from './recent-folders.js';
-import { appOrigin, appScheme, desktopContentSecurityPolicy, isAllowedNavigation, isTrustedSender, windowOptions } from './window-options.js';
+import type { HardenableContents, HardenableSession } from './window-options.js';
+import { appOrigin, appScheme, desktopContentSecurityPolicy, harden, isTrustedSender, windowOptions } from './window-options.js';
 
 const here = dirname(fileURLToPath(import.meta.url));
 const assets = join(here, '..', 'renderer');
@@ -40,8 +41,6 @@ function handle(channel: string, fn: (...args: unknown[]) => unknown): void {
 }
 
 app.whenReady().then(async () => {
-  session.defaultSession.setPermissionRequestHandler((_wc, _permission, callback) => callback(false));
-  session.defaultSession.setPermissionCheckHandler(() => false);
 
   protocol.handle(appScheme, async (request) => {
     const url = new URL(request.url);
@@ -90,11 +89,7 @@ app.whenReady().then(async () => {
   });
 
   win = new BrowserWindow(windowOptions(join(here, 'preload.cjs')));
-  win.webContents.setWindowOpenHandler(() => ({ action: 'deny' }));
-  win.webContents.on('will-navigate', (event, url) => {
-    if (!isAllowedNavigation(url)) event.preventDefault();
-  });
-  win.webContents.on('will-attach-webview', (event) => event.preventDefault());
+  harden(session.defaultSession as unknown as HardenableSession, win.webContents as unknown as HardenableContents);
   win.once('ready-to-show', () => win?.show());
   await win.loadURL(`${appOrigin}/index.html`);
 });

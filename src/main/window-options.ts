@@ -51,3 +51,29 @@ export function isTrustedSender(url: string | undefined): boolean {
 export function isAllowedNavigation(url: string): boolean {
   return isTrustedSender(url);
 }
+
+/** The parts of Electron's session and web contents that the hardening below touches. */
+export interface HardenableSession {
+  setPermissionRequestHandler(handler: (wc: unknown, permission: string, callback: (granted: boolean) => void) => void): void;
+  setPermissionCheckHandler(handler: (...args: unknown[]) => boolean): void;
+}
+export interface HardenableContents {
+  setWindowOpenHandler(handler: (details: { url: string }) => { action: 'deny' } | { action: 'allow' }): void;
+  on(event: 'will-navigate' | 'will-attach-webview' | 'will-redirect', listener: (event: { preventDefault(): void }, url?: string) => void): unknown;
+}
+
+/**
+ * Electron's checklist for the session and the page: every permission request denied, no new
+ * windows, navigation and redirects only within our own page, no webviews.
+ */
+export function harden(session: HardenableSession, contents: HardenableContents): void {
+  session.setPermissionRequestHandler((_wc, _permission, callback) => callback(false));
+  session.setPermissionCheckHandler(() => false);
+  contents.setWindowOpenHandler(() => ({ action: 'deny' }));
+  const stay = (event: { preventDefault(): void }, url?: string): void => {
+    if (!url || !isAllowedNavigation(url)) event.preventDefault();
+  };
+  contents.on('will-navigate', stay);
+  contents.on('will-redirect', stay);
+  contents.on('will-attach-webview', (event) => event.preventDefault());
+}
