@@ -57,7 +57,10 @@ describe('the app in a real browser', () => {
     await page.getByRole('button', { name: 'Try the demo shoot' }).click();
     await expect.poll(() => page.locator('[role="progressbar"]').count(), { timeout: 20_000 }).toBeGreaterThan(0);
     await page.screenshot({ path: join(shots, 'progress.png') });
+    // Results appear while pairs are still being matched; the progress goes when the check is done.
     await page.locator('[data-summary]').waitFor({ timeout: 180_000 });
+    await page.screenshot({ path: join(shots, 'arriving.png') });
+    await page.locator('[role="progressbar"]').waitFor({ state: 'detached', timeout: 180_000 });
     await page.waitForLoadState('networkidle');
     // The thumbnails come through the host's frame route (token, folder checks and all); they load
     // lazily, so those in view have loaded and none is broken.

@@ -3,7 +3,7 @@
 // re-judging without re-analysis, keyboard navigation, the detail, export, drop and theme. The
 // report is four single-frame stations judged by core's `judge` with the default budget.
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
-import type { CheckDoneEvent, CheckProgressEvent, ExportFormat, HostInfo, SeamscoutApi } from '../src/main/app-api.js';
+import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat, HostInfo, SeamscoutApi } from '../src/main/app-api.js';
 import type { Analysis, MatchBudget, PairMeasure, Report } from '../src/core/report.js';
 import { defaultBudget } from '../src/core/report.js';
 import { judge } from '../src/core/verdicts.js';
@@ -32,6 +32,7 @@ function fakeApi(opts: { shell?: HostInfo['shell']; chooseFolder?: string | null
   const calls: Call[] = [];
   const progress: ((e: CheckProgressEvent) => void)[] = [];
   const done: ((e: CheckDoneEvent) => void)[] = [];
+  const partial: ((e: CheckPartialEvent) => void)[] = [];
   const log = <T>(name: string, args: unknown[], value: T): T => {
     calls.push({ name, args });
     return value;
@@ -55,6 +56,10 @@ function fakeApi(opts: { shell?: HostInfo['shell']; chooseFolder?: string | null
       done.push(l);
       return () => done.splice(done.indexOf(l), 1);
     },
+    onPartial: (l) => {
+      partial.push(l);
+      return () => partial.splice(partial.indexOf(l), 1);
+    },
   };
   if (opts.pathForFile) api.pathForFile = opts.pathForFile;
   return {
@@ -63,7 +68,8 @@ function fakeApi(opts: { shell?: HostInfo['shell']; chooseFolder?: string | null
     names: () => calls.map((c) => c.name),
     emitProgress: (e: CheckProgressEvent) => progress.forEach((l) => l(e)),
     emitDone: (e: CheckDoneEvent) => done.forEach((l) => l(e)),
-    listeners: () => progress.length + done.length,
+    emitPartial: (e: CheckPartialEvent) => partial.forEach((l) => l(e)),
+    listeners: () => progress.length + done.length + partial.length,
   };
 }
 
@@ -216,6 +222,30 @@ describe('progress', () => {
     f.emitDone({ checkId: 7, report, error: null, cancelled: false });
     expect($('[role="progressbar"]')).toBeNull();
     expect($('[data-summary]')).not.toBeNull();
+    expect(document.querySelectorAll('[data-pair]').length).toBe(3);
+  });
+
+  it('shows results as they arrive, with the progress and Cancel above them until the check is done', async () => {
+    const f = fakeApi();
+    await mount(f);
+    buttonNamed('Try the demo shoot').click();
+    await tick();
+    f.emitProgress({ checkId: 7, phase: 'pairs', done: 1, total: 3, secondsLeft: 5 });
+    // The first pair measured: a report with one pair only.
+    const partial = judge({ ...analysis, pairs: analysis.pairs.slice(0, 1) }, defaultBudget);
+    f.emitPartial({ checkId: 7, report: partial });
+    expect($('[data-summary]')).not.toBeNull();
+    expect($('[role="progressbar"]')).not.toBeNull();
+    expect(document.querySelector(`[data-pair="${K12}"]`)).not.toBeNull();
+    expect(document.querySelector(`[data-pair="${K23}"]`)).toBeNull();
+    expect(() => buttonNamed('Cancel')).not.toThrow();
+    // Another check's results are not shown.
+    f.emitPartial({ checkId: 99, report });
+    expect(document.querySelector(`[data-pair="${K23}"]`)).toBeNull();
+    f.emitProgress({ checkId: 7, phase: 'pairs', done: 2, total: 3, secondsLeft: 2 });
+    expect($('[role="progressbar"]')?.getAttribute('aria-valuenow')).toBe('2');
+    f.emitDone({ checkId: 7, report, error: null, cancelled: false });
+    expect($('[role="progressbar"]')).toBeNull();
     expect(document.querySelectorAll('[data-pair]').length).toBe(3);
   });
 
@@ -438,7 +468,7 @@ describe('export and theme', () => {
   it('lets go of its listeners when destroyed', async () => {
     const f = fakeApi();
     await mount(f);
-    expect(f.listeners()).toBe(2);
+    expect(f.listeners()).toBe(3);
     app?.destroy();
     app = null;
     expect(f.listeners()).toBe(0);

@@ -21,6 +21,12 @@ export interface CheckDoneEvent {
   readonly cancelled: boolean;
 }
 
+/** The results so far of a running check: every frame and station, the pairs matched yet. */
+export interface CheckPartialEvent {
+  readonly checkId: number;
+  readonly report: Report;
+}
+
 export type ExportFormat = 'json' | 'graphml' | 'csv' | 'dot';
 
 export interface HostInfo {
@@ -50,6 +56,8 @@ export interface SeamscoutApi {
   frameUrl(checkId: number, file: string, maxSide: number): string;
   onProgress(listener: (e: CheckProgressEvent) => void): () => void;
   onDone(listener: (e: CheckDoneEvent) => void): () => void;
+  /** Results as they arrive, before the check is done. */
+  onPartial(listener: (e: CheckPartialEvent) => void): () => void;
 }
 
 /** Channel names of the desktop bridge, all under our own prefix. */
@@ -65,6 +73,7 @@ export const channels = {
   tiePoints: 'seamscout:tie-points',
   progress: 'seamscout:on-progress',
   done: 'seamscout:on-done',
+  partial: 'seamscout:on-partial',
 } as const;
 
 export const frameProtocol = 'seamscout-frame';

@@ -8,7 +8,7 @@ import type { MatchBudget, Report } from '../core/report.js';
 import { judge, rejudge } from '../core/verdicts.js';
 import type { AnalysisPool } from './analysis-pool.js';
 import { createAnalysisPool } from './analysis-pool.js';
-import type { CheckDoneEvent, CheckProgressEvent, ExportFormat } from './app-api.js';
+import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat } from './app-api.js';
 import { loadStoredBudget } from './budget-store.js';
 import type { TiePointSet } from './check.js';
 import { runCheck } from './check.js';
@@ -21,6 +21,8 @@ interface CheckState {
   readonly folder: string;
   readonly controller: AbortController;
   report: Report | null;
+  /** Frames of the check known so far (images of these may be shown while it runs). */
+  files: Set<string>;
   tiePoints: readonly TiePointSet[];
   /** Real path of the folder, for containment checks. */
   realFolder: string | null;
@@ -32,6 +34,7 @@ export interface AppServiceOptions {
   readonly threads?: number;
   readonly onProgress: (e: CheckProgressEvent) => void;
   readonly onDone: (e: CheckDoneEvent) => void;
+  readonly onPartial?: (e: CheckPartialEvent) => void;
 }
 
 /** Text of an export of a report, and the file name to suggest for it. */
@@ -69,7 +72,7 @@ export class AppService {
   async startCheck(target: { folder: string } | { demo: true }): Promise<number> {
     const id = this.nextId++;
     const folder = 'demo' in target ? await this.options.demoFolder() : resolve(target.folder);
-    const state: CheckState = { id, folder, controller: new AbortController(), report: null, tiePoints: [], realFolder: null };
+    const state: CheckState = { id, folder, controller: new AbortController(), report: null, files: new Set(), tiePoints: [], realFolder: null };
     // Only the latest check is kept: frames of older ones stop resolving.
     for (const old of this.checks.values()) old.controller.abort();
     this.checks.clear();
@@ -83,17 +86,26 @@ export class AppService {
     try {
       state.realFolder = await realpath(state.folder);
       if (remember) await rememberFolder(state.folder);
+      const budget = await loadStoredBudget();
       const result = await runCheck(state.folder, {
         pool: this.getPool(),
         cache: createFeatureCache(),
         signal: state.controller.signal,
+        onPartial: this.options.onPartial
+          ? (analysis) => {
+              if (state.controller.signal.aborted) return;
+              state.files = new Set(analysis.frames.map((f) => f.file));
+              this.options.onPartial?.({ checkId: state.id, report: judge(analysis, budget) });
+            }
+          : undefined,
         onProgress: (p) => {
           const elapsed = (Date.now() - started) / 1000;
           const secondsLeft = p.phase === 'frames' && p.done > 0 ? (elapsed / p.done) * (p.total - p.done) : null;
           this.options.onProgress({ checkId: state.id, ...p, secondsLeft });
         },
       });
-      state.report = judge(result.analysis, await loadStoredBudget());
+      state.report = judge(result.analysis, budget);
+      state.files = new Set(result.analysis.frames.map((f) => f.file));
       state.tiePoints = result.tiePoints;
       this.options.onDone({ checkId: state.id, report: state.report, error: null, cancelled: false });
     } catch (err) {
@@ -135,8 +147,7 @@ export class AppService {
    */
   async frameImage(id: number, file: string, maxSide: number): Promise<Buffer | null> {
     const s = this.checks.get(id);
-    if (!s || !s.report || !s.realFolder) return null;
-    if (!s.report.frames.some((f) => f.file === file)) return null;
+    if (!s || !s.realFolder || !s.files.has(file)) return null;
     if (isAbsolute(file) || file.split(/[\\/]/).includes('..')) return null;
     const side = Math.max(32, Math.min(4096, Math.round(maxSide) || 320));
     const key = `${id}:${file}:${side}`;

@@ -5,7 +5,7 @@ import { createServer } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { extname, isAbsolute, join, normalize, relative, sep } from 'node:path';
 import type { MatchBudget } from '../core/report.js';
-import type { CheckDoneEvent, CheckProgressEvent, ExportFormat } from './app-api.js';
+import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat } from './app-api.js';
 import { AppService } from './app-service.js';
 import { loadStoredBudget, storeBudget } from './budget-store.js';
 import { readRecentFolders } from './recent-folders.js';
@@ -77,7 +77,7 @@ async function readJsonBody(req: IncomingMessage, limit = 1_000_000): Promise<un
 export async function startBrowserHost(options: BrowserHostOptions): Promise<BrowserHost> {
   const token = randomBytes(24).toString('base64url');
   const events = new Set<ServerResponse>();
-  const broadcast = (type: string, data: CheckProgressEvent | CheckDoneEvent): void => {
+  const broadcast = (type: string, data: CheckProgressEvent | CheckDoneEvent | CheckPartialEvent): void => {
     const line = `event: ${type}\ndata: ${JSON.stringify(data)}\n\n`;
     for (const res of events) res.write(line);
   };
@@ -86,6 +86,7 @@ export async function startBrowserHost(options: BrowserHostOptions): Promise<Bro
     threads: options.threads,
     onProgress: (e) => broadcast('progress', e),
     onDone: (e) => broadcast('done', e),
+    onPartial: (e) => broadcast('partial', e),
   });
   let port = 0;
   const cookieName = (): string => `seamscout-${port}`;

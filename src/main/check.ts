@@ -33,6 +33,8 @@ export interface CheckOptions {
   /** Where frame analyses are kept between checks; none by default. */
   readonly cache?: FeatureCache | null;
   readonly onProgress?: (p: CheckProgress) => void;
+  /** The measurements so far, while pairs are still being matched (results as they arrive). */
+  readonly onPartial?: (analysis: Analysis) => void;
   readonly signal?: AbortSignal;
 }
 
@@ -152,6 +154,7 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
 
     // Pairs are analysed through one queue so progress counts them all.
     const pairResults = new Map<string, PairAnalysis>();
+    let partialHook: (() => void) | null = null;
     let pairsDone = 0, pairsTotal = 0;
     const analyse = async (pairs: [number, number][]): Promise<void> => {
       const todo = pairs.filter(([i, j]) => !pairResults.has(`${i}:${j}`));
@@ -159,6 +162,7 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
       await inOrder(todo, Math.max(2, pool.threads), async ([i, j]) => {
         pairResults.set(`${i}:${j}`, await pool.analysePair(frames[i].data, frames[j].data, options.signal));
         options.onProgress?.({ phase: 'pairs', done: ++pairsDone, total: pairsTotal, file: frames[j].file.name });
+        partialHook?.();
       }, options.signal);
     };
 
@@ -189,6 +193,75 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
       for (let x = 0; x < refs.length; x++)
         for (let y = x + 2; y < refs.length; y++) if (!done.has(`${refs[x]}:${refs[y]}`)) others.push([refs[x], refs[y]]);
       for (const [i, j] of screenPairs(samples, others)) planned.push({ i, j, kind: 'other' });
+    }
+    /** The measurements so far: every frame and station, the pairs measured yet. */
+    const assemble = (chosen: readonly { i: number; j: number; kind: PairKind }[], sweep: number | null): CheckResult => {
+      const name = (i: number): string => frames[i].file.name;
+      const tiePoints: TiePointSet[] = [];
+      const measured = chosen.filter(({ i, j }) => pairResults.has(`${i}:${j}`));
+      const pairs: PairMeasure[] = measured.map(({ i, j, kind }) => {
+        const r = pairResults.get(`${i}:${j}`)!;
+        const { h, scale } = fullResolution(r, frames[i], frames[j]);
+        if (h) {
+          const fa = analysisToFull(frames[i].data.fullWidth, frames[i].data.fullHeight, frames[i].data.features.width, frames[i].data.features.height);
+          const fb = analysisToFull(frames[j].data.fullWidth, frames[j].data.fullHeight, frames[j].data.features.width, frames[j].data.features.height);
+          const pts = new Float64Array(r.tiePoints.length);
+          for (let k = 0; k < r.tiePoints.length; k += 4) {
+            pts[k] = fa[0] * r.tiePoints[k] + fa[2];
+            pts[k + 1] = fa[4] * r.tiePoints[k + 1] + fa[5];
+            pts[k + 2] = fb[0] * r.tiePoints[k + 2] + fb[2];
+            pts[k + 3] = fb[4] * r.tiePoints[k + 3] + fb[5];
+          }
+          tiePoints.push({ a: name(i), b: name(j), points: pts });
+        }
+        return {
+          a: name(i),
+          b: name(j),
+          kind,
+          matches: r.matches,
+          inliers: r.inliers,
+          matchesInOverlap: r.matchesInOverlap,
+          overlap: r.overlap,
+          homography: h ? Array.from(h) : null,
+          evDiff: r.evDiff,
+          rmsError: r.rmsError === null ? null : r.rmsError * scale,
+          shiftPx: h ? cornerShift(h, frames[i].data.fullWidth, frames[i].data.fullHeight) : null,
+        };
+      });
+
+      const stationOfFrame = new Map<number, number>();
+      groups.forEach((g, s) => g.members.forEach((m) => stationOfFrame.set(m, s)));
+      const frameMeasures: FrameMeasure[] = frames.map((f) => ({
+        file: f.file.name,
+        width: f.data.fullWidth,
+        height: f.data.fullHeight,
+        captureTime: f.exif.captureTime,
+        settings: f.exif.settings,
+        sharpness: f.data.sharpness,
+        keypoints: f.data.features.keypoints.count,
+        fingerprint: f.data.fingerprint,
+      }));
+      const stations: StationMeasure[] = groups.map((g, s) => ({
+        index: s,
+        frames: g.members.map(name),
+        reference: name(g.reference),
+        evOffsets: g.offsets,
+        groupedBy: g.groupedBy,
+      }));
+      return { analysis: { folder, frames: frameMeasures, stations, pairs, skipped, sweepDeg: sweep }, tiePoints };
+    };
+
+    // Results as they arrive: the stations at once, then the pairs, at most every 700 ms.
+    if (options.onPartial) {
+      const onPartial = options.onPartial;
+      let last = 0;
+      partialHook = () => {
+        const now = Date.now();
+        if (now - last < 700) return;
+        last = now;
+        onPartial(assemble(planned, null).analysis);
+      };
+      onPartial(assemble(planned, null).analysis);
     }
     await analyse(planned.map((p) => [p.i, p.j]));
 
@@ -224,58 +297,7 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
       }
     }
 
-    const name = (i: number): string => frames[i].file.name;
-    const tiePoints: TiePointSet[] = [];
-    const pairs: PairMeasure[] = planned.map(({ i, j, kind }) => {
-      const r = pairResults.get(`${i}:${j}`)!;
-      const { h, scale } = fullResolution(r, frames[i], frames[j]);
-      if (h) {
-        const fa = analysisToFull(frames[i].data.fullWidth, frames[i].data.fullHeight, frames[i].data.features.width, frames[i].data.features.height);
-        const fb = analysisToFull(frames[j].data.fullWidth, frames[j].data.fullHeight, frames[j].data.features.width, frames[j].data.features.height);
-        const pts = new Float64Array(r.tiePoints.length);
-        for (let k = 0; k < r.tiePoints.length; k += 4) {
-          pts[k] = fa[0] * r.tiePoints[k] + fa[2];
-          pts[k + 1] = fa[4] * r.tiePoints[k + 1] + fa[5];
-          pts[k + 2] = fb[0] * r.tiePoints[k + 2] + fb[2];
-          pts[k + 3] = fb[4] * r.tiePoints[k + 3] + fb[5];
-        }
-        tiePoints.push({ a: name(i), b: name(j), points: pts });
-      }
-      return {
-        a: name(i),
-        b: name(j),
-        kind,
-        matches: r.matches,
-        inliers: r.inliers,
-        matchesInOverlap: r.matchesInOverlap,
-        overlap: r.overlap,
-        homography: h ? Array.from(h) : null,
-        evDiff: r.evDiff,
-        rmsError: r.rmsError === null ? null : r.rmsError * scale,
-        shiftPx: h ? cornerShift(h, frames[i].data.fullWidth, frames[i].data.fullHeight) : null,
-      };
-    });
-
-    const stationOfFrame = new Map<number, number>();
-    groups.forEach((g, s) => g.members.forEach((m) => stationOfFrame.set(m, s)));
-    const frameMeasures: FrameMeasure[] = frames.map((f) => ({
-      file: f.file.name,
-      width: f.data.fullWidth,
-      height: f.data.fullHeight,
-      captureTime: f.exif.captureTime,
-      settings: f.exif.settings,
-      sharpness: f.data.sharpness,
-      keypoints: f.data.features.keypoints.count,
-      fingerprint: f.data.fingerprint,
-    }));
-    const stations: StationMeasure[] = groups.map((g, s) => ({
-      index: s,
-      frames: g.members.map(name),
-      reference: name(g.reference),
-      evOffsets: g.offsets,
-      groupedBy: g.groupedBy,
-    }));
-    return { analysis: { folder, frames: frameMeasures, stations, pairs, skipped, sweepDeg }, tiePoints };
+    return assemble(planned, sweepDeg);
   } finally {
     if (!options.pool) await pool.destroy();
   }

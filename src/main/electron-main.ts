@@ -31,6 +31,7 @@ const service = new AppService({
   demoFolder: ensureDemoShoot,
   onProgress: (e) => win?.webContents.send(channels.progress, e),
   onDone: (e) => win?.webContents.send(channels.done, e),
+  onPartial: (e) => win?.webContents.send(channels.partial, e),
 });
 
 function handle(channel: string, fn: (...args: unknown[]) => unknown): void {

@@ -19,6 +19,7 @@ const ch: typeof Channels = {
   tiePoints: 'seamscout:tie-points',
   progress: 'seamscout:on-progress',
   done: 'seamscout:on-done',
+  partial: 'seamscout:on-partial',
 };
 
 function listen<T>(channel: string, listener: (e: T) => void): () => void {
@@ -40,6 +41,7 @@ const api: SeamscoutApi & { pathForFile(file: File): string } = {
   frameUrl: (id, file, maxSide) => `seamscout-frame://frames/${id}/${encodeURIComponent(file)}?max=${Math.round(maxSide)}`,
   onProgress: (l) => listen(ch.progress, l),
   onDone: (l) => listen(ch.done, l),
+  onPartial: (l) => listen(ch.partial, l),
   pathForFile: (file) => electron.webUtils.getPathForFile(file),
 };
 

@@ -1,6 +1,6 @@
 // The page's controller: holds the state (screen, report, budget, selection), talks to main only
 // through the SeamscoutApi object, and hands plain data to the views, which build DOM from it.
-import type { CheckDoneEvent, CheckProgressEvent, ExportFormat, HostInfo, SeamscoutApi } from '../main/app-api.js';
+import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat, HostInfo, SeamscoutApi } from '../main/app-api.js';
 import type { MatchBudget, Report } from '../core/report.js';
 import { defaultBudget } from '../core/report.js';
 import { rejudge } from '../core/verdicts.js';
@@ -72,7 +72,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   let budget: MatchBudget = defaultBudget;
   let budgetEdited = false;
   let running: Running | null = null;
-  let early: ({ kind: 'progress'; e: CheckProgressEvent } | { kind: 'done'; e: CheckDoneEvent })[] = [];
+  let early: ({ kind: 'progress'; e: CheckProgressEvent } | { kind: 'done'; e: CheckDoneEvent } | { kind: 'partial'; e: CheckPartialEvent })[] = [];
   let checkId: number | null = null;
   let raw: Report | null = null;
   let report: Report | null = null;
@@ -144,7 +144,11 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
       replaceChildren(view, running.view.element);
       running.view.update(running.model);
     } else if (screen === 'results' && report) {
-      replaceChildren(view, results);
+      // While the check still runs, its progress (and Cancel) stays above the results so far.
+      if (running) {
+        replaceChildren(view, running.view.element, results);
+        running.view.update(running.model);
+      } else replaceChildren(view, results);
       fillResults();
     }
   }
@@ -294,6 +298,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
       early = [];
       for (const x of pending) {
         if (x.kind === 'progress') progressed(x.e);
+        else if (x.kind === 'partial') partialArrived(x.e);
         else finished(x.e);
       }
     } catch (e) {
@@ -323,7 +328,19 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     }
     if (e.checkId !== r.id) return;
     r.model = withEvent(r.model, e);
-    if (screen === 'progress') r.view.update(r.model);
+    if (screen === 'progress' || screen === 'results') r.view.update(r.model);
+  }
+
+  /** Results so far of the running check: shown at once, replaced by fuller ones as they come. */
+  function partialArrived(e: CheckPartialEvent): void {
+    const r = running;
+    if (!r) return;
+    if (r.id === null) {
+      early.push({ kind: 'partial', e });
+      return;
+    }
+    if (e.checkId !== r.id) return;
+    receiveReport(e.checkId, e.report);
   }
 
   function finished(e: CheckDoneEvent): void {
@@ -495,6 +512,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   win.addEventListener('drop', onDrop);
   const offProgress = api.onProgress(progressed);
   const offDone = api.onDone(finished);
+  const offPartial = api.onPartial(partialArrived);
 
   render();
 
@@ -529,6 +547,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
       win.removeEventListener('drop', onDrop);
       offProgress();
       offDone();
+      offPartial();
       if (saveTimer !== null) clearTimeout(saveTimer);
       replaceChildren(root);
     },

@@ -1,6 +1,6 @@
 // The page's side of the local browser host: the same SeamscoutApi as the desktop bridge, over HTTP
 // to 127.0.0.1 with this run's token (given in the address the host printed).
-import type { CheckDoneEvent, CheckProgressEvent, ExportFormat, HostInfo, SeamscoutApi } from '../main/app-api.js';
+import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat, HostInfo, SeamscoutApi } from '../main/app-api.js';
 import type { MatchBudget } from '../core/report.js';
 
 function takeToken(): string {
@@ -59,5 +59,6 @@ export function createBrowserClient(): SeamscoutApi {
     frameUrl: (id, file, maxSide) => `/frame/${id}/${encodeURIComponent(file)}?max=${Math.round(maxSide)}&t=${encodeURIComponent(token)}`,
     onProgress: (l) => listen<CheckProgressEvent>('progress', l),
     onDone: (l) => listen<CheckDoneEvent>('done', l),
+    onPartial: (l) => listen<CheckPartialEvent>('partial', l),
   };
 }
