@@ -38,6 +38,7 @@ function maxCornerError(h1: readonly number[], h2: readonly number[], w: number,
 describe('the demo shoot with its planted problems (12 stations, 3000x2000)', () => {
   let truth: DemoTruth;
   let report: Report;
+  let peakHeld = 0;
   /** The truth of a pair in either direction (inverted when listed the other way round). */
   const truthPair = (a: string, b: string): { homography: number[]; overlap: number; evDiff: number } => {
     const t = truth.pairs.find((q) => q.a === a && q.b === b);
@@ -48,8 +49,16 @@ describe('the demo shoot with its planted problems (12 stations, 3000x2000)', ()
   beforeAll(async () => {
     const demo = await writeDemoShoot(join(tempDir(), 'shoot'));
     truth = demo.truth;
-    report = judge((await runCheck(demo.folder, { pool })).analysis, defaultBudget);
+    const result = await runCheck(demo.folder, { pool });
+    peakHeld = result.peakFramesHeld;
+    report = judge(result.analysis, defaultBudget);
   }, 240_000);
+
+  it('holds the pixels of a few frames at a time, not of the whole sequence', () => {
+    // Two worker threads: 4 frames decoding, a station and its neighbours' references.
+    expect(peakHeld).toBeLessThanOrEqual(4 + 3 * 3 + 2);
+    expect(peakHeld).toBeLessThan(truth.frames.length / 2);
+  });
 
   it('groups the stations exactly and picks the 0 EV frame as reference', () => {
     expect(report.stations.map((s) => s.frames)).toEqual(truth.stations.map((s) => s.frames));

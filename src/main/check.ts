@@ -3,6 +3,7 @@ import { invert, multiply, normalise, project } from '../core/homography.js';
 import { shootingOrder } from '../core/natural-order.js';
 import type { Analysis, FrameMeasure, PairKind, PairMeasure, SkippedFile, StationMeasure } from '../core/report.js';
 import { analysisToFull } from '../core/resolution.js';
+import type { StationGroup } from '../core/stations.js';
 import { groupStations } from '../core/stations.js';
 import { focalPxFrom35mm, rotationAngleDeg } from '../core/sweep.js';
 import type { AnalysisPool } from './analysis-pool.js';
@@ -48,6 +49,8 @@ export interface TiePointSet {
 export interface CheckResult {
   readonly analysis: Analysis;
   readonly tiePoints: readonly TiePointSet[];
+  /** Most frames whose pixels and features were held at once (memory follows this). */
+  readonly peakFramesHeld: number;
 }
 
 /**
@@ -56,14 +59,7 @@ export interface CheckResult {
  */
 export const defaultMaxSide = 1500;
 
-interface LoadedFrame {
-  readonly file: ScannedFile;
-  readonly exif: FrameExif;
-  readonly data: FrameAnalysis;
-}
-
-/** A plain reason for a file that could not be analysed, from what the decoder or the system said. */
-export function skipOf(file: string, err: unknown, size?: number): SkippedFile {
+function skipOf(file: string, err: unknown, size?: number): SkippedFile {
   const message = err instanceof Error ? err.message : String(err);
   const code = (err as NodeJS.ErrnoException)?.code;
   if (size === 0) return { file, code: 'unreadable', reason: 'empty file (0 bytes): copy it from the card again' };
@@ -91,10 +87,10 @@ async function inOrder<T, R>(items: readonly T[], limit: number, task: (item: T,
   return out;
 }
 
-function fullResolution(pair: PairAnalysis, a: LoadedFrame, b: LoadedFrame): { h: Float64Array | null; scale: number } {
-  const fa = analysisToFull(a.data.fullWidth, a.data.fullHeight, a.data.features.width, a.data.features.height);
-  const fb = analysisToFull(b.data.fullWidth, b.data.fullHeight, b.data.features.width, b.data.features.height);
-  const scale = a.data.fullWidth / a.data.features.width;
+function fullResolution(pair: PairAnalysis, a: FrameSummary, b: FrameSummary): { h: Float64Array | null; scale: number } {
+  const fa = analysisToFull(a.fullWidth, a.fullHeight, a.anWidth, a.anHeight);
+  const fb = analysisToFull(b.fullWidth, b.fullHeight, b.anWidth, b.anHeight);
+  const scale = a.fullWidth / a.anWidth;
   if (!pair.homography) return { h: null, scale };
   return { h: normalise(multiply(multiply(fb, pair.homography), invert(fa)!)), scale };
 }
@@ -108,103 +104,292 @@ function cornerShift(h: Float64Array, w: number, hh: number): number {
   return worst;
 }
 
+interface FrameSummary {
+  readonly fullWidth: number;
+  readonly fullHeight: number;
+  readonly anWidth: number;
+  readonly anHeight: number;
+  readonly keypoints: number;
+  readonly sharpness: number;
+  readonly fingerprint: string;
+}
+
+/** A decoded frame: what the report needs of it, and its analysis while pairs still need it. */
+interface Frame {
+  readonly file: ScannedFile;
+  readonly exif: FrameExif;
+  readonly summary: FrameSummary;
+  /** Features and pixels; let go (null) once no planned pair needs them. */
+  data: FrameAnalysis | null;
+}
+
+interface PlannedPair {
+  readonly i: number;
+  readonly j: number;
+  readonly kind: PairKind;
+}
+
+interface Station {
+  readonly members: number[];
+  readonly reference: number;
+  readonly offsets: (number | null)[];
+  readonly groupedBy: StationGroup['groupedBy'];
+}
+
+/** A counting semaphore for work in flight. */
+function slots(n: number): <T>(task: () => Promise<T>) => Promise<T> {
+  let free = n;
+  const waiting: (() => void)[] = [];
+  return async (task) => {
+    while (free <= 0) await new Promise<void>((r) => waiting.push(r));
+    free--;
+    try {
+      return await task();
+    } finally {
+      free++;
+      waiting.shift()?.();
+    }
+  };
+}
+
 /**
  * The sequence check: reads a folder (never writing to it), analyses every frame in the worker pool,
  * groups stations, matches the pairs that matter and returns the measurements, unjudged.
+ *
+ * It streams: stations are grouped from EXIF before any decoding, a station's pairs are matched as
+ * soon as its frames and its neighbour's are decoded, and a frame's pixels and features are let go
+ * once no planned pair needs them, so memory follows the frames in flight, not the length of the
+ * sequence. (Without EXIF exposure data, stations come from the content, which needs every frame
+ * first; with --all-pairs, every reference frame is kept for the pairs between them.)
  */
 export async function runCheck(folder: string, options: CheckOptions = {}): Promise<CheckResult> {
   const maxSide = options.maxSide ?? defaultMaxSide;
   const pool = options.pool ?? createAnalysisPool(options.threads);
+  const signal = options.signal;
   try {
     const scan = await scanFolder(folder, options.recursive ?? false);
     const skipped: SkippedFile[] = scan.problems.map((p) => ({ file: p.name, code: 'unreadable', reason: `cannot be read: ${p.reason}` }));
-    const exifs = await inOrder(scan.files, 8, (f) => readFrameExif(f.path), options.signal);
+    const exifs = await inOrder(scan.files, 8, (f) => readFrameExif(f.path), signal);
     const ordered = shootingOrder(scan.files.map((file, i) => ({ file: file.name, captureMs: exifs[i].captureMs, scanned: file, exif: exifs[i] })));
+    const n = ordered.length;
 
-    let framesDone = 0;
+    const byExif = ordered.some((o) => o.exif.settings.exposureTime !== null || o.exif.settings.evBias !== null);
+    const planGroups = byExif ? groupStations(ordered.map((o) => ({ settings: o.exif.settings, captureMs: o.exif.captureMs }))) : null;
+    const largest = planGroups ? Math.max(1, ...planGroups.map((g) => g.members.length)) : 1;
     const lanes = Math.max(2, 2 * pool.threads);
-    const loaded = await inOrder(ordered, lanes, async (o) => {
+    // Decoded frames held at once: the frames in flight, a station and its neighbours.
+    const maxHeld = byExif && !options.allPairs ? lanes + 3 * largest + 2 : Infinity;
+
+    const frames: (Frame | null | undefined)[] = new Array(n).fill(undefined);
+    const stations: Station[] = [];
+    const stationOf = new Int32Array(n).fill(-1);
+    const planned: PlannedPair[] = [];
+    const pairResults = new Map<string, PairAnalysis>();
+    const need = new Int32Array(n);
+    const pairTasks: Promise<void>[] = [];
+    const pairSlot = slots(Math.max(2, pool.threads));
+    let framesDone = 0, pairsDone = 0;
+    let held = 0, peakHeld = 0;
+    const roomWaiters: (() => void)[] = [];
+    let partialHook: (() => void) | null = null;
+    let finalised = 0;
+    const keepAll = !byExif || (options.allPairs ?? false);
+
+    const release = (k: number): void => {
+      const f = frames[k];
+      if (!f || !f.data || keepAll || need[k] > 0) return;
+      const s = stationOf[k];
+      if (s < 0) return;
+      const st = stations[s];
+      // A reference waits for its neighbour pair with the next station; the first (and so the last)
+      // waits for the closure pair.
+      if (k === st.reference && (s === 0 || finalised <= s + 1)) return;
+      f.data = null;
+      held--;
+      roomWaiters.shift()?.();
+    };
+
+    const analysePair = (i: number, j: number): Promise<void> =>
+      pairSlot(async () => {
+        const key = `${i}:${j}`;
+        if (pairResults.has(key)) return;
+        const a = frames[i]!.data, b = frames[j]!.data;
+        if (!a || !b) throw new Error(`internal: frames of pair ${i}:${j} were let go too early`);
+        pairResults.set(key, await pool.analysePair(a, b, signal));
+        options.onProgress?.({ phase: 'pairs', done: ++pairsDone, total: planned.length, file: frames[j]!.file.name });
+      });
+
+    const plan = (i: number, j: number, kind: PairKind): void => {
+      planned.push({ i, j, kind });
+      need[i]++;
+      need[j]++;
+      const task = analysePair(i, j).finally(() => {
+        need[i]--;
+        need[j]--;
+        release(i);
+        release(j);
+        partialHook?.();
+      });
+      // Awaited all together later; a failure must not count as unhandled before that.
+      task.catch(() => undefined);
+      pairTasks.push(task);
+    };
+
+    const finalise = (members: number[], reference: number, offsets: (number | null)[], groupedBy: Station['groupedBy']): void => {
+      const s = stations.length;
+      stations.push({ members, reference, offsets, groupedBy });
+      for (const m of members) stationOf[m] = s;
+      for (const m of members) if (m !== reference) plan(reference, m, 'bracket');
+      if (s > 0) plan(stations[s - 1].reference, reference, 'neighbour');
+      finalised = s + 1;
+      if (s > 0) release(stations[s - 1].reference);
+      for (const m of members) release(m);
+    };
+
+    // EXIF stations, finalised in order as soon as all their frames are decoded (or failed).
+    let nextGroup = 0;
+    const finaliseReady = (): void => {
+      if (!planGroups) return;
+      while (nextGroup < planGroups.length && planGroups[nextGroup].members.every((m) => frames[m] !== undefined)) {
+        const g = planGroups[nextGroup++];
+        const members = g.members.filter((m) => frames[m]);
+        if (members.length === 0) continue;
+        let reference = g.reference;
+        if (!frames[reference]) {
+          // The reference failed: the member nearest 0 EV takes its place.
+          const off = (m: number): number => Math.abs(g.offsets[g.members.indexOf(m)] ?? 0);
+          reference = members.reduce((best, m) => (off(m) < off(best) ? m : best), members[0]);
+        }
+        const base = g.offsets[g.members.indexOf(reference)];
+        const offsets = members.map((m) => {
+          const o = g.offsets[g.members.indexOf(m)];
+          return o === null || base === null ? null : o - base;
+        });
+        finalise(members, reference, offsets, members.length === 1 ? 'single' : g.groupedBy);
+      }
+    };
+
+    const seenPixels = new Map<string, string>();
+    const loadFrame = async (k: number): Promise<void> => {
+      const o = ordered[k];
+      while (held >= maxHeld) await new Promise<void>((r) => roomWaiters.push(r));
+      signal?.throwIfAborted();
+      held++;
+      peakHeld = Math.max(peakHeld, held);
       try {
         let data = (await options.cache?.get(o.scanned, maxSide)) ?? null;
         if (!data) {
-          data = await pool.analyseFrame(o.scanned.path, maxSide, options.signal);
+          data = await pool.analyseFrame(o.scanned.path, maxSide, signal);
           await options.cache?.put(o.scanned, maxSide, data);
         }
-        return { file: o.scanned, exif: o.exif, data } as LoadedFrame;
+        const first = seenPixels.get(data.fingerprint);
+        if (first !== undefined) {
+          // Copies of one picture (a card copied twice into one folder): the first one counts.
+          skipped.push({ file: o.file, code: 'duplicate', reason: `the same picture as ${first}: left out` });
+          frames[k] = null;
+          held--;
+        } else {
+          seenPixels.set(data.fingerprint, o.file);
+          const summary: FrameSummary = {
+            fullWidth: data.fullWidth, fullHeight: data.fullHeight, anWidth: data.features.width, anHeight: data.features.height,
+            keypoints: data.features.keypoints.count, sharpness: data.sharpness, fingerprint: data.fingerprint,
+          };
+          frames[k] = { file: o.scanned, exif: o.exif, summary, data };
+        }
       } catch (err) {
-        if (options.signal?.aborted) throw err;
+        held--;
+        if (signal?.aborted) throw err;
         skipped.push(skipOf(o.file, err, o.scanned.size));
-        return null;
+        frames[k] = null;
       } finally {
-        options.onProgress?.({ phase: 'frames', done: ++framesDone, total: ordered.length, file: o.file });
+        roomWaiters.shift()?.();
+        options.onProgress?.({ phase: 'frames', done: ++framesDone, total: n, file: o.file });
       }
-    }, options.signal);
-    // Copies of one picture (a card copied twice into one folder): the first one counts.
-    const seenPixels = new Map<string, string>();
-    const frames = loaded.filter((f): f is LoadedFrame => {
-      if (f === null) return false;
-      const first = seenPixels.get(f.data.fingerprint);
-      if (first !== undefined) {
-        skipped.push({ file: f.file.name, code: 'duplicate', reason: `the same picture as ${first}: left out` });
-        return false;
-      }
-      seenPixels.set(f.data.fingerprint, f.file.name);
-      return true;
-    });
-
-    // Pairs are analysed through one queue so progress counts them all.
-    const pairResults = new Map<string, PairAnalysis>();
-    let partialHook: (() => void) | null = null;
-    let pairsDone = 0, pairsTotal = 0;
-    const analyse = async (pairs: [number, number][]): Promise<void> => {
-      const todo = pairs.filter(([i, j]) => !pairResults.has(`${i}:${j}`));
-      pairsTotal += todo.length;
-      await inOrder(todo, Math.max(2, pool.threads), async ([i, j]) => {
-        pairResults.set(`${i}:${j}`, await pool.analysePair(frames[i].data, frames[j].data, options.signal));
-        options.onProgress?.({ phase: 'pairs', done: ++pairsDone, total: pairsTotal, file: frames[j].file.name });
-        partialHook?.();
-      }, options.signal);
+      finaliseReady();
     };
 
-    // Stations: from EXIF; from content where no frame has exposure data.
-    const inputs = frames.map((f) => ({ settings: f.exif.settings, captureMs: f.exif.captureMs }));
-    const noExposureData = frames.every((f) => f.exif.settings.exposureTime === null && f.exif.settings.evBias === null);
-    let links: boolean[] | null = null;
-    if (noExposureData && frames.length > 1) {
-      const consecutive = frames.slice(1).map((_, i) => [i, i + 1] as [number, number]);
-      await analyse(consecutive);
-      links = consecutive.map(([i, j]) => {
-        const p = pairResults.get(`${i}:${j}`)!;
-        const { h } = fullResolution(p, frames[i], frames[j]);
-        return h !== null && cornerShift(h, frames[i].data.fullWidth, frames[i].data.fullHeight) < 0.05 * frames[i].data.fullWidth && p.evDiff !== null && Math.abs(p.evDiff) > 0.3;
-      });
+    // Results as they arrive, at most every 700 ms.
+    if (options.onPartial) {
+      const onPartial = options.onPartial;
+      let last = 0;
+      partialHook = () => {
+        const now = Date.now();
+        if (now - last < 700) return;
+        last = now;
+        onPartial(assemble(null).analysis);
+      };
     }
-    const groups = groupStations(inputs, links);
 
-    const planned: { i: number; j: number; kind: PairKind }[] = [];
-    for (const g of groups) for (const m of g.members) if (m !== g.reference) planned.push({ i: g.reference, j: m, kind: 'bracket' });
-    for (let s = 0; s + 1 < groups.length; s++) planned.push({ i: groups[s].reference, j: groups[s + 1].reference, kind: 'neighbour' });
+    await inOrder(ordered, lanes, (_o, k) => loadFrame(k), signal);
+
+    if (!byExif) {
+      // Stations from content: consecutive frames showing one view at different brightness.
+      const loadedIdx = frames.map((f, k) => (f ? k : -1)).filter((k) => k >= 0);
+      const consecutive = loadedIdx.slice(1).map((k, x) => [loadedIdx[x], k] as [number, number]);
+      await Promise.all(consecutive.map(([i, j]) => analysePair(i, j)));
+      const links = consecutive.map(([i, j]) => {
+        const p = pairResults.get(`${i}:${j}`)!;
+        const { h } = fullResolution(p, frames[i]!.summary, frames[j]!.summary);
+        const w = frames[i]!.summary.fullWidth;
+        return h !== null && cornerShift(h, w, frames[i]!.summary.fullHeight) < 0.05 * w && p.evDiff !== null && Math.abs(p.evDiff) > 0.3;
+      });
+      const groups = groupStations(loadedIdx.map((k) => ({ settings: frames[k]!.exif.settings, captureMs: frames[k]!.exif.captureMs })), links);
+      for (const g of groups) finalise(g.members.map((m) => loadedIdx[m]), loadedIdx[g.reference], g.offsets, g.groupedBy);
+    }
+    await Promise.all(pairTasks);
+
+    // Sweep from the neighbour chain, where every neighbour matched and the focal length is known.
+    const angleOf = (p: PlannedPair): number | null => {
+      const r = pairResults.get(`${p.i}:${p.j}`);
+      const fa = frames[p.i]!, f35 = fa.exif.settings.focalLength35;
+      if (!r || !f35) return null;
+      const { h } = fullResolution(r, fa.summary, frames[p.j]!.summary);
+      return h ? rotationAngleDeg(h, focalPxFrom35mm(f35, fa.summary.fullWidth, fa.summary.fullHeight), fa.summary.fullWidth, fa.summary.fullHeight) : null;
+    };
+    const neighbours = planned.filter((p) => p.kind === 'neighbour');
+    let sweepDeg: number | null = stations.length > 1 ? 0 : null;
+    for (const p of neighbours) {
+      const a = angleOf(p);
+      sweepDeg = a === null || sweepDeg === null ? null : sweepDeg + a;
+    }
+    if (stations.length >= 3 && (sweepDeg === null || sweepDeg >= 270)) {
+      // The closure pair, when the chain may have come round (or its length is unknown); kept when
+      // it should close or did.
+      const closure: PlannedPair = { i: stations[stations.length - 1].reference, j: stations[0].reference, kind: 'closure' };
+      await analysePair(closure.i, closure.j);
+      const r = pairResults.get(`${closure.i}:${closure.j}`)!;
+      if (r.homography || (sweepDeg !== null && sweepDeg >= 330)) planned.push(closure);
+      const a = r.homography && sweepDeg !== null ? angleOf(closure) : null;
+      if (a !== null && sweepDeg !== null) sweepDeg += a;
+    }
     if (options.allPairs) {
       // Every other pair of reference frames, screened cheaply on a sample of keypoints first.
-      const refs = groups.map((g) => g.reference);
-      const done = new Set(planned.map((p) => `${p.i}:${p.j}`));
-      const samples = frames.map((f) => sampleFeatures(f.data.features));
+      const refs = stations.map((s) => s.reference);
+      const known = new Set(planned.map((p) => `${p.i}:${p.j}`));
+      const samples = new Map(refs.map((k) => [k, sampleFeatures(frames[k]!.data!.features)]));
       const others: [number, number][] = [];
       for (let x = 0; x < refs.length; x++)
-        for (let y = x + 2; y < refs.length; y++) if (!done.has(`${refs[x]}:${refs[y]}`)) others.push([refs[x], refs[y]]);
-      for (const [i, j] of screenPairs(samples, others)) planned.push({ i, j, kind: 'other' });
+        for (let y = x + 2; y < refs.length; y++) if (!known.has(`${refs[x]}:${refs[y]}`)) others.push([refs[x], refs[y]]);
+      const list = others.map(([i, j]) => [samples.get(i)!, samples.get(j)!]);
+      const kept = screenPairs(list.flat(), list.map((_, x) => [2 * x, 2 * x + 1] as [number, number]));
+      const chosen = kept.map(([x]) => others[x / 2]);
+      for (const [i, j] of chosen) planned.push({ i, j, kind: 'other' });
+      await Promise.all(chosen.map(([i, j]) => analysePair(i, j)));
     }
-    /** The measurements so far: every frame and station, the pairs measured yet. */
-    const assemble = (chosen: readonly { i: number; j: number; kind: PairKind }[], sweep: number | null): CheckResult => {
-      const name = (i: number): string => frames[i].file.name;
+    return assemble(sweepDeg);
+
+    /** The measurements so far: frames of finalised stations, the stations, the pairs measured yet. */
+    function assemble(sweep: number | null): CheckResult {
+      const name = (k: number): string => frames[k]!.file.name;
       const tiePoints: TiePointSet[] = [];
-      const measured = chosen.filter(({ i, j }) => pairResults.has(`${i}:${j}`));
+      const measured = planned.filter(({ i, j }) => pairResults.has(`${i}:${j}`));
       const pairs: PairMeasure[] = measured.map(({ i, j, kind }) => {
         const r = pairResults.get(`${i}:${j}`)!;
-        const { h, scale } = fullResolution(r, frames[i], frames[j]);
+        const sa = frames[i]!.summary, sb = frames[j]!.summary;
+        const { h, scale } = fullResolution(r, sa, sb);
         if (h) {
-          const fa = analysisToFull(frames[i].data.fullWidth, frames[i].data.fullHeight, frames[i].data.features.width, frames[i].data.features.height);
-          const fb = analysisToFull(frames[j].data.fullWidth, frames[j].data.fullHeight, frames[j].data.features.width, frames[j].data.features.height);
+          const fa = analysisToFull(sa.fullWidth, sa.fullHeight, sa.anWidth, sa.anHeight);
+          const fb = analysisToFull(sb.fullWidth, sb.fullHeight, sb.anWidth, sb.anHeight);
           const pts = new Float64Array(r.tiePoints.length);
           for (let k = 0; k < r.tiePoints.length; k += 4) {
             pts[k] = fa[0] * r.tiePoints[k] + fa[2];
@@ -225,79 +410,32 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
           homography: h ? Array.from(h) : null,
           evDiff: r.evDiff,
           rmsError: r.rmsError === null ? null : r.rmsError * scale,
-          shiftPx: h ? cornerShift(h, frames[i].data.fullWidth, frames[i].data.fullHeight) : null,
+          shiftPx: h ? cornerShift(h, sa.fullWidth, sa.fullHeight) : null,
         };
       });
-
-      const stationOfFrame = new Map<number, number>();
-      groups.forEach((g, s) => g.members.forEach((m) => stationOfFrame.set(m, s)));
-      const frameMeasures: FrameMeasure[] = frames.map((f) => ({
-        file: f.file.name,
-        width: f.data.fullWidth,
-        height: f.data.fullHeight,
-        captureTime: f.exif.captureTime,
-        settings: f.exif.settings,
-        sharpness: f.data.sharpness,
-        keypoints: f.data.features.keypoints.count,
-        fingerprint: f.data.fingerprint,
-      }));
-      const stations: StationMeasure[] = groups.map((g, s) => ({
+      const inStations = stations.flatMap((s) => s.members).sort((p, q) => p - q);
+      const frameMeasures: FrameMeasure[] = inStations.map((k) => {
+        const f = frames[k]!;
+        return {
+          file: f.file.name,
+          width: f.summary.fullWidth,
+          height: f.summary.fullHeight,
+          captureTime: f.exif.captureTime,
+          settings: f.exif.settings,
+          sharpness: f.summary.sharpness,
+          keypoints: f.summary.keypoints,
+          fingerprint: f.summary.fingerprint,
+        };
+      });
+      const stationMeasures: StationMeasure[] = stations.map((st, s) => ({
         index: s,
-        frames: g.members.map(name),
-        reference: name(g.reference),
-        evOffsets: g.offsets,
-        groupedBy: g.groupedBy,
+        frames: st.members.map(name),
+        reference: name(st.reference),
+        evOffsets: st.offsets,
+        groupedBy: st.groupedBy,
       }));
-      return { analysis: { folder, frames: frameMeasures, stations, pairs, skipped, sweepDeg: sweep }, tiePoints };
-    };
-
-    // Results as they arrive: the stations at once, then the pairs, at most every 700 ms.
-    if (options.onPartial) {
-      const onPartial = options.onPartial;
-      let last = 0;
-      partialHook = () => {
-        const now = Date.now();
-        if (now - last < 700) return;
-        last = now;
-        onPartial(assemble(planned, null).analysis);
-      };
-      onPartial(assemble(planned, null).analysis);
+      return { analysis: { folder, frames: frameMeasures, stations: stationMeasures, pairs, skipped: [...skipped], sweepDeg: sweep }, tiePoints, peakFramesHeld: peakHeld };
     }
-    await analyse(planned.map((p) => [p.i, p.j]));
-
-    // Sweep from the neighbour chain, where every neighbour matched and the focal length is known.
-    const sweepOf = (): number | null => {
-      let sum = 0;
-      for (const p of planned.filter((q) => q.kind === 'neighbour')) {
-        const r = pairResults.get(`${p.i}:${p.j}`)!;
-        const fa = frames[p.i], f35 = fa.exif.settings.focalLength35;
-        const { h } = fullResolution(r, fa, frames[p.j]);
-        if (!h || !f35) return null;
-        const angle = rotationAngleDeg(h, focalPxFrom35mm(f35, fa.data.fullWidth, fa.data.fullHeight), fa.data.fullWidth, fa.data.fullHeight);
-        if (angle === null) return null;
-        sum += angle;
-      }
-      return groups.length > 1 ? sum : null;
-    };
-    let sweepDeg = sweepOf();
-    if (groups.length >= 3) {
-      const closure = { i: groups[groups.length - 1].reference, j: groups[0].reference, kind: 'closure' as PairKind };
-      // Try the closure when the chain may have come round (or its length is unknown); keep it when
-      // it should close or did.
-      if (sweepDeg === null || sweepDeg >= 270) {
-        await analyse([[closure.i, closure.j]]);
-        const r = pairResults.get(`${closure.i}:${closure.j}`)!;
-        if (r.homography || (sweepDeg !== null && sweepDeg >= 330)) planned.push(closure);
-        if (r.homography && sweepDeg !== null) {
-          const fa = frames[closure.i], f35 = fa.exif.settings.focalLength35;
-          const { h } = fullResolution(r, fa, frames[closure.j]);
-          const angle = h && f35 ? rotationAngleDeg(h, focalPxFrom35mm(f35, fa.data.fullWidth, fa.data.fullHeight), fa.data.fullWidth, fa.data.fullHeight) : null;
-          if (angle !== null) sweepDeg += angle;
-        }
-      }
-    }
-
-    return assemble(planned, sweepDeg);
   } finally {
     if (!options.pool) await pool.destroy();
   }
