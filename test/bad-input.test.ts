@@ -9,7 +9,7 @@ import type { Report } from '../src/core/report.js';
 import { defaultBudget } from '../src/core/report.js';
 import { judge } from '../src/core/verdicts.js';
 import { createAnalysisPool } from '../src/main/analysis-pool.js';
-import { runCheck } from '../src/main/check.js';
+import { runCheck, skipOf } from '../src/main/check.js';
 import { runCli, tempDir } from './helpers/cli.js';
 import { externalFixture } from './helpers/images.js';
 import { snapshot } from './helpers/snapshot.js';
@@ -129,6 +129,14 @@ describe('folders that are not a sequence', () => {
 });
 
 describe('permissions and the command line', () => {
+  it('words the system\'s refusals plainly', () => {
+    const err = (code: string): Error => Object.assign(new Error(`${code}: refused`), { code });
+    expect(skipOf('a.jpg', err('EACCES')).reason).toBe('no permission to read it');
+    expect(skipOf('a.jpg', err('EPERM')).reason).toBe('no permission to read it');
+    expect(skipOf('a.jpg', err('ENOENT')).reason).toBe('the file went away during the check');
+    expect(skipOf('a.jpg', new Error('Input image exceeds pixel limit')).code).toBe('too-large');
+  });
+
   it('reports a file it may not read (skipped when running as root, who may read anything)', async (ctx) => {
     if (process.getuid?.() === 0) ctx.skip();
     const folder = tempDir();

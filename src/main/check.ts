@@ -59,7 +59,8 @@ export interface CheckResult {
  */
 export const defaultMaxSide = 1500;
 
-function skipOf(file: string, err: unknown, size?: number): SkippedFile {
+/** A plain reason for a file that could not be analysed, from what the decoder or the system said. */
+export function skipOf(file: string, err: unknown, size?: number): SkippedFile {
   const message = err instanceof Error ? err.message : String(err);
   const code = (err as NodeJS.ErrnoException)?.code;
   if (size === 0) return { file, code: 'unreadable', reason: 'empty file (0 bytes): copy it from the card again' };

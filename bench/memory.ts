@@ -1,0 +1,43 @@
+// Peak memory of a check against the length of the sequence (issue: memory follows the frames in
+// flight, not the sequence): checks the first 24 and then all 201 frames of a 67-station bracketed
+// sweep of 24 MP (6000x4000) JPEGs from the demo generator, cached in .bench-cache between runs,
+// each check in its own process, and prints wall time and peak resident memory of both.
+import { spawnSync } from 'node:child_process';
+import { existsSync, mkdirSync, readdirSync, symlinkSync } from 'node:fs';
+import { join } from 'node:path';
+import { writeDemoShoot } from '../src/main/demo-writer.js';
+import { projectRoot } from '../test/helpers/cli.js';
+
+const cache = join(projectRoot, '.bench-cache');
+const full = join(cache, 'sweep-201x24mp');
+if (!existsSync(join(full, 'seamscout-truth.json'))) {
+  console.log('writing 201 frames of 6000x4000 once (several minutes) ...');
+  await writeDemoShoot(full, { stations: 67, width: 6000, height: 4000, clean: true, seed: 24 });
+}
+const short = join(cache, 'sweep-24x24mp');
+if (!existsSync(short)) {
+  mkdirSync(short, { recursive: true });
+  for (const f of readdirSync(full).filter((n) => n.endsWith('.JPG')).sort().slice(0, 24)) symlinkSync(join(full, f), join(short, f));
+}
+
+function measure(folder: string): { seconds: number; peakMiB: number; frames: number } {
+  // The command line as a user runs it, in a child that reports its own peak resident set (all its
+  // threads) when it exits.
+  const script = `process.on('exit', () => process.stderr.write('\\nPEAK ' + process.resourceUsage().maxRSS + '\\n')); process.argv = [process.argv[0], 'seamscout', 'check', ${JSON.stringify(folder)}, '--no-cache', '--no-progress']; await import(${JSON.stringify(join(projectRoot, 'src/main/cli.ts'))});`;
+  const started = performance.now();
+  const r = spawnSync(process.execPath, ['--import', 'tsx', '--input-type=module', '-e', script], {
+    encoding: 'utf8',
+    env: { ...process.env, SEAMSCOUT_CONFIG_DIR: join(cache, 'config') },
+    maxBuffer: 64 * 1024 * 1024,
+  });
+  const seconds = (performance.now() - started) / 1000;
+  const peak = /PEAK (\d+)/.exec(r.stderr);
+  if (!peak) throw new Error(`the check did not report its memory: ${r.stderr.slice(-500)}`);
+  return { seconds, peakMiB: Number(peak[1]) / 1024, frames: readdirSync(folder).filter((n) => n.endsWith('.JPG')).length };
+}
+
+const a = measure(short);
+const b = measure(full);
+console.log(`memory benchmark, ${new Date().toISOString().slice(0, 10)}, node ${process.version}`);
+for (const m of [a, b]) console.log(`${String(m.frames).padStart(4)} frames of 24 MP: ${m.seconds.toFixed(1)} s, peak RSS ${m.peakMiB.toFixed(0)} MiB`);
+console.log(`peak RSS ratio ${(b.peakMiB / a.peakMiB).toFixed(2)} for ${(b.frames / a.frames).toFixed(1)}x the frames (target: 200 frames under 1 GiB)`);
