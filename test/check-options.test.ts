@@ -72,6 +72,19 @@ describe('--all-pairs screening', () => {
   }, 120_000);
 });
 
+describe('--all-pairs in the check', () => {
+  it('adds exactly the other pairs that overlap', async () => {
+    const r = await runCheck(demo.folder, { pool: createAnalysisPool(0), allPairs: true });
+    const others = r.analysis.pairs.filter((p) => p.kind === 'other').map((p) => `${p.a}|${p.b}`);
+    const refs = new Set(demo.truth.stations.map((s) => s.reference));
+    const overlapping = demo.truth.pairs
+      .filter((p) => refs.has(p.a) && refs.has(p.b) && p.kind === 'other' && p.overlap > 0.2)
+      .map((p) => `${p.a}|${p.b}`);
+    expect(others.sort()).toEqual(overlapping.sort());
+    expect(r.analysis.pairs.filter((p) => p.kind === 'neighbour').length).toBe(demo.truth.stations.length - 1);
+  }, 120_000);
+});
+
 describe('the command line', () => {
   it('reads the budget from a settings file', async () => {
     const settings = join(tempDir(), 'settings.json');

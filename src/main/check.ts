@@ -1,3 +1,4 @@
+import type { FrameSample } from '../core/candidate-pairs.js';
 import { sampleFeatures, screenPairs } from '../core/candidate-pairs.js';
 import { invert, multiply, normalise, project } from '../core/homography.js';
 import { shootingOrder } from '../core/natural-order.js';
@@ -367,13 +368,12 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
       // Every other pair of reference frames, screened cheaply on a sample of keypoints first.
       const refs = stations.map((s) => s.reference);
       const known = new Set(planned.map((p) => `${p.i}:${p.j}`));
-      const samples = new Map(refs.map((k) => [k, sampleFeatures(frames[k]!.data!.features)]));
+      const samples: FrameSample[] = [];
+      for (const k of refs) samples[k] = sampleFeatures(frames[k]!.data!.features);
       const others: [number, number][] = [];
       for (let x = 0; x < refs.length; x++)
         for (let y = x + 2; y < refs.length; y++) if (!known.has(`${refs[x]}:${refs[y]}`)) others.push([refs[x], refs[y]]);
-      const list = others.map(([i, j]) => [samples.get(i)!, samples.get(j)!]);
-      const kept = screenPairs(list.flat(), list.map((_, x) => [2 * x, 2 * x + 1] as [number, number]));
-      const chosen = kept.map(([x]) => others[x / 2]);
+      const chosen = screenPairs(samples, others);
       for (const [i, j] of chosen) planned.push({ i, j, kind: 'other' });
       await Promise.all(chosen.map(([i, j]) => analysePair(i, j)));
     }
