@@ -335,3 +335,13 @@ describe('words and numbers', () => {
     expect(inFieldUnits('Expected a number from 0 to 20 for maxEvDiff but received -1', { maxEvDiff: '-1' })).toBe('Expected a number from 0 to 20 for maxEvDiff but received -1');
   });
 });
+
+describe('folder-level problems', () => {
+  it('are said in words above the strip', () => {
+    const empty = judge({ folder: '/card/empty', frames: [], stations: [], pairs: [], skipped: [], sweepDeg: null }, defaultBudget);
+    document.body.replaceChildren(renderSummary(empty));
+    const items = [...document.querySelectorAll('[data-folder-problem]')];
+    expect(items.map((i) => i.getAttribute('data-folder-problem'))).toEqual(['no-frames']);
+    expect(items[0].textContent).toMatch(/no frame could be checked/);
+  });
+});

@@ -411,7 +411,7 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
           homography: h ? Array.from(h) : null,
           evDiff: r.evDiff,
           rmsError: r.rmsError === null ? null : r.rmsError * scale,
-          shiftPx: h ? cornerShift(h, sa.fullWidth, sa.fullHeight) : null,
+          shiftPx: h && kind === 'bracket' ? cornerShift(h, sa.fullWidth, sa.fullHeight) : null,
         };
       });
       const inStations = stations.flatMap((s) => s.members).sort((p, q) => p - q);

@@ -36,6 +36,9 @@ export function renderSummary(report: Report): HTMLElement {
       stat('weak', String(c.weak), 'weak', verdictIcon('weak', 20)),
       stat('reshoot', String(c.reshoot), 'reshoot', verdictIcon('reshoot', 20)),
     ),
+    (report.folderProblems ?? []).length
+      ? el('ul', { class: 'folder-problems', 'data-folder-problems': '' }, report.folderProblems.map((p) => el('li', { 'data-folder-problem': p.code }, verdictIcon('weak', 20), ` ${p.advice}`)))
+      : null,
     report.skipped.length
       ? el(
           'details',
