@@ -15,11 +15,18 @@ export function formatSummary(report: Report): string {
   out.push(`${report.counts.frames} frames in ${report.counts.stations} stations${sweep}`);
   out.push('');
   const w = Math.max(8, ...report.frames.map((f) => f.file.length));
-  if (report.pairs.length) out.push(`  ${pad('pair', 2 * w + 4)}  ${pad('kind', 9)} overlap  inliers  EV      verdict`);
-  for (const p of report.pairs) {
+  // Bracket pairs are listed only when flagged; the rest are summed up in one line.
+  const shown = report.pairs.filter((p) => p.kind !== 'bracket' || p.verdict !== 'ok');
+  const quietBrackets = report.pairs.filter((p) => p.kind === 'bracket' && p.verdict === 'ok');
+  if (shown.length) out.push(`  ${pad('pair', 2 * w + 4)}  ${pad('kind', 9)} overlap  inliers  EV      verdict`);
+  for (const p of shown) {
     const overlap = p.overlap === null ? '   -  ' : `${(100 * p.overlap).toFixed(0).padStart(4)} %`;
     const ev = p.evDiff === null ? '  -   ' : `${p.evDiff >= 0 ? '+' : ''}${p.evDiff.toFixed(2)}`.padStart(6);
     out.push(`${mark[p.verdict]}${pad(`${p.a} -> ${p.b}`, 2 * w + 4)}  ${pad(p.kind, 9)} ${overlap}  ${String(p.inliers).padStart(7)}  ${ev}  ${word[p.verdict]}${p.reasons.length ? ` (${p.reasons.join(', ')})` : ''}`);
+  }
+  if (quietBrackets.length) {
+    const worstShift = Math.max(...quietBrackets.map((p) => p.shiftPx ?? 0));
+    out.push(`  ${quietBrackets.length} bracket frame${quietBrackets.length === 1 ? '' : 's'} aligned with their reference (largest shift ${worstShift.toFixed(1)} px)`);
   }
   const flaggedFrames = report.frames.filter((f) => f.verdict !== 'ok');
   if (flaggedFrames.length) {
