@@ -13,22 +13,12 @@ export const demoTruthFile = 'seamscout-truth.json';
 
 export type DemoPairKind = 'neighbour' | 'closure' | 'bracket' | 'other';
 
-export interface DemoTruthFrame {
-  readonly file: string;
-  readonly station: number;
-  readonly bracketIndex: number;
-  readonly evBias: number;
-  readonly exposureOffsetEv: number;
-  readonly yawDeg: number;
-  readonly pitchDeg: number;
-  readonly rollDeg: number;
-  readonly focalLengthMm: number;
-  readonly exposureTime: number;
-  readonly fNumber: number;
-  readonly iso: number;
-  readonly captureTime: string;
-  readonly blurPx: number;
-}
+/** A frame as the truth file records it: the plan's own fields, without its render-only ones. */
+export type DemoTruthFrame = Pick<
+  PlannedFrame,
+  | 'file' | 'station' | 'bracketIndex' | 'evBias' | 'exposureOffsetEv' | 'yawDeg' | 'pitchDeg' | 'rollDeg'
+  | 'focalLengthMm' | 'exposureTime' | 'fNumber' | 'iso' | 'captureTime' | 'blurPx'
+>;
 
 export interface DemoTruthPair {
   readonly a: string;
