@@ -3,25 +3,17 @@
 // sweep of 24 MP (6000x4000) JPEGs from the demo generator, cached in .bench-cache between runs,
 // each check in its own process, and prints wall time and peak resident memory of both.
 import { spawnSync } from 'node:child_process';
-import { existsSync, mkdirSync, readdirSync, symlinkSync } from 'node:fs';
+import { readdirSync } from 'node:fs';
 import { join } from 'node:path';
 import sharp from 'sharp';
 import { defaultMaxSide } from '../src/main/check.js';
 import { decodeForAnalysis } from '../src/main/decode.js';
-import { writeDemoShoot } from '../src/main/demo-writer.js';
 import { projectRoot } from '../test/helpers/cli.js';
+import { benchCache, longSweep, longSweepPrefix } from './sequences.js';
 
-const cache = join(projectRoot, '.bench-cache');
-const full = join(cache, 'sweep-201x24mp');
-if (!existsSync(join(full, 'seamscout-truth.json'))) {
-  console.log('writing 201 frames of 6000x4000 once (several minutes) ...');
-  await writeDemoShoot(full, { stations: 67, width: 6000, height: 4000, clean: true, seed: 24 });
-}
-const short = join(cache, 'sweep-24x24mp');
-if (!existsSync(short)) {
-  mkdirSync(short, { recursive: true });
-  for (const f of readdirSync(full).filter((n) => n.endsWith('.JPG')).sort().slice(0, 24)) symlinkSync(join(full, f), join(short, f));
-}
+const cache = benchCache;
+const full = await longSweep();
+const short = await longSweepPrefix(24);
 
 function measure(folder: string): { seconds: number; peakMiB: number; frames: number } {
   // The command line as a user runs it, in a child that reports its own peak resident set (all its
