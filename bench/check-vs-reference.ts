@@ -5,28 +5,25 @@
 //    Hamming with Lowe's ratio test, findHomography RANSAC) on the same decoded images and pairs.
 // Prints wall times, stages, the ratios check/floor and check/reference, and the accuracy of both
 // against the generator's truth (mean corner error at full resolution, overlap error).
-import { spawnSync } from 'node:child_process';
-import { readFileSync, readdirSync } from 'node:fs';
+import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import sharp from 'sharp';
 import type { DemoTruth } from '../src/core/demo-truth.js';
 import { demoTruthFile } from '../src/core/demo-truth.js';
-import type { GrayImage } from '../src/core/image.js';
 import { invert, normalise } from '../src/core/homography.js';
 import { overlapRegions } from '../src/core/overlap.js';
 import type { Report } from '../src/core/report.js';
 import { defaultMaxSide } from '../src/main/check.js';
-import { decodeForAnalysis } from '../src/main/decode.js';
 import { meanCornerError } from '../test/helpers/images.js';
 import { loadOpenCV } from '../test/helpers/opencv.js';
-import { projectRoot, tempDir } from '../test/helpers/cli.js';
+import { tempDir } from '../test/helpers/cli.js';
 import { cvDetect, cvFree, cvHomography, cvMatch } from './opencv-pipeline.js';
-import { benchCache, shortSweep } from './sequences.js';
+import { shortSweep } from './sequences.js';
+import { checkInChild, decodeFloor, framesOf } from './whole-check.js';
 
 const maxSide = Number(process.env.BENCH_SIZE ?? defaultMaxSide);
 const folder = await shortSweep();
 const truth = JSON.parse(readFileSync(join(folder, demoTruthFile), 'utf8')) as DemoTruth;
-const files = readdirSync(folder).filter((f) => f.endsWith('.JPG')).sort();
+const files = framesOf(folder);
 const { width: W, height: H } = truth.camera;
 
 function truthOf(a: string, b: string): { homography: number[]; overlap: number } {
@@ -37,23 +34,11 @@ function truthOf(a: string, b: string): { homography: number[]; overlap: number 
 }
 
 // 1. The decode floor.
-const threads = sharp.concurrency();
-sharp.concurrency(1);
-const decoded = new Map<string, GrayImage>();
-let started = performance.now();
-for (const f of files) decoded.set(f, (await decodeForAnalysis(join(folder, f), maxSide)).image);
-const floor = (performance.now() - started) / 1000;
-sharp.concurrency(threads);
+const { seconds: floor, images: decoded } = await decodeFloor(folder, maxSide);
 
 // 2. The check, as the command line runs it.
 const reportFile = join(tempDir(), 'report.json');
-const script = `process.on('exit', () => process.stderr.write('\\nPEAK ' + process.resourceUsage().maxRSS + '\\n')); process.argv = [process.argv[0], 'seamscout', 'check', ${JSON.stringify(folder)}, '--no-cache', '--no-progress', '--size', '${maxSide}', '--json', ${JSON.stringify(reportFile)}]; await import(${JSON.stringify(join(projectRoot, 'src/main/cli.ts'))});`;
-started = performance.now();
-const child = spawnSync(process.execPath, ['--import', 'tsx', '--input-type=module', '-e', script], {
-  encoding: 'utf8', env: { ...process.env, SEAMSCOUT_CONFIG_DIR: join(benchCache, 'config') }, maxBuffer: 64 << 20,
-});
-const check = (performance.now() - started) / 1000;
-const peak = Number(/PEAK (\d+)/.exec(child.stderr)?.[1] ?? NaN) / 1024;
+const { seconds: check, peakMiB: peak, status } = checkInChild(folder, ['--size', String(maxSide), '--json', reportFile]);
 const report = JSON.parse(readFileSync(reportFile, 'utf8')) as Report;
 const pairs = report.pairs.filter((p) => p.kind === 'neighbour' || p.kind === 'bracket' || p.kind === 'closure');
 
@@ -102,7 +87,7 @@ const neighbours = pairs.filter((q) => q.kind === 'neighbour').length;
 
 console.log(`whole-check benchmark, ${new Date().toISOString().slice(0, 10)}, node ${process.version}, ${files.length} frames of ${W}x${H}, analysis size ${decoded.get(files[0])!.width}x${decoded.get(files[0])!.height}`);
 console.log(`  decode floor (one thread):          ${floor.toFixed(1)} s (${(1000 * floor / files.length).toFixed(0)} ms a frame)`);
-console.log(`  check (worker pool):                ${check.toFixed(1)} s, peak RSS ${peak.toFixed(0)} MiB, exit ${child.status}`);
+console.log(`  check (worker pool):                ${check.toFixed(1)} s, peak RSS ${peak.toFixed(0)} MiB, exit ${status}`);
 console.log(`  reference (decode floor + OpenCV):  ${referenceSeconds.toFixed(1)} s: ORB ${(stage.detect / files.length).toFixed(0)} ms a frame, match ${(stage.match / pairs.length).toFixed(0)} ms and findHomography ${(stage.ransac / pairs.length).toFixed(1)} ms a pair (${pairs.length} pairs)`);
 console.log(`  check / floor = ${(check / floor).toFixed(2)} (target 0.7 or less); check / reference = ${(check / referenceSeconds).toFixed(2)} (target under 1)`);
 console.log(`  accuracy on ${neighbours} neighbour pairs, full-resolution px: ours mean corner error ${ours.corner.toFixed(2)} px, overlap error ${(100 * ours.overlap).toFixed(2)} points, unmatched ${ours.missed}; reference ${theirs.corner.toFixed(2)} px, ${(100 * theirs.overlap).toFixed(2)} points, unmatched ${theirs.missed}`);
