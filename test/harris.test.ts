@@ -103,6 +103,48 @@ describe('Harris keypoints: invariances of the method as property tests', () => 
     expect(repeatability(orig, moved, (x, y) => [x + dx, y + dy], inside, 0.01)).toBeGreaterThan(0.95);
   });
 
+  it('found on the halved image, are reported in the image\'s own pixels', () => {
+    // An even shift is a whole pixel of the halved image, so corners found there move with it.
+    const dx = 38, dy = 22;
+    const w = photo.width - dx, h = photo.height - dy;
+    const shifted = new Uint8Array(w * h);
+    for (let y = 0; y < h; y++) for (let x = 0; x < w; x++) shifted[y * w + x] = photo.data[(y + dy) * photo.width + x + dx];
+    const halved = { ...singleLevel, halvings: 1 };
+    const orig = detectAndDescribe(photo, halved).keypoints;
+    const moved = detectAndDescribe({ width: w, height: h, data: shifted }, halved).keypoints;
+    const inside = (x: number, y: number): boolean => x > 90 && y > 90 && x < w - 90 && y < h - 90;
+    expect(repeatability(orig, moved, (x, y) => [x + dx, y + dy], inside, 0.01)).toBeGreaterThan(0.95);
+  });
+
+  it('found on the halved image, are centred where they are at full size (no half-pixel offset)', () => {
+    // Bright 24 px squares on grey: by symmetry the mean of each square's four corners is its
+    // centre, at any scale, so an offset in the mapping back to full size shows directly.
+    const W = 480, H = 360;
+    const data = new Uint8Array(W * H).fill(60);
+    const centres: [number, number][] = [];
+    for (let cy = 70; cy < H - 60; cy += 110)
+      for (let cx = 70; cx < W - 60; cx += 110) {
+        centres.push([cx, cy]);
+        for (let y = cy - 12; y < cy + 12; y++) for (let x = cx - 12; x < cx + 12; x++) data[y * W + x] = 200;
+      }
+    for (const halvings of [0, 1]) {
+      const k = detectAndDescribe({ width: W, height: H, data }, { ...singleLevel, halvings }).keypoints;
+      for (const [cx, cy] of centres) {
+        // Pixel centres: the square covers cx - 12 .. cx + 11, so its centre is at cx - 0.5.
+        let sx = 0, sy = 0, n = 0;
+        for (let i = 0; i < k.count; i++)
+          if (Math.abs(k.x[i] - cx) < 20 && Math.abs(k.y[i] - cy) < 20) {
+            sx += k.x[i];
+            sy += k.y[i];
+            n++;
+          }
+        expect(n, `corners of the square at ${cx},${cy}, ${halvings} halvings`).toBe(4);
+        expect(Math.abs(sx / n - (cx - 0.5)), `halvings ${halvings}`).toBeLessThan(0.05);
+        expect(Math.abs(sy / n - (cy - 0.5)), `halvings ${halvings}`).toBeLessThan(0.05);
+      }
+    }
+  });
+
   it('move with a 90-degree rotation of the image', () => {
     const { width: W, height: H } = photo;
     // Rotated a quarter turn clockwise: rotated (x', y') shows original (y', H - 1 - x').

@@ -36,6 +36,15 @@ describe('matching binary descriptors', () => {
     }
   });
 
+  it('counts every differing bit, up to all 256', () => {
+    const a = randomDescriptors(1, 5);
+    for (const flips of [0, 1, 9, 31, 64, 128, 200, 255, 256]) {
+      const m = matchDescriptors(a, perturbed(a, 0, flips, flips), { maxDistance: 256 });
+      expect(m.count, `${flips} bits`).toBe(1);
+      expect(m.distance[0], `${flips} bits`).toBe(flips);
+    }
+  });
+
   it('drops ambiguous matches by the ratio test', () => {
     const a = randomDescriptors(1, 2);
     // Two candidates at 30 and 34 bits: 30 < 0.8 * 34 fails, so no match.

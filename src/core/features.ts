@@ -20,6 +20,11 @@ export interface FeatureParams {
   readonly pyramidLevels: number;
   /** Size ratio between consecutive pyramid levels. */
   readonly pyramidStep: number;
+  /**
+   * Times the image is halved before the first level (0: detect at full size). Keypoint positions
+   * are always in the image's own pixels.
+   */
+  readonly halvings: number;
   readonly harris: HarrisParams;
   readonly candidates: CandidateParams;
   /** Brown, Szeliski & Winder's robustness factor c for adaptive non-maximal suppression. */
@@ -30,6 +35,7 @@ export const defaultFeatureParams: FeatureParams = {
   maxKeypoints: 1500,
   pyramidLevels: 3,
   pyramidStep: 1.25,
+  halvings: 0,
   harris: defaultHarrisParams,
   candidates: defaultCandidateParams,
   anmsRobustness: 0.9,
@@ -61,7 +67,7 @@ function offsetsFor(stride: number): Int32Array {
 export function detectAndDescribe(image: GrayImage, params: Partial<FeatureParams> = {}, pool: ScratchPool = createScratchPool()): Features {
   expectImage(image, 'image');
   const p: FeatureParams = { ...defaultFeatureParams, ...params };
-  const levels = buildPyramid(image, p.pyramidLevels, p.pyramidStep, pool);
+  const levels = buildPyramid(image, p.pyramidLevels, p.pyramidStep, pool, p.halvings);
   const totalArea = levels.reduce((s, l) => s + l.width * l.height, 0);
   const keypoints = createKeypoints(p.maxKeypoints);
   const descriptors = new Uint32Array(p.maxKeypoints * descriptorWords);

@@ -20,12 +20,6 @@ export interface MatchParams {
 
 export const defaultMatchParams: MatchParams = { ratio: 0.8, mutual: true, maxDistance: 96 };
 
-function popcount32(v: number): number {
-  v = v - ((v >>> 1) & 0x55555555);
-  v = (v & 0x33333333) + ((v >>> 2) & 0x33333333);
-  return Math.imul((v + (v >>> 4)) & 0x0f0f0f0f, 0x01010101) >>> 24;
-}
-
 /**
  * Brute-force nearest neighbours under Hamming distance, one pass over all pairs, keeping for each
  * descriptor of a its best and second-best distance and for each descriptor of b its best, so that
@@ -48,9 +42,25 @@ export function matchDescriptors(da: Uint32Array, db: Uint32Array, params: Parti
     const a4 = da[o + 4], a5 = da[o + 5], a6 = da[o + 6], a7 = da[o + 7];
     let b1 = 0xffff, b2 = 0xffff, bi = -1;
     for (let j = 0, q = 0; j < nb; j++, q += 8) {
-      const d =
-        popcount32(a0 ^ db[q]) + popcount32(a1 ^ db[q + 1]) + popcount32(a2 ^ db[q + 2]) + popcount32(a3 ^ db[q + 3]) +
-        popcount32(a4 ^ db[q + 4]) + popcount32(a5 ^ db[q + 5]) + popcount32(a6 ^ db[q + 6]) + popcount32(a7 ^ db[q + 7]);
+      // Hamming distance: the SWAR bit count (Warren, "Hacker's Delight", 2nd ed., section 5-1),
+      // the words' counts summed as 4-bit and then 8-bit fields before one horizontal add. Written
+      // out here, not called: the engine does not inline a function this long.
+      let v: number, t: number, acc: number;
+      v = a0 ^ db[q]; v -= (v >>> 1) & 0x55555555; t = (v & 0x33333333) + ((v >>> 2) & 0x33333333);
+      v = a1 ^ db[q + 1]; v -= (v >>> 1) & 0x55555555; t += (v & 0x33333333) + ((v >>> 2) & 0x33333333);
+      acc = (t & 0x0f0f0f0f) + ((t >>> 4) & 0x0f0f0f0f);
+      v = a2 ^ db[q + 2]; v -= (v >>> 1) & 0x55555555; t = (v & 0x33333333) + ((v >>> 2) & 0x33333333);
+      v = a3 ^ db[q + 3]; v -= (v >>> 1) & 0x55555555; t += (v & 0x33333333) + ((v >>> 2) & 0x33333333);
+      acc += (t & 0x0f0f0f0f) + ((t >>> 4) & 0x0f0f0f0f);
+      v = a4 ^ db[q + 4]; v -= (v >>> 1) & 0x55555555; t = (v & 0x33333333) + ((v >>> 2) & 0x33333333);
+      v = a5 ^ db[q + 5]; v -= (v >>> 1) & 0x55555555; t += (v & 0x33333333) + ((v >>> 2) & 0x33333333);
+      acc += (t & 0x0f0f0f0f) + ((t >>> 4) & 0x0f0f0f0f);
+      v = a6 ^ db[q + 6]; v -= (v >>> 1) & 0x55555555; t = (v & 0x33333333) + ((v >>> 2) & 0x33333333);
+      v = a7 ^ db[q + 7]; v -= (v >>> 1) & 0x55555555; t += (v & 0x33333333) + ((v >>> 2) & 0x33333333);
+      acc += (t & 0x0f0f0f0f) + ((t >>> 4) & 0x0f0f0f0f);
+      // Each byte now holds at most 64: add them in 16-bit fields so that 256 does not wrap.
+      acc = (acc & 0x00ff00ff) + ((acc >>> 8) & 0x00ff00ff);
+      const d = (acc & 0xffff) + (acc >>> 16);
       if (d < b2) {
         if (d < b1) {
           b2 = b1;

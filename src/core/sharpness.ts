@@ -1,16 +1,20 @@
 import type { GrayImage } from './image.js';
 
+/** Pixels at or beyond these values are clipped, and left out of both energies. */
+const clippedLow = 2, clippedHigh = 253;
+
 /**
  * Sums of squared differences across, down and along both diagonals (each over two pixels' distance)
- * at every `step`-th pixel of every `step`-th row, skipping flagged pixels; returns how many pixels.
+ * at every `step`-th pixel of every `step`-th row, skipping pixels flagged in `skip` (or, without
+ * it, clipped ones); returns how many pixels.
  */
-function directionalEnergy(data: ArrayLike<number>, w: number, h: number, skip: Uint8Array, step: number, out: Float64Array): number {
+function directionalEnergy(data: ArrayLike<number>, w: number, h: number, skip: Uint8Array | null, step: number, out: Float64Array): number {
   let ex = 0, ey = 0, ed = 0, ea = 0, n = 0;
   for (let y = 1; y < h - 1; y += step) {
     const row = y * w;
     for (let x = 1; x < w - 1; x += step) {
       const o = row + x;
-      if (skip[o]) continue;
+      if (skip ? skip[o] : data[o] <= clippedLow || data[o] >= clippedHigh) continue;
       const gx = data[o + 1] - data[o - 1];
       const gy = data[o + w] - data[o - w];
       const gd = data[o + w + 1] - data[o - w - 1];
@@ -39,11 +43,9 @@ function directionalEnergy(data: ArrayLike<number>, w: number, h: number, skip: 
  */
 export function sharpness(img: GrayImage): number {
   const { width: w, height: h, data } = img;
-  const clippedFine = new Uint8Array(w * h);
-  for (let i = 0; i < w * h; i++) clippedFine[i] = data[i] <= 2 || data[i] >= 253 ? 1 : 0;
   const fine = new Float64Array(4);
   // Every other pixel of every other row is plenty for a statistic over the whole frame.
-  const nFine = directionalEnergy(data, w, h, clippedFine, 2, fine);
+  const nFine = directionalEnergy(data, w, h, null, 2, fine);
   const cw = (w / 4) | 0, ch = (h / 4) | 0;
   if (cw < 3 || ch < 3 || nFine === 0) return 0;
   const coarse = new Float32Array(cw * ch);
@@ -53,10 +55,10 @@ export function sharpness(img: GrayImage): number {
       let s = 0;
       let clip = 0;
       for (let dy = 0; dy < 4; dy++)
-        for (let dx = 0; dx < 4; dx++) {
-          const o = (4 * y + dy) * w + 4 * x + dx;
-          s += data[o];
-          clip |= clippedFine[o];
+        for (let dx = 0, o = (4 * y + dy) * w + 4 * x; dx < 4; dx++, o++) {
+          const v = data[o];
+          s += v;
+          if (v <= clippedLow || v >= clippedHigh) clip = 1;
         }
       coarse[y * cw + x] = s / 16;
       clipped[y * cw + x] = clip;

@@ -49,7 +49,6 @@ export function refineTiePoints(a: GrayImage, b: GrayImage, h: ArrayLike<number>
   const tpl = new Float64Array(m);
   const span = 2 * s + 1;
   const scores = new Float64Array(span * span);
-  const patch = new Float64Array(m);
   for (let i = 0; i < n; i++) {
     const [px, py, w] = project(h, ax[i], ay[i]);
     out.bx[i] = px;
@@ -83,28 +82,24 @@ export function refineTiePoints(a: GrayImage, b: GrayImage, h: ArrayLike<number>
     }
     if (norm < 1e-6 * m) continue;
     const cx = Math.round(px), cy = Math.round(py);
+    // The search window must lie inside b; integer positions need no interpolation.
+    if (cx - s - r < 0 || cy - s - r < 0 || cx + s + r > b.width - 1 || cy + s + r > b.height - 1) continue;
+    // tpl has zero mean, so the covariance with a patch is its plain dot product with tpl.
     let best = -2, bi = -1;
-    for (let dy = -s; dy <= s && ok; dy++)
+    const bw = b.width, bd = b.data;
+    for (let dy = -s; dy <= s; dy++)
       for (let dx = -s; dx <= s; dx++) {
-        let pm = 0;
-        for (let v = -r, k = 0; v <= r && ok; v++)
+        let sum = 0, sq = 0, dot = 0;
+        for (let v = -r, k = 0; v <= r; v++) {
+          const row = (cy + dy + v) * bw + cx + dx;
           for (let u = -r; u <= r; u++, k++) {
-            const val = bilinear(b, cx + dx + u, cy + dy + v);
-            if (Number.isNaN(val)) {
-              ok = false;
-              break;
-            }
-            patch[k] = val;
-            pm += val;
+            const val = bd[row + u];
+            sum += val;
+            sq += val * val;
+            dot += val * tpl[k];
           }
-        if (!ok) break;
-        pm /= m;
-        let dot = 0, pn = 0;
-        for (let k = 0; k < m; k++) {
-          const q = patch[k] - pm;
-          dot += q * tpl[k];
-          pn += q * q;
         }
+        const pn = sq - (sum * sum) / m;
         const zncc = pn > 0 ? dot / Math.sqrt(pn * norm) : -1;
         const idx = (dy + s) * span + (dx + s);
         scores[idx] = zncc;
@@ -113,7 +108,7 @@ export function refineTiePoints(a: GrayImage, b: GrayImage, h: ArrayLike<number>
           bi = idx;
         }
       }
-    if (!ok || bi < 0 || best < p.minScore) continue;
+    if (bi < 0 || best < p.minScore) continue;
     const bxI = (bi % span) - s, byI = ((bi / span) | 0) - s;
     if (Math.abs(bxI) === s || Math.abs(byI) === s) continue;
     const at = (dx: number, dy: number): number => scores[(dy + s) * span + (dx + s)];

@@ -2,11 +2,13 @@ import { availableParallelism } from 'node:os';
 import { Piscina } from 'piscina';
 import type { AnalysisTask } from './analysis-worker.js';
 import runTask from './analysis-worker.js';
-import type { FrameAnalysis, PairAnalysis } from './frame-analysis.js';
+import type { FrameAnalysis, PairAnalysis, PairOptions } from './frame-analysis.js';
+
+const defaultPairOptions: PairOptions = { retryAtFullSize: true };
 
 export interface AnalysisPool {
   analyseFrame(path: string, maxSide: number, signal?: AbortSignal): Promise<FrameAnalysis>;
-  analysePair(a: FrameAnalysis, b: FrameAnalysis, signal?: AbortSignal): Promise<PairAnalysis>;
+  analysePair(a: FrameAnalysis, b: FrameAnalysis, options?: PairOptions, signal?: AbortSignal): Promise<PairAnalysis>;
   readonly threads: number;
   /** Worker threads alive right now. */
   liveThreads(): number;
@@ -28,7 +30,7 @@ export function createAnalysisPool(threads = availableParallelism(), options: An
     return {
       threads: 0,
       analyseFrame: (path, maxSide) => runTask({ kind: 'frame', path, maxSide }) as Promise<FrameAnalysis>,
-      analysePair: (a, b) => runTask({ kind: 'pair', a, b }) as Promise<PairAnalysis>,
+      analysePair: (a, b, options = defaultPairOptions) => runTask({ kind: 'pair', a, b, options }) as Promise<PairAnalysis>,
       liveThreads: () => 0,
       destroy: async () => {},
     };
@@ -48,7 +50,7 @@ export function createAnalysisPool(threads = availableParallelism(), options: An
   return {
     threads,
     analyseFrame: (path, maxSide, signal) => run<FrameAnalysis>({ kind: 'frame', path, maxSide }, signal),
-    analysePair: (a, b, signal) => run<PairAnalysis>({ kind: 'pair', a, b }, signal),
+    analysePair: (a, b, options = defaultPairOptions, signal) => run<PairAnalysis>({ kind: 'pair', a, b, options }, signal),
     liveThreads: () => pool.threads.length,
     destroy: () => pool.destroy(),
   };

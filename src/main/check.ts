@@ -211,13 +211,15 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
       roomWaiters.shift()?.();
     };
 
-    const analysePair = (i: number, j: number): Promise<void> =>
+    // Planned pairs are retried on full-size corners when they find no model; pairs screened in by
+    // --all-pairs are not (most of them do not overlap, and a retry would double their cost).
+    const analysePair = (i: number, j: number, retryAtFullSize = true): Promise<void> =>
       pairSlot(async () => {
         const key = `${i}:${j}`;
         if (pairResults.has(key)) return;
         const a = frames[i]!.data, b = frames[j]!.data;
         if (!a || !b) throw new Error(`internal: frames of pair ${i}:${j} were let go too early`);
-        pairResults.set(key, await pool.analysePair(a, b, signal));
+        pairResults.set(key, await pool.analysePair(a, b, { retryAtFullSize }, signal));
         options.onProgress?.({ phase: 'pairs', done: ++pairsDone, total: planned.length, file: frames[j]!.file.name });
       });
 
@@ -375,7 +377,7 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
         for (let y = x + 2; y < refs.length; y++) if (!known.has(`${refs[x]}:${refs[y]}`)) others.push([refs[x], refs[y]]);
       const chosen = screenPairs(samples, others);
       for (const [i, j] of chosen) planned.push({ i, j, kind: 'other' });
-      await Promise.all(chosen.map(([i, j]) => analysePair(i, j)));
+      await Promise.all(chosen.map(([i, j]) => analysePair(i, j, false)));
     }
     return assemble(sweepDeg);
 

@@ -2,14 +2,14 @@ import { createHash } from 'node:crypto';
 import { mkdir, readFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import { deserialize, serialize } from 'node:v8';
-import { defaultFeatureParams } from '../core/features.js';
+import { checkFeatureParams } from './frame-analysis.js';
 import type { FrameAnalysis } from './frame-analysis.js';
 import type { ScannedFile } from './scan.js';
 import { cacheDir } from './user-dirs.js';
 import { writeFileAtomic } from './write-file.js';
 
 /** Bump when the analysis changes in a way the parameters do not show. */
-const analysisVersion = 3;
+const analysisVersion = 4;
 
 export interface FeatureCache {
   get(file: ScannedFile, maxSide: number): Promise<FrameAnalysis | null>;
@@ -22,7 +22,7 @@ export interface FeatureCache {
  * analyses only new or changed frames. A damaged entry is a miss.
  */
 export function createFeatureCache(dir = join(cacheDir(), 'features')): FeatureCache {
-  const params = JSON.stringify(defaultFeatureParams);
+  const params = JSON.stringify(checkFeatureParams);
   const keyOf = (f: ScannedFile, maxSide: number): string =>
     createHash('sha256').update(JSON.stringify([analysisVersion, params, f.path, f.size, f.mtimeMs, maxSide])).digest('hex').slice(0, 40);
   let made = false;

@@ -1,16 +1,18 @@
 import { exposureDifference } from '../core/exposure.js';
 import type { Features, FeatureParams } from '../core/features.js';
-import { detectAndDescribe } from '../core/features.js';
+import { defaultFeatureParams, detectAndDescribe } from '../core/features.js';
 import type { Homography } from '../core/homography.js';
-import { transferErrors } from '../core/homography.js';
+import { project, transferErrors } from '../core/homography.js';
 import { isPlausible } from '../core/homography-estimator.js';
 import { refineHomography } from '../core/homography-refine.js';
 import { overlapRegions } from '../core/overlap.js';
+import type { RefinedPoints } from '../core/tie-point-refine.js';
 import { refineTiePoints } from '../core/tie-point-refine.js';
 import type { GrayImage } from '../core/image.js';
 import { imageFingerprint } from '../core/image.js';
 import { estimatePairGeometry } from '../core/pair-geometry.js';
 import { sharpness } from '../core/sharpness.js';
+import { createScratchPool } from '../core/scratch.js';
 import { decodeForAnalysis } from './decode.js';
 
 /** What one frame contributes to a check; small enough to keep for every frame of a card. */
@@ -39,59 +41,112 @@ export interface PairAnalysis {
   readonly noModel: string | null;
 }
 
+/**
+ * The detector settings of a check: corners are found on the analysis image halved (a quarter of
+ * the cost), while tie points, brightness and sharpness are measured on the analysis image itself.
+ */
+export const checkFeatureParams: FeatureParams = { ...defaultFeatureParams, halvings: 1 };
+
+/** Scratch arrays reused by every frame this thread analyses (detection runs one frame at a time). */
+const scratch = createScratchPool();
+
 /** Decodes a frame at the analysis size and extracts everything later steps need from it. */
-export async function analyseFrameFile(path: string, maxSide: number, params: Partial<FeatureParams> = {}): Promise<FrameAnalysis> {
+export async function analyseFrameFile(path: string, maxSide: number, params: FeatureParams = checkFeatureParams): Promise<FrameAnalysis> {
   const decoded = await decodeForAnalysis(path, maxSide);
-  const features = detectAndDescribe(decoded.image, params);
+  const features = detectAndDescribe(decoded.image, params, scratch);
   return { fullWidth: decoded.fullWidth, fullHeight: decoded.fullHeight, features, image: decoded.image, sharpness: sharpness(decoded.image), fingerprint: imageFingerprint(decoded.image) };
+}
+
+/**
+ * The homography refitted (Levenberg-Marquardt) to refined tie points, once on all of them and once
+ * more without those left farther than max(1 px, 3 x rms) from the first fit (a moving object,
+ * a repeated pattern); null when it fails or is implausible.
+ */
+function fitTiePoints(start: Homography, ax: Float64Array, ay: Float64Array, refined: RefinedPoints): { h: Homography; rms: number; count: number; points: Float32Array } | null {
+  let keep = Array.from(ax, (_, k) => k).filter((k) => refined.score[k] > 0);
+  let h = start;
+  let errors = new Float64Array(0);
+  for (let round = 0; round < 2 && keep.length >= 12; round++) {
+    const c = {
+      count: keep.length,
+      ax: Float64Array.from(keep, (k) => ax[k]),
+      ay: Float64Array.from(keep, (k) => ay[k]),
+      bx: Float64Array.from(keep, (k) => refined.bx[k]),
+      by: Float64Array.from(keep, (k) => refined.by[k]),
+    };
+    const all = Int32Array.from(keep, (_, k) => k);
+    h = refineHomography(h, c, all, all.length, 20);
+    errors = new Float64Array(c.count);
+    transferErrors(h, c, errors);
+    if (round === 0) {
+      const rms = Math.sqrt(errors.reduce((s, e) => s + e, 0) / c.count);
+      const limit = Math.max(1, 3 * rms) ** 2;
+      const next = keep.filter((_, x) => errors[x] <= limit);
+      if (next.length === keep.length) break;
+      keep = next;
+    }
+  }
+  if (keep.length < 12 || errors.length !== keep.length) return null;
+  const rms = Math.sqrt(errors.reduce((s, e) => s + e, 0) / keep.length);
+  const cx = keep.reduce((t, k) => t + ax[k], 0) / keep.length, cy = keep.reduce((t, k) => t + ay[k], 0) / keep.length;
+  if (!Number.isFinite(rms) || !isPlausible(h, cx, cy)) return null;
+  const points = new Float32Array(4 * keep.length);
+  keep.forEach((k, x) => points.set([ax[k], ay[k], refined.bx[k], refined.by[k]], 4 * x));
+  return { h, rms, count: keep.length, points };
 }
 
 /** Most tie points refined per pair. */
 export const refinedTiePoints = 300;
 
+export interface PairOptions {
+  /**
+   * When the frames' own (halved) features find no model, detect again on the full analysis
+   * images and try once more: a narrow overlap may hold too few corners at half size.
+   */
+  readonly retryAtFullSize: boolean;
+}
+
 /**
  * Matches two analysed frames, refines the inlier tie points on the pixels and refits the
  * homography to them, and measures overlap and exposure difference.
  */
-export function analysePair(a: FrameAnalysis, b: FrameAnalysis): PairAnalysis {
-  const g = estimatePairGeometry(a.features, b.features);
+export function analysePair(a: FrameAnalysis, b: FrameAnalysis, options: PairOptions = { retryAtFullSize: true }): PairAnalysis {
+  let fa = a.features, fb = b.features;
+  let g = estimatePairGeometry(fa, fb);
+  if (!g.homography && options.retryAtFullSize && checkFeatureParams.halvings > 0) {
+    const full = { ...checkFeatureParams, halvings: 0 };
+    fa = detectAndDescribe(a.image, full, scratch);
+    fb = detectAndDescribe(b.image, full, scratch);
+    g = estimatePairGeometry(fa, fb);
+  }
   let evDiff: number | null = null;
-  let tie = new Float32Array(0);
+  let tie: Float32Array = new Float32Array(0);
   let homography: Homography | null = g.homography;
   let overlap = g.overlap;
   let rmsError = g.rmsError;
   if (g.homography) {
-    const ka = a.features.keypoints, kb = b.features.keypoints;
+    const ka = fa.keypoints, kb = fb.keypoints;
     const idx: number[] = [];
     for (let i = 0; i < g.matches.count; i++) if (g.inlierMask[i]) idx.push(i);
-    // Refining costs about 0.05 ms a point; a few hundred spread over the overlap pin the mapping.
-    const stride = Math.max(1, Math.ceil(idx.length / refinedTiePoints));
-    const chosen = idx.filter((_, k) => k % stride === 0);
-    const ax = Float64Array.from(chosen, (i) => ka.x[g.matches.a[i]]);
-    const ay = Float64Array.from(chosen, (i) => ka.y[g.matches.a[i]]);
+    // Tie points: a's keypoints that the model puts inside b (matched or not, so that they reach
+    // as far across the overlap as a's corners do), a few hundred spread evenly, each located in b
+    // by its appearance. The farther they reach, the better the model holds outside the overlap.
+    const inside: number[] = [];
+    for (let i = 0; i < ka.count; i++) {
+      const [u, v, w] = project(g.homography, ka.x[i], ka.y[i]);
+      if (w > 0 && u >= 0 && v >= 0 && u <= fb.width - 1 && v <= fb.height - 1) inside.push(i);
+    }
+    const stride = Math.max(1, Math.ceil(inside.length / refinedTiePoints));
+    const chosen = inside.filter((_, k) => k % stride === 0);
+    const ax = Float64Array.from(chosen, (i) => ka.x[i]);
+    const ay = Float64Array.from(chosen, (i) => ka.y[i]);
     const refined = refineTiePoints(a.image, b.image, g.homography, ax, ay);
-    const keep = chosen.map((_, k) => k).filter((k) => refined.score[k] > 0);
-    if (keep.length >= Math.max(12, 0.5 * chosen.length)) {
-      const c = {
-        count: keep.length,
-        ax: Float64Array.from(keep, (k) => ax[k]),
-        ay: Float64Array.from(keep, (k) => ay[k]),
-        bx: Float64Array.from(keep, (k) => refined.bx[k]),
-        by: Float64Array.from(keep, (k) => refined.by[k]),
-      };
-      const all = Int32Array.from(keep, (_, k) => k);
-      const h = refineHomography(g.homography, c, all, all.length, 20);
-      const errors = new Float64Array(c.count);
-      transferErrors(h, c, errors);
-      const rms = Math.sqrt(errors.reduce((s, e) => s + e, 0) / c.count);
-      const cx = c.ax.reduce((t, v) => t + v, 0) / c.count, cy = c.ay.reduce((t, v) => t + v, 0) / c.count;
-      if (Number.isFinite(rms) && isPlausible(h, cx, cy)) {
-        homography = h;
-        rmsError = rms;
-        overlap = overlapRegions(h, a.features.width, a.features.height, b.features.width, b.features.height).overlap;
-        tie = new Float32Array(4 * c.count);
-        for (let k = 0; k < c.count; k++) tie.set([c.ax[k], c.ay[k], c.bx[k], c.by[k]], 4 * k);
-      }
+    const fitted = fitTiePoints(g.homography, ax, ay, refined);
+    if (fitted && fitted.count >= Math.max(12, 0.25 * chosen.length)) {
+      homography = fitted.h;
+      rmsError = fitted.rms;
+      overlap = overlapRegions(fitted.h, fa.width, fa.height, fb.width, fb.height).overlap;
+      tie = fitted.points;
     }
     if (tie.length === 0) {
       tie = new Float32Array(4 * idx.length);
