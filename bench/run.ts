@@ -1,5 +1,6 @@
 // npm run bench: per-stage times of the engine on one frame of about 1500x1000 and one pair, with
-// the same stages run by OpenCV's JavaScript build beside it, as ratios from this one run.
+// the same stages run by OpenCV's JavaScript build beside it, as ratios from this one run. Our
+// detector runs with the check's settings (corners on the halved frame).
 // Speed targets (issue 2, this 2-core machine): detection + description under 35 ms per frame,
 // matching + RANSAC under 15 ms per pair, and faster than the OpenCV.js reference on each stage.
 import { adaptiveNonMaximalSuppression } from '../src/core/anms.js';
@@ -12,6 +13,7 @@ import { correspondencesOf, estimatePairGeometry } from '../src/core/pair-geomet
 import { buildPyramid } from '../src/core/pyramid.js';
 import { createScratchPool } from '../src/core/scratch.js';
 import { refineTiePoints } from '../src/core/tie-point-refine.js';
+import { checkFeatureParams as params } from '../src/main/frame-analysis.js';
 import { meanCornerError } from '../test/helpers/images.js';
 import { loadOpenCV } from '../test/helpers/opencv.js';
 import { benchPair } from './frames.js';
@@ -36,7 +38,7 @@ const pool = createScratchPool();
 
 // Warm up both sides so that the JIT and the wasm module are settled before timing.
 for (let i = 0; i < 3; i++) {
-  estimatePairGeometry(detectAndDescribe(a, {}, pool), detectAndDescribe(b, {}, pool));
+  estimatePairGeometry(detectAndDescribe(a, params, pool), detectAndDescribe(b, params, pool));
   const fa = cvDetect(cv, a), fb = cvDetect(cv, b);
   cvHomography(cv, cvMatch(cv, fa, fb));
   cvFree(fa);
@@ -50,7 +52,7 @@ const record = (k: string, ms: number): void => {
 let oursError = NaN, cvError = NaN, oursInliers = 0, cvInliers = 0;
 for (let r = 0; r < repeats; r++) {
   // Ours, stage by stage on frame a (the same work detectAndDescribe does).
-  const [levels, tPyr] = time(() => buildPyramid(a, 3, 1.25, pool));
+  const [levels, tPyr] = time(() => buildPyramid(a, params.pyramidLevels, params.pyramidStep, pool, params.halvings));
   record('ours: pyramid', tPyr);
   let tHarris = 0, tCand = 0, tAnms = 0;
   for (const l of levels) {
@@ -63,9 +65,9 @@ for (let r = 0; r < repeats; r++) {
   record('ours: Harris response', tHarris);
   record('ours: maxima + threshold', tCand);
   record('ours: ANMS', tAnms);
-  const [fa, tDetect] = time(() => detectAndDescribe(a, {}, pool));
+  const [fa, tDetect] = time(() => detectAndDescribe(a, params, pool));
   record('ours: detect + describe (total)', tDetect);
-  const fb = detectAndDescribe(b, {}, pool);
+  const fb = detectAndDescribe(b, params, pool);
   const [m, tMatch] = time(() => matchDescriptors(fa.descriptors, fb.descriptors));
   record('ours: match', tMatch);
   const c = correspondencesOf(fa, fb, m);
