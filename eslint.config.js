@@ -16,7 +16,7 @@ const layers = {
   main: ['src/main/**/*.ts', 'src/main/**/*.cts'],
   renderer: ['src/renderer/**/*.ts'],
   tests: ['test/**/*.ts', 'bench/**/*.ts'],
-  tooling: ['*.config.js', '*.config.ts', 'bin/**/*.js', '.ci/**/*.js'],
+  tooling: ['*.config.js', '*.config.ts', 'bin/**/*.js', '.ci/**/*.js', 'scripts/**/*.ts'],
 };
 
 const layering = {
