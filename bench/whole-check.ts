@@ -1,7 +1,7 @@
 // The two sides every whole-check benchmark measures: the check as the command line runs it, in a
 // child process that reports its own peak resident set (all its threads) when it exits, and the
 // decode floor (sharp decoding every frame to the analysis size one after another on one thread;
-// no check can be faster than reading its frames).
+// no check can be faster than reading its frames), and the same decoding on every core.
 import { spawnSync } from 'node:child_process';
 import { readdirSync } from 'node:fs';
 import { join } from 'node:path';
@@ -39,4 +39,18 @@ export async function decodeFloor(folder: string, maxSide: number): Promise<{ se
   const seconds = (performance.now() - started) / 1000;
   sharp.concurrency(threads);
   return { seconds, images };
+}
+
+/**
+ * Decodes every frame with `inFlight` decodes at a time on sharp's threads: how fast the frames can
+ * be read with every core at it, the bound no check on this machine can beat.
+ */
+export async function decodeAllCores(folder: string, maxSide: number, inFlight = 6): Promise<number> {
+  const files = framesOf(folder);
+  let next = 0;
+  const started = performance.now();
+  await Promise.all(Array.from({ length: inFlight }, async () => {
+    while (next < files.length) await decodeForAnalysis(join(folder, files[next++]), maxSide);
+  }));
+  return (performance.now() - started) / 1000;
 }

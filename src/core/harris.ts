@@ -43,14 +43,23 @@ export function harrisResponse(image: FloatImage, out: Float32Array, pool: Scrat
     const row = y * w;
     const up = row - w;
     const down = row + w;
+    // Sobel as separable parts: per column the vertical smoothing (1 2 1) and difference (-1 0 1);
+    // then gx is the difference of the smoothed columns either side and gy the smoothed
+    // differences, three loads a pixel instead of eight.
+    let sPrev = src[up] + 2 * src[row] + src[down], dPrev = src[down] - src[up];
+    let sCur = src[up + 1] + 2 * src[row + 1] + src[down + 1], dCur = src[down + 1] - src[up + 1];
     for (let x = 1; x < w - 1; x++) {
-      const a = src[up + x - 1], c = src[up + x + 1];
-      const e = src[down + x - 1], i = src[down + x + 1];
-      const gx = (c - a) + (i - e) + 2 * (src[row + x + 1] - src[row + x - 1]);
-      const gy = (e - a) + (i - c) + 2 * (src[down + x] - src[up + x]);
+      const sNext = src[up + x + 1] + 2 * src[row + x + 1] + src[down + x + 1];
+      const dNext = src[down + x + 1] - src[up + x + 1];
+      const gx = sNext - sPrev;
+      const gy = dPrev + 2 * dCur + dNext;
       pxx[x] = gx * gx;
       pyy[x] = gy * gy;
       pxy[x] = gx * gy;
+      sPrev = sCur;
+      sCur = sNext;
+      dPrev = dCur;
+      dCur = dNext;
     }
     let hxx = 0, hyy = 0, hxy = 0;
     for (let x = x0 - r; x < x0 + r; x++) {

@@ -7,7 +7,7 @@ import { reportToDot } from '../core/exports/dot.js';
 import { reportToGraphml } from '../core/exports/graphml.js';
 import type { Report } from '../core/report.js';
 import { judge } from '../core/verdicts.js';
-import { defaultMaxSide, runCheck } from './check.js';
+import { commandLineThreads, defaultMaxSide, runCheck } from './check.js';
 import { createFeatureCache } from './feature-cache.js';
 import { readSettings } from './settings.js';
 import { progressLine, formatSummary } from './summary.js';
@@ -21,7 +21,8 @@ Options:
   --recursive              look in sub-folders too
   --all-pairs              match every plausible pair (multi-row or unordered sets)
   --size N                 longest side of the analysis image in px (default ${defaultMaxSide})
-  --threads N              worker threads (default: one per core; 0 = none)
+  --threads N              worker threads (default: none on 2 cores or fewer, else one per core;
+                           0 = analyse in the command's own thread)
   --json FILE              write the report (schema seamscout-report/1)
   --graphml FILE           write the pair graph as GraphML
   --csv FILE               write one row per pair (RFC 4180)
@@ -123,7 +124,7 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
       recursive: v.recursive,
       allPairs: v['all-pairs'],
       maxSide: size,
-      threads,
+      threads: threads ?? commandLineThreads(),
       cache: v['no-cache'] ? null : createFeatureCache(),
       onProgress: showProgress ? (p) => process.stderr.write(progressLine(p.phase, p.done, p.total)) : undefined,
     });

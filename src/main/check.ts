@@ -1,3 +1,4 @@
+import { availableParallelism } from 'node:os';
 import type { FrameSample } from '../core/candidate-pairs.js';
 import { sampleFeatures, screenPairs } from '../core/candidate-pairs.js';
 import { invert, multiply, normalise, project } from '../core/homography.js';
@@ -59,6 +60,18 @@ export interface CheckResult {
  * decoding can shrink on load by 1/4 (GUIDE section 10); accurate to well under a pixel there.
  */
 export const defaultMaxSide = 1500;
+
+/** Frames in flight when the analysis runs in the calling thread. */
+const inThreadLanes = 6;
+
+/**
+ * Worker threads for a command-line check: none on a machine of two cores or fewer, where analysing
+ * in the command's own thread while sharp decodes the next frames on its threads was measured
+ * faster and lighter than two workers (no second engine to start and warm up); else one per core.
+ */
+export function commandLineThreads(cores = availableParallelism()): number {
+  return cores <= 2 ? 0 : cores;
+}
 
 /** A plain reason for a file that could not be analysed, from what the decoder or the system said. */
 export function skipOf(file: string, err: unknown, size?: number): SkippedFile {
@@ -178,7 +191,9 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
     const byExif = ordered.some((o) => o.exif.settings.exposureTime !== null || o.exif.settings.evBias !== null);
     const planGroups = byExif ? groupStations(ordered.map((o) => ({ settings: o.exif.settings, captureMs: o.exif.captureMs }))) : null;
     const largest = planGroups ? Math.max(1, ...planGroups.map((g) => g.members.length)) : 1;
-    const lanes = Math.max(2, 2 * pool.threads);
+    // Frames in flight. In this thread, sharp decodes them on its own threads while one is analysed
+    // here; six keep both cores of a 2-core laptop busy (docs/performance.md).
+    const lanes = pool.threads === 0 ? inThreadLanes : 2 * pool.threads;
     // Decoded frames held at once: the frames in flight, a station and its neighbours.
     const maxHeld = byExif && !options.allPairs ? lanes + 3 * largest + 2 : Infinity;
 
