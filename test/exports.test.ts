@@ -24,6 +24,7 @@ const analysis: Analysis = {
   ],
   skipped: [],
   sweepDeg: null,
+  geometry: null,
 };
 const report = judge(analysis, defaultBudget);
 

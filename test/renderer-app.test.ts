@@ -22,6 +22,7 @@ const analysis: Analysis = {
   pairs: [pair('F1.jpg', 'F2.jpg', 0.15), pair('F2.jpg', 'F3.jpg', 0.45), pair('F3.jpg', 'F4.jpg', 0.25)],
   skipped: [],
   sweepDeg: null,
+  geometry: null,
 };
 const report: Report = judge(analysis, defaultBudget);
 const K12 = 'F1.jpg|F2.jpg', K23 = 'F2.jpg|F3.jpg', K34 = 'F3.jpg|F4.jpg';

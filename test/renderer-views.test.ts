@@ -49,6 +49,7 @@ const analysis: Analysis = {
   ],
   skipped: [{ file: 'notes.txt', code: 'not-an-image', reason: 'not an image' }],
   sweepDeg: 352,
+  geometry: null,
 };
 const report = judge(analysis, defaultBudget);
 
@@ -338,7 +339,7 @@ describe('words and numbers', () => {
 
 describe('folder-level problems', () => {
   it('are said in words above the strip', () => {
-    const empty = judge({ folder: '/card/empty', frames: [], stations: [], pairs: [], skipped: [], sweepDeg: null }, defaultBudget);
+    const empty = judge({ folder: '/card/empty', frames: [], stations: [], pairs: [], skipped: [], sweepDeg: null, geometry: null }, defaultBudget);
     document.body.replaceChildren(renderSummary(empty));
     const items = [...document.querySelectorAll('[data-folder-problem]')];
     expect(items.map((i) => i.getAttribute('data-folder-problem'))).toEqual(['no-frames']);

@@ -4,10 +4,9 @@
 // 2 percentage points, homography corners within 3 px at full resolution for 3000 px frames, EV
 // within 0.15 where nothing clips, every planted problem flagged, no flag on a clean sequence,
 // stations exactly right.
-import { readdirSync } from 'node:fs';
 import { join } from 'node:path';
-import sharp from 'sharp';
 import { beforeAll, describe, expect, it } from 'vitest';
+import { circleCoverage, fieldOfViewDeg } from '../src/core/coverage.js';
 import type { DemoTruth } from '../src/core/demo-truth.js';
 import { invert, normalise } from '../src/core/homography.js';
 import { overlapRegions } from '../src/core/overlap.js';
@@ -18,7 +17,7 @@ import { createAnalysisPool } from '../src/main/analysis-pool.js';
 import { runCheck } from '../src/main/check.js';
 import { writeDemoShoot } from '../src/main/demo-writer.js';
 import { tempDir } from './helpers/cli.js';
-import { meanCornerError } from './helpers/images.js';
+import { copyWithoutExif, meanCornerError } from './helpers/images.js';
 
 const pool = createAnalysisPool(2);
 
@@ -163,12 +162,20 @@ describe('a clean demo shoot', () => {
 describe('frames without EXIF', () => {
   it('are grouped into stations by content: one view at different brightness', async () => {
     const demo = await writeDemoShoot(join(tempDir(), 'exif'), { clean: true, width: 1200, height: 800, stations: 6, seed: 3 });
-    const bare = tempDir('seamscout-bare-');
-    // Re-encoded without metadata (sharp drops EXIF unless asked to keep it).
-    for (const f of readdirSync(demo.folder).filter((n) => n.endsWith('.JPG'))) await sharp(join(demo.folder, f)).jpeg({ quality: 92 }).toFile(join(bare, f));
+    const bare = await copyWithoutExif(demo.folder);
     const report = judge((await runCheck(bare, { pool })).analysis, defaultBudget);
     expect(report.frames.every((f) => f.captureTime === null && f.settings.evBias === null)).toBe(true);
     expect(report.stations.map((s) => s.frames)).toEqual(demo.truth.stations.map((s) => s.frames));
     expect(report.stations.every((s) => s.groupedBy === 'content')).toBe(true);
+    // No focal length in the files: it comes from the pair homographies (within 2 %), and the
+    // horizon covered (the truth's yaws and field of view, the same arc arithmetic) within 2 degrees.
+    const g = report.geometry!;
+    const t = demo.truth;
+    const f = (t.camera.focalLengthMm / t.camera.sensorWidthMm) * t.camera.width;
+    expect(g.focalFrom).toBe('homographies');
+    expect(Math.abs(g.focalPx / f - 1)).toBeLessThan(0.02);
+    const yaws = t.stations.map((s) => t.frames.find((x) => x.file === s.reference)!.yawDeg);
+    expect(Math.abs(g.horizontalDeg - circleCoverage(yaws, yaws.map(() => fieldOfViewDeg(t.camera.width, f))).coveredDeg)).toBeLessThan(2);
+    expect(g.closure).toBeNull();
   }, 240_000);
 });

@@ -23,6 +23,7 @@ function sequence(pairs: PairMeasure[], frames?: FrameMeasure[]): Analysis {
     pairs,
     skipped: [],
     sweepDeg: null,
+    geometry: null,
   };
 }
 
@@ -97,6 +98,7 @@ describe('frame and station verdicts', () => {
       ],
       skipped: [],
       sweepDeg: null,
+      geometry: null,
     };
     const r = judge(analysis, defaultBudget);
     expect(r.stations.map((s) => s.flags)).toEqual([[], ['incomplete-bracket'], ['bracket-drift']]);

@@ -91,6 +91,39 @@ export interface SkippedFile {
   readonly reason: string;
 }
 
+/** Where one station points, in degrees: yaw from the first placed station, pitch and roll against the set's own level. */
+export interface StationPoseMeasure {
+  readonly station: number;
+  readonly yawDeg: number;
+  readonly pitchDeg: number;
+  readonly rollDeg: number;
+}
+
+/** A stretch of the horizon no frame covers, in degrees of yaw (toYawDeg may pass 360). */
+export interface HorizonGap {
+  readonly fromYawDeg: number;
+  readonly toYawDeg: number;
+}
+
+/** The sequence as seen from its one place: station rotations, what they cover, whether a turn closes. */
+export interface SequenceGeometry {
+  /** Focal length in full-resolution pixels. */
+  readonly focalPx: number;
+  readonly focalFrom: 'exif' | 'homographies';
+  readonly poses: readonly StationPoseMeasure[];
+  /** Stations no chain of matched pairs reaches. */
+  readonly unplaced: readonly number[];
+  /** Degrees of the horizon the placed frames cover (360 for a full turn). */
+  readonly horizontalDeg: number;
+  /** Degrees of pitch they cover. */
+  readonly verticalDeg: number;
+  readonly gaps: readonly HorizonGap[];
+  /** How the matched closure pair agrees with the chain of neighbours; null when no closure pair matched. */
+  readonly closure: { readonly misclosureDeg: number | null; readonly closes: boolean } | null;
+  /** Root-mean-square transfer error of the tie points under the refined rotations, pixels. */
+  readonly rmsPx: number;
+}
+
 /** Everything analysis produces, before judging. */
 export interface Analysis {
   readonly folder: string;
@@ -98,8 +131,9 @@ export interface Analysis {
   readonly stations: readonly StationMeasure[];
   readonly pairs: readonly PairMeasure[];
   readonly skipped: readonly SkippedFile[];
-  /** Sweep in degrees estimated from the neighbour chain (needs a focal length), or null. */
+  /** Degrees of the horizon covered (the geometry's horizontalDeg), or null without geometry. */
   readonly sweepDeg: number | null;
+  readonly geometry: SequenceGeometry | null;
 }
 
 export interface FolderProblem {
@@ -132,6 +166,7 @@ export interface Report {
   readonly folder: string;
   readonly budget: MatchBudget;
   readonly sweepDeg: number | null;
+  readonly geometry: SequenceGeometry | null;
   readonly counts: { readonly frames: number; readonly stations: number; readonly ok: number; readonly weak: number; readonly reshoot: number };
   readonly frames: readonly ReportFrame[];
   readonly stations: readonly ReportStation[];

@@ -1,4 +1,4 @@
-import type { Analysis, FlagCode, Finding, FolderProblem, FrameSettings, MatchBudget, PairMeasure, Report, ReportFrame, ReportPair, ReportStation, StationMeasure, Verdict } from './report.js';
+import type { Analysis, FlagCode, Finding, FolderProblem, FrameSettings, MatchBudget, PairMeasure, Report, ReportFrame, ReportPair, ReportStation, SequenceGeometry, StationMeasure, Verdict } from './report.js';
 import { reportSchema } from './report.js';
 import { modalPattern, patternOf } from './stations.js';
 
@@ -39,13 +39,21 @@ function mode<T>(xs: T[]): T | null {
 }
 
 /** Judges a pair between stations (neighbour or closure) against the budget. */
-function judgeStationPair(p: PairMeasure, budget: MatchBudget, sweepDeg: number | null): Finding {
+function judgeStationPair(p: PairMeasure, budget: MatchBudget, sweepDeg: number | null, geometry: SequenceGeometry | null): Finding {
   const f = new Findings();
   const between = `${p.a} and ${p.b}`;
   if (p.homography === null) {
-    if (p.kind === 'closure') f.add('no-closure', sweepDeg !== null && sweepDeg >= 330 ? 'reshoot' : 'weak', `the turn does not close between ${between}: add a frame between them`);
-    else f.add('no-match', 'reshoot', `no reliable match between ${between}: add a frame between them, or aim the overlap at more detail`);
+    if (p.kind === 'closure') {
+      const gap = geometry ? Math.max(0, ...geometry.gaps.map((g) => g.toYawDeg - g.fromYawDeg)) : 0;
+      const missing = gap >= 0.5 ? `about ${Math.round(gap)} degrees of the turn are not covered: ` : '';
+      f.add('no-closure', sweepDeg !== null && sweepDeg >= 330 ? 'reshoot' : 'weak', `the turn does not close between ${between}: ${missing}add a frame between them`);
+    } else f.add('no-match', 'reshoot', `no reliable match between ${between}: add a frame between them, or aim the overlap at more detail`);
     return f.done();
+  }
+  const closure = geometry?.closure;
+  if (p.kind === 'closure' && closure && !closure.closes) {
+    const off = closure.misclosureDeg === null ? '' : ` ${closure.misclosureDeg.toFixed(1)} degrees`;
+    f.add('no-closure', 'weak', `the turn comes round between ${between} but misses the chain of neighbours by${off || ' too much'}: a pair may be matched wrongly, or the camera moved off its pivot; check the pairs before reshooting`);
   }
   const overlap = p.overlap ?? 0;
   if (overlap < budget.reshootOverlap) f.add('low-overlap', 'reshoot', `overlap is only ${pct(overlap)} between ${between}: add a frame between them`);
@@ -147,7 +155,7 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
 
   // Pairs.
   const pairs: ReportPair[] = analysis.pairs.map((p) => {
-    if (p.kind === 'neighbour' || p.kind === 'closure') return { ...p, ...judgeStationPair(p, budget, analysis.sweepDeg) };
+    if (p.kind === 'neighbour' || p.kind === 'closure') return { ...p, ...judgeStationPair(p, budget, analysis.sweepDeg, analysis.geometry) };
     if (p.kind === 'bracket') {
       const f = new Findings();
       if (p.homography === null) {
@@ -198,6 +206,7 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
     folder: analysis.folder,
     budget,
     sweepDeg: analysis.sweepDeg,
+    geometry: analysis.geometry,
     counts: {
       frames: frames.length,
       stations: stations.length,
@@ -222,6 +231,7 @@ export function analysisOf(report: Report): Analysis {
   return {
     folder: report.folder,
     sweepDeg: report.sweepDeg,
+    geometry: report.geometry ?? null,
     skipped: report.skipped,
     frames: report.frames.map((f) => {
       const { station: _s, flags: _f, ...rest } = strip(f);

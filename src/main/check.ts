@@ -3,11 +3,13 @@ import type { FrameSample } from '../core/candidate-pairs.js';
 import { sampleFeatures, screenPairs } from '../core/candidate-pairs.js';
 import { invert, multiply, normalise, project } from '../core/homography.js';
 import { shootingOrder } from '../core/natural-order.js';
-import type { Analysis, FrameMeasure, PairKind, PairMeasure, SkippedFile, StationMeasure } from '../core/report.js';
+import type { Analysis, FrameMeasure, PairKind, PairMeasure, SequenceGeometry, SkippedFile, StationMeasure } from '../core/report.js';
 import { analysisToFull } from '../core/resolution.js';
 import type { StationGroup } from '../core/stations.js';
 import { groupStations } from '../core/stations.js';
-import { focalPxFrom35mm, rotationAngleDeg } from '../core/sweep.js';
+import type { RotationLink } from '../core/rotations.js';
+import { sequenceGeometry } from '../core/sequence-geometry.js';
+import { focalPxFrom35mm } from '../core/sweep.js';
 import type { AnalysisPool } from './analysis-pool.js';
 import { createAnalysisPool } from './analysis-pool.js';
 import type { FrameExif } from './exif.js';
@@ -60,6 +62,16 @@ export interface CheckResult {
  * decoding can shrink on load by 1/4 (GUIDE section 10); accurate to well under a pixel there.
  */
 export const defaultMaxSide = 1500;
+
+/** Frames covering this much of the horizon may have been meant as a full turn: the closure pair is tried (common practice). */
+const nearFullTurnDeg = 300;
+/** Frames covering this much were a full turn for certain: a closure pair without a model is reported. */
+const closingTurnDeg = 330;
+
+function median(xs: readonly number[]): number {
+  const s = [...xs].sort((a, b) => a - b);
+  return s.length % 2 ? s[s.length >> 1] : (s[s.length / 2 - 1] + s[s.length / 2]) / 2;
+}
 
 /** Frames in flight when the analysis runs in the calling thread. */
 const inThreadLanes = 6;
@@ -357,29 +369,15 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
     }
     await Promise.all(pairTasks);
 
-    // Sweep from the neighbour chain, where every neighbour matched and the focal length is known.
-    const angleOf = (p: PlannedPair): number | null => {
-      const r = pairResults.get(`${p.i}:${p.j}`);
-      const fa = frames[p.i]!, f35 = fa.exif.settings.focalLength35;
-      if (!r || !f35) return null;
-      const { h } = fullResolution(r, fa.summary, frames[p.j]!.summary);
-      return h ? rotationAngleDeg(h, focalPxFrom35mm(f35, fa.summary.fullWidth, fa.summary.fullHeight), fa.summary.fullWidth, fa.summary.fullHeight) : null;
-    };
-    const neighbours = planned.filter((p) => p.kind === 'neighbour');
-    let sweepDeg: number | null = stations.length > 1 ? 0 : null;
-    for (const p of neighbours) {
-      const a = angleOf(p);
-      sweepDeg = a === null || sweepDeg === null ? null : sweepDeg + a;
-    }
-    if (stations.length >= 3 && (sweepDeg === null || sweepDeg >= 270)) {
-      // The closure pair, when the chain may have come round (or its length is unknown); kept when
-      // it should close or did.
+    // The geometry from the neighbour chain; it says whether the frames may have come round.
+    const before = geometryOf(planned.filter((p) => p.kind === 'neighbour'), null);
+    if (stations.length >= 3 && (before === null || before.horizontalDeg >= nearFullTurnDeg)) {
+      // The closure pair, when the frames cover most of a turn (or the geometry is unknown); kept
+      // when it matched or the turn should close.
       const closure: PlannedPair = { i: stations[stations.length - 1].reference, j: stations[0].reference, kind: 'closure' };
       await analysePair(closure.i, closure.j);
       const r = pairResults.get(`${closure.i}:${closure.j}`)!;
-      if (r.homography || (sweepDeg !== null && sweepDeg >= 330)) planned.push(closure);
-      const a = r.homography && sweepDeg !== null ? angleOf(closure) : null;
-      if (a !== null && sweepDeg !== null) sweepDeg += a;
+      if (r.homography || (before !== null && before.horizontalDeg >= closingTurnDeg)) planned.push(closure);
     }
     if (options.allPairs) {
       // Every other pair of reference frames, screened cheaply on a sample of keypoints first.
@@ -394,29 +392,57 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
       for (const [i, j] of chosen) planned.push({ i, j, kind: 'other' });
       await Promise.all(chosen.map(([i, j]) => analysePair(i, j, false)));
     }
-    return assemble(sweepDeg);
+    const closurePair = planned.find((p) => p.kind === 'closure') ?? null;
+    const geometry = geometryOf(planned.filter((p) => p.kind === 'neighbour' || p.kind === 'other'), closurePair);
+    return assemble(geometry);
+
+    /** Full-resolution homography and tie points of a measured pair, or null without a model. */
+    function fullPair(i: number, j: number): { h: Float64Array; scale: number; points: Float64Array } | null {
+      const r = pairResults.get(`${i}:${j}`);
+      if (!r) return null;
+      const sa = frames[i]!.summary, sb = frames[j]!.summary;
+      const { h, scale } = fullResolution(r, sa, sb);
+      if (!h) return null;
+      const fa = analysisToFull(sa.fullWidth, sa.fullHeight, sa.anWidth, sa.anHeight);
+      const fb = analysisToFull(sb.fullWidth, sb.fullHeight, sb.anWidth, sb.anHeight);
+      const points = new Float64Array(r.tiePoints.length);
+      for (let k = 0; k < r.tiePoints.length; k += 4) {
+        points[k] = fa[0] * r.tiePoints[k] + fa[2];
+        points[k + 1] = fa[4] * r.tiePoints[k + 1] + fa[5];
+        points[k + 2] = fb[0] * r.tiePoints[k + 2] + fb[2];
+        points[k + 3] = fb[4] * r.tiePoints[k + 3] + fb[5];
+      }
+      return { h, scale, points };
+    }
+
+    /** Station rotations, coverage and closure from the given matched pairs (frames' indices). */
+    function geometryOf(pairs: readonly PlannedPair[], closure: PlannedPair | null): SequenceGeometry | null {
+      if (stations.length < 2) return null;
+      const link = (p: PlannedPair): RotationLink | null => {
+        const m = fullPair(p.i, p.j);
+        return m ? { i: stationOf[p.i], j: stationOf[p.j], homography: m.h, points: m.points } : null;
+      };
+      const links = pairs.map(link).filter((l): l is RotationLink => l !== null);
+      if (links.length === 0) return null;
+      const sizes = stations.map((st) => ({ width: frames[st.reference]!.summary.fullWidth, height: frames[st.reference]!.summary.fullHeight }));
+      // One focal length for the set: the EXIF 35 mm equivalents, where every station has one.
+      const f35 = stations.map((st) => frames[st.reference]!.exif.settings.focalLength35);
+      const exifFocalPx = f35.every((f) => f) ? focalPxFrom35mm(median(f35 as number[]), sizes[0].width, sizes[0].height) : null;
+      return sequenceGeometry({ sizes, exifFocalPx, links, closure: closure ? link(closure) : null });
+    }
 
     /** The measurements so far: frames of finalised stations, the stations, the pairs measured yet. */
-    function assemble(sweep: number | null): CheckResult {
+    function assemble(geometry: SequenceGeometry | null): CheckResult {
       const name = (k: number): string => frames[k]!.file.name;
       const tiePoints: TiePointSet[] = [];
       const measured = planned.filter(({ i, j }) => pairResults.has(`${i}:${j}`));
       const pairs: PairMeasure[] = measured.map(({ i, j, kind }) => {
         const r = pairResults.get(`${i}:${j}`)!;
         const sa = frames[i]!.summary, sb = frames[j]!.summary;
-        const { h, scale } = fullResolution(r, sa, sb);
-        if (h) {
-          const fa = analysisToFull(sa.fullWidth, sa.fullHeight, sa.anWidth, sa.anHeight);
-          const fb = analysisToFull(sb.fullWidth, sb.fullHeight, sb.anWidth, sb.anHeight);
-          const pts = new Float64Array(r.tiePoints.length);
-          for (let k = 0; k < r.tiePoints.length; k += 4) {
-            pts[k] = fa[0] * r.tiePoints[k] + fa[2];
-            pts[k + 1] = fa[4] * r.tiePoints[k + 1] + fa[5];
-            pts[k + 2] = fb[0] * r.tiePoints[k + 2] + fb[2];
-            pts[k + 3] = fb[4] * r.tiePoints[k + 3] + fb[5];
-          }
-          tiePoints.push({ a: name(i), b: name(j), points: pts });
-        }
+        const { scale } = fullResolution(r, sa, sb);
+        const full = fullPair(i, j);
+        const h = full?.h ?? null;
+        if (full) tiePoints.push({ a: name(i), b: name(j), points: full.points });
         return {
           a: name(i),
           b: name(j),
@@ -452,7 +478,7 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
         evOffsets: st.offsets,
         groupedBy: st.groupedBy,
       }));
-      return { analysis: { folder, frames: frameMeasures, stations: stationMeasures, pairs, skipped: [...skipped], sweepDeg: sweep }, tiePoints, peakFramesHeld: peakHeld };
+      return { analysis: { folder, frames: frameMeasures, stations: stationMeasures, pairs, skipped: [...skipped], sweepDeg: geometry?.horizontalDeg ?? null, geometry }, tiePoints, peakFramesHeld: peakHeld };
     }
   } finally {
     if (!options.pool) await pool.destroy();

@@ -10,7 +10,11 @@ function pad(s: string, n: number): string {
 /** The summary a photographer reads in the terminal: pairs in shooting order, then what to reshoot. */
 export function formatSummary(report: Report): string {
   const out: string[] = [];
-  const sweep = report.sweepDeg === null ? '' : `, sweep about ${Math.round(report.sweepDeg)} deg`;
+  const g = report.geometry;
+  const closes = g?.closure ? (g.closure.closes ? `, the turn closes (within ${g.closure.misclosureDeg!.toFixed(1)} deg)` : ', the turn does not meet itself') : '';
+  const sweep = g
+    ? `, covering ${Math.round(g.horizontalDeg)} deg of the horizon and ${Math.round(g.verticalDeg)} deg vertically${closes}`
+    : report.sweepDeg === null ? '' : `, sweep about ${Math.round(report.sweepDeg)} deg`;
   out.push(`Seamscout check of ${report.folder}`);
   out.push(`${report.counts.frames} frames in ${report.counts.stations} stations${sweep}`);
   out.push('');

@@ -33,6 +33,8 @@ export function renderSummary(report: Report): HTMLElement {
       stat('frames', String(c.frames), 'frames'),
       stat('stations', String(c.stations), 'stations'),
       report.sweepDeg !== null ? stat('sweep', `${Math.round(report.sweepDeg)}°`, 'sweep') : null,
+      report.geometry ? stat('vertical', `${Math.round(report.geometry.verticalDeg)}°`, 'vertical') : null,
+      report.geometry?.closure ? stat('turn', report.geometry.closure.closes ? 'closes' : 'open', 'full turn') : null,
       stat('weak', String(c.weak), 'weak', verdictIcon('weak', 20)),
       stat('reshoot', String(c.reshoot), 'reshoot', verdictIcon('reshoot', 20)),
     ),

@@ -1,8 +1,11 @@
+import { readdirSync } from 'node:fs';
+import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import sharp from 'sharp';
 import type { FloatImage, GrayImage } from '../../src/core/image.js';
 import { linearToSrgb, srgbToLinear } from '../../src/core/srgb.js';
 import type { RandomSource } from '../../src/core/random.js';
+import { tempDir } from './cli.js';
 
 export const externalFixture = (name: string): string => fileURLToPath(new URL(`../fixtures/external/${name}`, import.meta.url));
 
@@ -59,4 +62,11 @@ export function meanCornerError(h1: ArrayLike<number>, h2: ArrayLike<number>, w:
 function apply(h: ArrayLike<number>, x: number, y: number): [number, number] {
   const w = h[6] * x + h[7] * y + h[8];
   return [(h[0] * x + h[1] * y + h[2]) / w, (h[3] * x + h[4] * y + h[5]) / w];
+}
+
+/** A copy of a folder's JPEGs re-encoded without metadata (sharp drops EXIF unless asked to keep it). */
+export async function copyWithoutExif(folder: string): Promise<string> {
+  const bare = tempDir('seamscout-bare-');
+  for (const f of readdirSync(folder).filter((n) => n.endsWith('.JPG'))) await sharp(join(folder, f)).jpeg({ quality: 92 }).toFile(join(bare, f));
+  return bare;
 }

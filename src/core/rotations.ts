@@ -1,0 +1,411 @@
+/**
+ * Camera rotations of a sequence shot from one place (a camera turning about its centre), from the
+ * pair homographies and their tie points.
+ *
+ * Model (Hartley & Zisserman, Multiple View Geometry, sec. 8.4.2; Szeliski, "Image alignment and
+ * stitching", 2006, sec. 2.1): pixel x_i of station i and x_j of station j seeing one direction are
+ * related by x_j ~ K_j R_j R_i^T K_i^-1 x_i, with K = [f 0 cx; 0 f cy; 0 0 1], the principal point at
+ * the frame centre and one focal length f for the sequence. R_i turns world directions into station
+ * i's camera frame (x right, y down, z forward); the world is station 0's camera frame.
+ *
+ * Rotations are first chained along a spanning tree of the matched pairs, then refined jointly
+ * (Levenberg-Marquardt on the transfer error of the tie points, Huber-weighted; Szeliski 2006,
+ * sec. 5.1 "bundle adjustment" for rotations and focal length).
+ */
+import { CholeskyDecomposition, Matrix, SingularValueDecomposition } from 'ml-matrix';
+import type { Homography } from './homography.js';
+
+/** A 3x3 rotation matrix, row-major. */
+export type Rotation = Float64Array;
+
+/** One measured relation: station i's pixels to station j's, full-resolution pixels. */
+export interface RotationLink {
+  readonly i: number;
+  readonly j: number;
+  /** a -> b homography in full-resolution pixels. */
+  readonly homography: ArrayLike<number>;
+  /** Tie points xa, ya, xb, yb per point, full-resolution pixels. */
+  readonly points: ArrayLike<number>;
+}
+
+/** Size in pixels of each station's frame (after orientation). */
+export interface FrameSize {
+  readonly width: number;
+  readonly height: number;
+}
+
+export function mul3(a: ArrayLike<number>, b: ArrayLike<number>): Float64Array {
+  const o = new Float64Array(9);
+  for (let r = 0; r < 3; r++) for (let c = 0; c < 3; c++) o[3 * r + c] = a[3 * r] * b[c] + a[3 * r + 1] * b[3 + c] + a[3 * r + 2] * b[6 + c];
+  return o;
+}
+
+export function transpose3(a: ArrayLike<number>): Float64Array {
+  return Float64Array.of(a[0], a[3], a[6], a[1], a[4], a[7], a[2], a[5], a[8]);
+}
+
+function det3(m: ArrayLike<number>): number {
+  return m[0] * (m[4] * m[8] - m[5] * m[7]) - m[1] * (m[3] * m[8] - m[5] * m[6]) + m[2] * (m[3] * m[7] - m[4] * m[6]);
+}
+
+/** Rotation by the vector w (axis times angle in radians), Rodrigues' formula. */
+export function rotationOfVector(wx: number, wy: number, wz: number): Rotation {
+  const t = Math.hypot(wx, wy, wz);
+  if (t < 1e-12) return Float64Array.of(1, -wz, wy, wz, 1, -wx, -wy, wx, 1);
+  const x = wx / t, y = wy / t, z = wz / t;
+  const c = Math.cos(t), s = Math.sin(t), v = 1 - c;
+  return Float64Array.of(
+    c + x * x * v, x * y * v - z * s, x * z * v + y * s,
+    y * x * v + z * s, c + y * y * v, y * z * v - x * s,
+    z * x * v - y * s, z * y * v + x * s, c + z * z * v,
+  );
+}
+
+/** The angle of a rotation, in degrees. */
+export function rotationAngleOf(r: ArrayLike<number>): number {
+  const c = (r[0] + r[4] + r[8] - 1) / 2;
+  return (Math.acos(Math.max(-1, Math.min(1, c))) * 180) / Math.PI;
+}
+
+/** The rotation nearest to m in the Frobenius norm (the orthogonal polar factor, via SVD). */
+export function nearestRotation(m: ArrayLike<number>): Rotation {
+  const svd = new SingularValueDecomposition(new Matrix([[m[0], m[1], m[2]], [m[3], m[4], m[5]], [m[6], m[7], m[8]]]));
+  const u = svd.leftSingularVectors, v = svd.rightSingularVectors;
+  const flip = det3(u.mmul(v.transpose()).to1DArray()) < 0 ? -1 : 1;
+  const d = Matrix.diag([1, 1, flip]);
+  return Float64Array.from(u.mmul(d).mmul(v.transpose()).to1DArray());
+}
+
+function intrinsics(f: number, size: FrameSize): Float64Array {
+  return Float64Array.of(f, 0, (size.width - 1) / 2, 0, f, (size.height - 1) / 2, 0, 0, 1);
+}
+
+function intrinsicsInverse(f: number, size: FrameSize): Float64Array {
+  return Float64Array.of(1 / f, 0, -(size.width - 1) / 2 / f, 0, 1 / f, -(size.height - 1) / 2 / f, 0, 0, 1);
+}
+
+/**
+ * K_b^-1 H K_a scaled to unit determinant: a rotation when f is right and the camera only turned.
+ * Returns it with its distance from the nearest rotation (Frobenius norm of M M^T - I).
+ */
+function rotationPart(h: ArrayLike<number>, f: number, a: FrameSize, b: FrameSize): { m: Float64Array; error: number } | null {
+  const m = mul3(mul3(intrinsicsInverse(f, b), h), intrinsics(f, a));
+  const d = det3(m);
+  if (!(Math.abs(d) > 1e-300)) return null;
+  const s = Math.cbrt(d);
+  for (let k = 0; k < 9; k++) m[k] /= s;
+  const mmt = mul3(m, transpose3(m));
+  let e = 0;
+  for (let k = 0; k < 9; k++) e += (mmt[k] - (k % 4 === 0 ? 1 : 0)) ** 2;
+  return { m, error: Math.sqrt(e) };
+}
+
+/** R_b R_a^T from a pair homography and the focal length, or null when it is far from a rotation. */
+export function relativeRotation(h: ArrayLike<number>, f: number, a: FrameSize, b: FrameSize): Rotation | null {
+  const part = rotationPart(h, f, a, b);
+  if (!part || part.error > 0.5) return null;
+  return nearestRotation(part.m);
+}
+
+/**
+ * The focal length (pixels) that makes a homography closest to a pure rotation, searched by golden
+ * section on log f between a tenth and ten times the longer side; null when the turn is too small
+ * to tell (under about 3 degrees) or no focal length fits.
+ */
+export function focalFromHomography(h: ArrayLike<number>, a: FrameSize, b: FrameSize): number | null {
+  const side = Math.max(a.width, a.height);
+  const cost = (lf: number): number => rotationPart(h, Math.exp(lf), a, b)?.error ?? Infinity;
+  let lo = Math.log(0.1 * side), hi = Math.log(10 * side);
+  // A coarse scan first: the cost is not unimodal over so wide a range.
+  let best = lo, bestCost = Infinity;
+  for (let k = 0; k <= 60; k++) {
+    const lf = lo + ((hi - lo) * k) / 60;
+    const c = cost(lf);
+    if (c < bestCost) {
+      bestCost = c;
+      best = lf;
+    }
+  }
+  const step = (hi - lo) / 60;
+  lo = best - step;
+  hi = best + step;
+  const g = (Math.sqrt(5) - 1) / 2;
+  let x1 = hi - g * (hi - lo), x2 = lo + g * (hi - lo);
+  let c1 = cost(x1), c2 = cost(x2);
+  for (let it = 0; it < 60; it++) {
+    if (c1 < c2) {
+      hi = x2;
+      x2 = x1;
+      c2 = c1;
+      x1 = hi - g * (hi - lo);
+      c1 = cost(x1);
+    } else {
+      lo = x1;
+      x1 = x2;
+      c1 = c2;
+      x2 = lo + g * (hi - lo);
+      c2 = cost(x2);
+    }
+  }
+  const f = Math.exp((lo + hi) / 2);
+  const part = rotationPart(h, f, a, b);
+  if (!part || part.error > 0.02) return null;
+  // A tiny turn fits any focal length about equally well.
+  if (rotationAngleOf(nearestRotation(part.m)) < 3) return null;
+  return f;
+}
+
+/**
+ * Rotations chained from station 0 along a breadth-first spanning tree of the links: null for
+ * stations no chain of matched pairs reaches.
+ */
+export function chainRotations(stations: number, links: readonly RotationLink[], f: number, sizes: readonly FrameSize[]): (Rotation | null)[] {
+  const out: (Rotation | null)[] = new Array(stations).fill(null);
+  if (stations === 0) return out;
+  out[0] = Float64Array.of(1, 0, 0, 0, 1, 0, 0, 0, 1);
+  const queue = [0];
+  while (queue.length > 0) {
+    const s = queue.shift()!;
+    for (const l of links) {
+      const forward = l.i === s && out[l.j] === null;
+      const backward = l.j === s && out[l.i] === null;
+      if (!forward && !backward) continue;
+      const rel = relativeRotation(l.homography, f, sizes[l.i], sizes[l.j]);
+      if (!rel) continue;
+      // R_j = R_ij R_i, and R_i = R_ij^T R_j.
+      if (forward) {
+        out[l.j] = mul3(rel, out[s]!);
+        queue.push(l.j);
+      } else {
+        out[l.i] = mul3(transpose3(rel), out[s]!);
+        queue.push(l.i);
+      }
+    }
+  }
+  return out;
+}
+
+export interface RefinedRotations {
+  readonly rotations: (Rotation | null)[];
+  readonly focalPx: number;
+  /** Root-mean-square transfer error of the tie points after refinement, pixels. */
+  readonly rmsPx: number;
+  /** The same per link, in the order given. */
+  readonly linkRmsPx: number[];
+}
+
+/** Most tie points of one link that take part in the refinement. */
+const pointsPerLink = 80;
+/** Residuals beyond this (pixels) count linearly, not squared (Huber). */
+const huberPx = 2;
+
+/**
+ * Refines the chained rotations (station 0 held fixed) and, unless `fixFocal`, the focal length,
+ * jointly over the links' tie points by Levenberg-Marquardt.
+ */
+export function refineRotations(initial: readonly (Rotation | null)[], links: readonly RotationLink[], f0: number, sizes: readonly FrameSize[], fixFocal: boolean, maxIterations = 15): RefinedRotations {
+  const n = initial.length;
+  // Parameter index of each station's rotation increment (station 0 and unreached ones: none).
+  const index = new Int32Array(n).fill(-1);
+  let params = 0;
+  for (let s = 1; s < n; s++) if (initial[s]) index[s] = 3 * params++;
+  const focalIndex = fixFocal ? -1 : 3 * params;
+  const P = 3 * params + (fixFocal ? 0 : 1);
+  const used = links.filter((l) => initial[l.i] && initial[l.j] && l.i !== l.j);
+  const samples = used.map((l) => {
+    const count = Math.floor(l.points.length / 4);
+    const stride = Math.max(1, Math.ceil(count / pointsPerLink));
+    const idx: number[] = [];
+    for (let k = 0; k < count; k += stride) idx.push(k);
+    return idx;
+  });
+
+  let rotations: (Rotation | null)[] = initial.map((r) => (r ? Float64Array.from(r) : null));
+  let logF = Math.log(f0);
+
+  // Residuals of one link at the given rotations and focal length, into out (2 per point).
+  const residuals = (li: number, ri: Rotation, rj: Rotation, lf: number, out: Float64Array): void => {
+    const l = used[li], f = Math.exp(lf);
+    const a = sizes[l.i], b = sizes[l.j];
+    const rel = mul3(rj, transpose3(ri));
+    const cxa = (a.width - 1) / 2, cya = (a.height - 1) / 2, cxb = (b.width - 1) / 2, cyb = (b.height - 1) / 2;
+    const idx = samples[li];
+    for (let k = 0; k < idx.length; k++) {
+      const p = 4 * idx[k];
+      const u = (l.points[p] - cxa) / f, v = (l.points[p + 1] - cya) / f;
+      const x = rel[0] * u + rel[1] * v + rel[2], y = rel[3] * u + rel[4] * v + rel[5], z = rel[6] * u + rel[7] * v + rel[8];
+      if (z <= 1e-9) {
+        out[2 * k] = 1e3;
+        out[2 * k + 1] = 1e3;
+        continue;
+      }
+      out[2 * k] = (f * x) / z + cxb - l.points[p + 2];
+      out[2 * k + 1] = (f * y) / z + cyb - l.points[p + 3];
+    }
+  };
+  const huber = (r: number): number => (Math.abs(r) <= huberPx ? 1 : huberPx / Math.abs(r));
+  const totalCost = (rots: (Rotation | null)[], lf: number): number => {
+    let c = 0;
+    used.forEach((l, li) => {
+      const out = new Float64Array(2 * samples[li].length);
+      residuals(li, rots[l.i]!, rots[l.j]!, lf, out);
+      for (const r of out) c += Math.abs(r) <= huberPx ? r * r : 2 * huberPx * Math.abs(r) - huberPx * huberPx;
+    });
+    return c;
+  };
+
+  let cost = totalCost(rotations, logF);
+  let lambda = 1e-3;
+  const eps = 1e-6;
+  for (let it = 0; it < maxIterations && P > 0 && used.length > 0; it++) {
+    const jtj = new Float64Array(P * P);
+    const jtr = new Float64Array(P);
+    used.forEach((l, li) => {
+      const m = 2 * samples[li].length;
+      const base = new Float64Array(m);
+      const ri = rotations[l.i]!, rj = rotations[l.j]!;
+      residuals(li, ri, rj, logF, base);
+      // Numerical derivatives for the (at most seven) parameters this link depends on.
+      const cols: { p: number; d: Float64Array }[] = [];
+      const probe = new Float64Array(m);
+      for (const [s, which] of [[l.i, 'i'], [l.j, 'j']] as const) {
+        if (index[s] < 0) continue;
+        for (let axis = 0; axis < 3; axis++) {
+          const w = [0, 0, 0];
+          w[axis] = eps;
+          const moved = mul3(rotationOfVector(w[0], w[1], w[2]), rotations[s]!);
+          residuals(li, which === 'i' ? moved : ri, which === 'j' ? moved : rj, logF, probe);
+          const d = new Float64Array(m);
+          for (let k = 0; k < m; k++) d[k] = (probe[k] - base[k]) / eps;
+          cols.push({ p: index[s] + axis, d });
+        }
+      }
+      if (focalIndex >= 0) {
+        residuals(li, ri, rj, logF + eps, probe);
+        const d = new Float64Array(m);
+        for (let k = 0; k < m; k++) d[k] = (probe[k] - base[k]) / eps;
+        cols.push({ p: focalIndex, d });
+      }
+      const wts = Float64Array.from(base, huber);
+      for (let x = 0; x < cols.length; x++) {
+        const cx = cols[x];
+        let g = 0;
+        for (let k = 0; k < m; k++) g += wts[k] * cx.d[k] * base[k];
+        jtr[cx.p] += g;
+        for (let y = x; y < cols.length; y++) {
+          const cy = cols[y];
+          let s = 0;
+          for (let k = 0; k < m; k++) s += wts[k] * cx.d[k] * cy.d[k];
+          jtj[cx.p * P + cy.p] += s;
+          if (cy.p !== cx.p) jtj[cy.p * P + cx.p] += s;
+        }
+      }
+    });
+    let improved = false;
+    for (let attempt = 0; attempt < 8 && !improved; attempt++) {
+      const a = new Matrix(P, P);
+      for (let r = 0; r < P; r++) for (let c = 0; c < P; c++) a.set(r, c, jtj[r * P + c] + (r === c ? lambda * (jtj[r * P + r] + 1e-9) : 0));
+      const chol = new CholeskyDecomposition(a);
+      if (!chol.isPositiveDefinite()) {
+        lambda *= 10;
+        continue;
+      }
+      const delta = chol.solve(Matrix.columnVector(Array.from(jtr, (v) => -v))).to1DArray();
+      const next = rotations.map((r, s) => (r && index[s] >= 0 ? mul3(rotationOfVector(delta[index[s]], delta[index[s] + 1], delta[index[s] + 2]), r) : r));
+      const nextF = focalIndex >= 0 ? logF + delta[focalIndex] : logF;
+      const c = totalCost(next, nextF);
+      if (c < cost) {
+        const gain = (cost - c) / Math.max(cost, 1e-12);
+        rotations = next.map((r) => (r ? nearestRotation(r) : null));
+        logF = nextF;
+        cost = c;
+        lambda = Math.max(1e-9, lambda / 10);
+        improved = true;
+        if (gain < 1e-7) it = maxIterations;
+      } else lambda *= 10;
+    }
+    if (!improved) break;
+  }
+
+  const linkRmsPx = used.map((l, li) => {
+    const out = new Float64Array(2 * samples[li].length);
+    residuals(li, rotations[l.i]!, rotations[l.j]!, logF, out);
+    return out.length ? Math.sqrt(out.reduce((s, r) => s + r * r, 0) / (out.length / 2)) : 0;
+  });
+  const all = used.reduce((s, _, li) => s + samples[li].length, 0);
+  const rmsPx = all ? Math.sqrt(linkRmsPx.reduce((s, r, li) => s + r * r * samples[li].length, 0) / all) : 0;
+  // Report per link in the caller's order (links not used: NaN).
+  const byLink = links.map((l) => {
+    const k = used.indexOf(l);
+    return k >= 0 ? linkRmsPx[k] : NaN;
+  });
+  return { rotations, focalPx: Math.exp(logF), rmsPx, linkRmsPx: byLink };
+}
+
+/** Where each station points, in degrees, against the sequence's own level. */
+export interface StationPose {
+  readonly yawDeg: number;
+  readonly pitchDeg: number;
+  readonly rollDeg: number;
+}
+
+const dot = (a: ArrayLike<number>, b: ArrayLike<number>): number => a[0] * b[0] + a[1] * b[1] + a[2] * b[2];
+const cross = (a: ArrayLike<number>, b: ArrayLike<number>): [number, number, number] => [a[1] * b[2] - a[2] * b[1], a[2] * b[0] - a[0] * b[2], a[0] * b[1] - a[1] * b[0]];
+const unit = (a: ArrayLike<number>): [number, number, number] => {
+  const n = Math.hypot(a[0], a[1], a[2]) || 1;
+  return [a[0] / n, a[1] / n, a[2] / n];
+};
+/** Column k of R^T (row k of R): camera axis k in world coordinates. */
+const axisOf = (r: ArrayLike<number>, k: number): [number, number, number] => [r[3 * k], r[3 * k + 1], r[3 * k + 2]];
+
+/**
+ * The world's up direction for a sequence: the mean of the cameras' up axes (a levelled head keeps
+ * them vertical; in a sweep their tilts cancel), sharpened, when the optical axes lie on one great
+ * circle (a single row), to that circle's pole, the axis the camera turned about.
+ */
+export function estimateUp(rotations: readonly Rotation[]): [number, number, number] {
+  const mean = [0, 0, 0];
+  for (const r of rotations) {
+    const up = axisOf(r, 1);
+    for (let k = 0; k < 3; k++) mean[k] -= up[k];
+  }
+  const up = unit(mean);
+  if (rotations.length < 3) return up;
+  const m = new Matrix(3, 3);
+  for (const r of rotations) {
+    const z = axisOf(r, 2);
+    for (let a = 0; a < 3; a++) for (let b = 0; b < 3; b++) m.set(a, b, m.get(a, b) + z[a] * z[b]);
+  }
+  const svd = new SingularValueDecomposition(m);
+  const sv = svd.diagonal;
+  // One row: the smallest spread is tiny against the other two.
+  if (sv[2] > 0.02 * sv[1]) return up;
+  const pole = unit(svd.leftSingularVectors.getColumn(2));
+  return dot(pole, up) >= 0 ? pole : [-pole[0], -pole[1], -pole[2]];
+}
+
+/** Yaw (relative to the first reached station), pitch and roll of every station with a rotation. */
+export function stationPoses(rotations: readonly (Rotation | null)[]): (StationPose | null)[] {
+  const known = rotations.filter((r): r is Rotation => r !== null);
+  if (known.length === 0) return rotations.map(() => null);
+  const up = estimateUp(known);
+  const first = axisOf(known[0], 2);
+  const forward = unit(first.map((v, k) => v - dot(first, up) * up[k]));
+  const right = cross(forward, up);
+  const deg = 180 / Math.PI;
+  return rotations.map((r) => {
+    if (!r) return null;
+    const z = axisOf(r, 2), x = axisOf(r, 0);
+    const yaw = Math.atan2(dot(z, right), dot(z, forward)) * deg;
+    const pitch = Math.asin(Math.max(-1, Math.min(1, dot(z, up)))) * deg;
+    // Roll: the camera's x axis against the level right direction of its view, about its axis.
+    const level = unit(cross(z, up));
+    const roll = Math.atan2(dot(cross(level, x), z), dot(level, x)) * deg;
+    return { yawDeg: yaw, pitchDeg: pitch, rollDeg: roll };
+  });
+}
+
+/** The homography of a station pair from rotations and focal length (for tests and the coverage map). */
+export function homographyOfRotations(ri: Rotation, rj: Rotation, f: number, a: FrameSize, b: FrameSize): Homography {
+  return mul3(mul3(intrinsics(f, b), mul3(rj, transpose3(ri))), intrinsicsInverse(f, a));
+}
