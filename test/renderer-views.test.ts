@@ -14,6 +14,7 @@ import type { TiePointState } from '../src/renderer/detail-view.js';
 import { svgNS } from '../src/renderer/dom.js';
 import { evStep, percent, timeLeft } from '../src/renderer/format.js';
 import { chainPairs, pairKey } from '../src/renderer/pairs.js';
+import { renderCoverage } from '../src/renderer/coverage-view.js';
 import { renderStrip } from '../src/renderer/strip-view.js';
 import { renderSummary } from '../src/renderer/summary-view.js';
 
@@ -344,5 +345,30 @@ describe('folder-level problems', () => {
     const items = [...document.querySelectorAll('[data-folder-problem]')];
     expect(items.map((i) => i.getAttribute('data-folder-problem'))).toEqual(['no-frames']);
     expect(items[0].textContent).toMatch(/no frame could be checked/);
+  });
+});
+
+describe('the coverage map', () => {
+  const placed = judge({
+    ...analysis,
+    geometry: {
+      focalPx: 2000, focalFrom: 'exif', unplaced: [], horizontalDeg: 150, verticalDeg: 53, gaps: [{ fromYawDeg: 120, toYawDeg: 330 }], closure: null, rmsPx: 0.3,
+      // Three stations 50 degrees apart: the first two overlap, the third leaves a gap before it.
+      poses: [{ station: 0, yawDeg: 0, pitchDeg: 0, rollDeg: 0 }, { station: 1, yawDeg: 50, pitchDeg: 0, rollDeg: 0 }, { station: 2, yawDeg: 130, pitchDeg: 0, rollDeg: 0 }],
+    },
+  }, defaultBudget);
+
+  it('draws every placed frame and hatches what none sees, saying so in words too', () => {
+    const s = renderCoverage(placed)!;
+    const svg = s.querySelector('svg')!;
+    expect(svg.namespaceURI).toBe(svgNS);
+    expect(svg.querySelectorAll('polygon.footprint')).toHaveLength(3 * 3);
+    expect(svg.querySelectorAll('rect.hole').length).toBeGreaterThan(0);
+    expect(svg.getAttribute('aria-label')).toMatch(/not covered/);
+    expect(s.textContent).toMatch(/% of the shot band is not covered/);
+  });
+
+  it('is left out when the frames could not be placed', () => {
+    expect(renderCoverage(report)).toBeNull();
   });
 });

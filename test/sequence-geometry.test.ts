@@ -5,14 +5,17 @@
 // (The focal length from homographies alone, for frames without EXIF: test/sequence-check.test.ts.)
 import { rmSync } from 'node:fs';
 import { join } from 'node:path';
+import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { circleCoverage, fieldOfViewDeg } from '../src/core/coverage.js';
+import { coverageMap } from '../src/core/coverage-map.js';
 import type { DemoTruth } from '../src/core/demo-truth.js';
 import type { Report } from '../src/core/report.js';
 import { defaultBudget } from '../src/core/report.js';
 import { judge } from '../src/core/verdicts.js';
 import { createAnalysisPool } from '../src/main/analysis-pool.js';
 import { runCheck } from '../src/main/check.js';
+import { coverageMapContent } from '../src/main/coverage-map-file.js';
 import { writeDemoShoot } from '../src/main/demo-writer.js';
 import { tempDir } from './helpers/cli.js';
 
@@ -70,6 +73,15 @@ describe('a full turn of 12 stations', () => {
     console.log(`full turn: misclosure ${g.closure!.misclosureDeg!.toFixed(2)} deg, tie point rms ${g.rmsPx.toFixed(2)} px, vertical ${g.verticalDeg.toFixed(1)} deg`);
   });
 
+  it('draws a coverage map without holes, as SVG and as PNG', async () => {
+    const map = coverageMap(report)!;
+    expect(map.footprints).toHaveLength(12);
+    expect(map.holes).toEqual([]);
+    const png = await coverageMapContent(report, 'png');
+    const meta = await sharp(Buffer.from(png)).metadata();
+    expect([meta.format, meta.width]).toEqual(['png', 1440]);
+  });
+
   it('takes the focal length from EXIF', () => {
     expect(report.geometry!.focalFrom).toBe('exif');
     expect(Math.abs(report.geometry!.focalPx / truthFocalPx(truth) - 1)).toBeLessThan(1e-6);
@@ -99,5 +111,12 @@ describe('the same turn without its last station', () => {
     const mid = wrap((hole.fromYawDeg + hole.toYawDeg) / 2);
     expect(wrap(mid - yaws[yaws.length - 1])).toBeGreaterThan(0);
     expect(wrap(yaws[0] - mid)).toBeGreaterThan(0);
+    // The coverage map hatches that stretch, all the way up and down the frames, and nothing else.
+    const map = coverageMap(report)!;
+    expect(map.holes.length).toBeGreaterThan(0);
+    for (const h of map.holes) {
+      expect(h.yawFromDeg, 'hole start').toBeGreaterThanOrEqual(Math.floor(wrap(hole.fromYawDeg)) - 1);
+      expect(h.yawToDeg, 'hole end').toBeLessThanOrEqual(Math.ceil(wrap(hole.toYawDeg)) + 1);
+    }
   }, 240_000);
 });

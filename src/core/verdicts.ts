@@ -45,7 +45,8 @@ function judgeStationPair(p: PairMeasure, budget: MatchBudget, sweepDeg: number 
   if (p.homography === null) {
     if (p.kind === 'closure') {
       const gap = geometry ? Math.max(0, ...geometry.gaps.map((g) => g.toYawDeg - g.fromYawDeg)) : 0;
-      const missing = gap >= 0.5 ? `about ${Math.round(gap)} degrees of the turn are not covered: ` : '';
+      const deg = Math.round(gap);
+      const missing = gap >= 0.5 ? `about ${deg} degree${deg === 1 ? ' of the turn is' : 's of the turn are'} not covered; ` : '';
       f.add('no-closure', sweepDeg !== null && sweepDeg >= 330 ? 'reshoot' : 'weak', `the turn does not close between ${between}: ${missing}add a frame between them`);
     } else f.add('no-match', 'reshoot', `no reliable match between ${between}: add a frame between them, or aim the overlap at more detail`);
     return f.done();

@@ -27,7 +27,14 @@ export interface CheckPartialEvent {
   readonly report: Report;
 }
 
-export type ExportFormat = 'json' | 'graphml' | 'csv' | 'dot';
+/** What the page can export: the report, the pair graph three ways, and the coverage map (SVG). */
+export const exportFormats = ['json', 'graphml', 'csv', 'dot', 'coverage'] as const;
+export type ExportFormat = (typeof exportFormats)[number];
+
+export function expectExportFormat(format: unknown): ExportFormat {
+  if (!(exportFormats as readonly unknown[]).includes(format)) throw new TypeError(`Expected one of ${exportFormats.join(', ')} for format but received ${String(format)}`);
+  return format as ExportFormat;
+}
 
 export interface HostInfo {
   /** 'desktop' inside the Electron window, 'browser' from the local browser host. */

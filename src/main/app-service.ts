@@ -1,6 +1,7 @@
 import { realpath } from 'node:fs/promises';
 import { isAbsolute, relative, resolve, sep } from 'node:path';
 import sharp from 'sharp';
+import { coverageMapSvg } from '../core/coverage-map.js';
 import { reportToCsv } from '../core/exports/csv.js';
 import { reportToDot } from '../core/exports/dot.js';
 import { reportToGraphml } from '../core/exports/graphml.js';
@@ -48,6 +49,11 @@ export function exportContent(report: Report, format: ExportFormat): { text: str
       return { text: reportToCsv(report), name: 'seamscout-pairs.csv' };
     case 'dot':
       return { text: reportToDot(report), name: 'seamscout-pairs.dot' };
+    case 'coverage': {
+      const svg = coverageMapSvg(report);
+      if (svg === null) throw new Error('no coverage map: the frames could not be placed (no pair between stations matched, or no focal length could be had)');
+      return { text: svg, name: 'seamscout-coverage.svg' };
+    }
   }
 }
 

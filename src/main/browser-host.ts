@@ -5,7 +5,8 @@ import { createServer } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { extname, isAbsolute, join, normalize, relative, sep } from 'node:path';
 import type { MatchBudget } from '../core/report.js';
-import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat } from './app-api.js';
+import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent } from './app-api.js';
+import { expectExportFormat } from './app-api.js';
 import { AppService } from './app-service.js';
 import { loadStoredBudget, storeBudget } from './budget-store.js';
 import { readRecentFolders } from './recent-folders.js';
@@ -105,8 +106,7 @@ export async function startBrowserHost(options: BrowserHostOptions): Promise<Bro
     loadBudget: () => loadStoredBudget(),
     saveBudget: ([b]) => storeBudget((b ?? {}) as Record<string, unknown>),
     exportContent: ([id, format, budget]) => {
-      if (!['json', 'graphml', 'csv', 'dot'].includes(String(format))) throw new TypeError(`Expected json, graphml, csv or dot for format but received ${String(format)}`);
-      return service.exportReport(Number(id), format as ExportFormat, budget as MatchBudget);
+      return service.exportReport(Number(id), expectExportFormat(format), budget as MatchBudget);
     },
     tiePoints: ([id, a, b]) => service.tiePoints(Number(id), String(a), String(b)),
   };

@@ -8,6 +8,7 @@ import { reportToGraphml } from '../core/exports/graphml.js';
 import type { Report } from '../core/report.js';
 import { judge } from '../core/verdicts.js';
 import { commandLineThreads, defaultMaxSide, runCheck } from './check.js';
+import { coverageMapContent, coverageMapFormat } from './coverage-map-file.js';
 import { createFeatureCache } from './feature-cache.js';
 import { readSettings } from './settings.js';
 import { progressLine, formatSummary } from './summary.js';
@@ -28,6 +29,8 @@ Options:
   --csv FILE               write one row per pair (RFC 4180)
   --dot FILE               write the pair graph in the DOT language
   --tie-points FILE        write the inlier correspondences (CSV: a,b,xa,ya,xb,yb, full-resolution px)
+  --coverage-map FILE      write the coverage map: every frame's footprint on the sphere around the
+                           camera and what no frame sees (.svg, or .png)
   --force                  overwrite existing output files
   --no-cache               analyse every frame again (the cache lives in the user's cache folder)
   --settings FILE          settings file (default: the user settings file, if present)
@@ -57,7 +60,7 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
       allowPositionals: true,
       options: {
         recursive: { type: 'boolean' }, 'all-pairs': { type: 'boolean' }, size: { type: 'string' }, threads: { type: 'string' },
-        json: { type: 'string' }, graphml: { type: 'string' }, csv: { type: 'string' }, dot: { type: 'string' }, 'tie-points': { type: 'string' },
+        json: { type: 'string' }, graphml: { type: 'string' }, csv: { type: 'string' }, dot: { type: 'string' }, 'tie-points': { type: 'string' }, 'coverage-map': { type: 'string' },
         force: { type: 'boolean' }, 'no-cache': { type: 'boolean' }, settings: { type: 'string' }, 'no-progress': { type: 'boolean' }, help: { type: 'boolean' },
         'min-inliers': { type: 'string' }, 'reshoot-overlap': { type: 'string' }, 'weak-overlap': { type: 'string' }, 'max-ev': { type: 'string' },
         'min-sharpness': { type: 'string' }, 'max-bracket-shift': { type: 'string' },
@@ -86,6 +89,7 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
   try {
     size = whole('size', v.size, 64) ?? defaultMaxSide;
     threads = whole('threads', v.threads, 0);
+    if (v['coverage-map']) coverageMapFormat(v['coverage-map']);
     const settings = await readSettings(v.settings);
     budget = resolveBudget(settings.budget ?? {}, {
       minInliers: v['min-inliers'],
@@ -141,18 +145,19 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
   }
   process.stdout.write(formatSummary(report));
 
-  const outputs: [string | undefined, () => string][] = [
+  const outputs: [string | undefined, () => string | Promise<string | Uint8Array>][] = [
     [v.json, () => JSON.stringify(report, null, 2) + '\n'],
     [v.graphml, () => reportToGraphml(report)],
     [v.csv, () => reportToCsv(report)],
     [v.dot, () => reportToDot(report)],
     [v['tie-points'], () => tiePointsToCsv(tiePoints)],
+    [v['coverage-map'], () => coverageMapContent(report, coverageMapFormat(v['coverage-map']!))],
   ];
   let failed = false;
   for (const [path, make] of outputs) {
     if (!path) continue;
     try {
-      await writeFileAtomic(resolve(path), make(), v.force ?? false);
+      await writeFileAtomic(resolve(path), await make(), v.force ?? false);
       process.stderr.write(`wrote ${path}\n`);
     } catch (err) {
       process.stderr.write(`seamscout: ${(err as Error).message}\n`);

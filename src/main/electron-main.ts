@@ -6,8 +6,7 @@ import { fileURLToPath } from 'node:url';
 import { app, BrowserWindow, dialog, ipcMain, protocol, session } from 'electron';
 import type { IpcMainInvokeEvent } from 'electron';
 import type { MatchBudget } from '../core/report.js';
-import type { ExportFormat } from './app-api.js';
-import { channels, frameProtocol } from './app-api.js';
+import { channels, expectExportFormat, frameProtocol } from './app-api.js';
 import { AppService } from './app-service.js';
 import { loadStoredBudget, storeBudget } from './budget-store.js';
 import { ensureDemoShoot } from './demo-shoot.js';
@@ -80,8 +79,7 @@ app.whenReady().then(async () => {
   handle(channels.saveBudget, (b) => storeBudget((b ?? {}) as Record<string, unknown>));
   handle(channels.tiePoints, (id, a, b) => service.tiePoints(Number(id), String(a), String(b)));
   handle(channels.exportReport, async (id, format, budget) => {
-    if (!['json', 'graphml', 'csv', 'dot'].includes(String(format))) throw new TypeError(`Expected json, graphml, csv or dot for format but received ${String(format)}`);
-    const { text, name } = service.exportReport(Number(id), format as ExportFormat, budget as MatchBudget);
+    const { text, name } = service.exportReport(Number(id), expectExportFormat(format), budget as MatchBudget);
     // The save dialog asks before replacing an existing file.
     const r = await dialog.showSaveDialog(win!, { defaultPath: name });
     if (r.canceled || !r.filePath) return null;

@@ -11,7 +11,8 @@ function pad(s: string, n: number): string {
 export function formatSummary(report: Report): string {
   const out: string[] = [];
   const g = report.geometry;
-  const closes = g?.closure ? (g.closure.closes ? `, the turn closes (within ${g.closure.misclosureDeg!.toFixed(1)} deg)` : ', the turn does not meet itself') : '';
+  const openTurn = report.pairs.some((p) => p.kind === 'closure' && p.homography === null);
+  const closes = g?.closure ? (g.closure.closes ? `, the turn closes (within ${g.closure.misclosureDeg!.toFixed(1)} deg)` : ', the turn does not meet itself') : openTurn ? ', the turn does not close' : '';
   const sweep = g
     ? `, covering ${Math.round(g.horizontalDeg)} deg of the horizon and ${Math.round(g.verticalDeg)} deg vertically${closes}`
     : report.sweepDeg === null ? '' : `, sweep about ${Math.round(report.sweepDeg)} deg`;

@@ -16,6 +16,7 @@ import type { ProgressModel, ProgressView } from './progress-view.js';
 import { createProgressView, emptyProgress, withEvent } from './progress-view.js';
 import type { StartModel } from './start-view.js';
 import { renderStart } from './start-view.js';
+import { renderCoverage } from './coverage-view.js';
 import { renderStrip } from './strip-view.js';
 import { renderSummary } from './summary-view.js';
 import { applyStoredTheme, themeToggle } from './theme.js';
@@ -105,6 +106,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   const summarySlot = el('div', { class: 'summary-slot' });
   const stripSlot = el('div', { class: 'strip-slot' });
   const stripSection = el('section', { class: 'strip-section', 'aria-label': 'Strip' }, el('h2', { class: 'visually-hidden' }, 'Strip'), stripSlot);
+  const coverageSlot = el('div', { class: 'coverage-slot' });
   const detailSlot = el('div', { class: 'detail-slot' });
   const adviceSlot = el('div', { class: 'advice-slot' });
   const exportSlot = el('div', { class: 'export-slot' });
@@ -113,7 +115,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     'div',
     { class: 'results' },
     summarySlot,
-    el('div', { class: 'results-wide' }, stripSection, detailSlot),
+    el('div', { class: 'results-wide' }, stripSection, coverageSlot, detailSlot),
     el('div', { class: 'results-main' }, adviceSlot),
     el('aside', { class: 'results-side' }, panel.element, budgetStatusEl, exportSlot),
   );
@@ -166,6 +168,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     if (detail) replaceChildren(stripSlot);
     else replaceChildren(stripSlot, renderStrip(report, { thumbnail, selected, onOpen: openDetail, onSelect: (k) => select(k, false) }));
     replaceChildren(adviceSlot, renderAdvice(report, openDetail));
+    replaceChildren(coverageSlot, detail ? null : renderCoverage(report));
     replaceChildren(exportSlot, renderExport(exportResult, doExport));
     budgetStatusEl.textContent = budgetStatus;
     stripSection.hidden = detail !== null;

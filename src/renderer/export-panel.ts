@@ -1,4 +1,4 @@
-// Export buttons: the report and its pair graph in the formats of the check command.
+// Export buttons: the report, its pair graph and the coverage map, as the check command writes them.
 import type { ExportFormat } from '../main/app-api.js';
 import { button, el } from './dom.js';
 
@@ -7,6 +7,7 @@ export const exportButtons: readonly { format: ExportFormat; label: string }[] =
   { format: 'graphml', label: 'Export pair graph (GraphML)' },
   { format: 'csv', label: 'Export pairs (CSV)' },
   { format: 'dot', label: 'Export graph (DOT)' },
+  { format: 'coverage', label: 'Export coverage map (SVG)' },
 ];
 
 export type ExportResult = { readonly state: 'idle' } | { readonly state: 'busy'; readonly format: ExportFormat } | { readonly state: 'written'; readonly path: string } | { readonly state: 'cancelled' } | { readonly state: 'failed'; readonly message: string };

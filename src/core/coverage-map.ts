@@ -1,0 +1,200 @@
+/**
+ * The coverage map: every placed frame's footprint on an equirectangular view of the sphere around
+ * the camera (yaw across, pitch up), and the directions inside the shot band no frame sees.
+ */
+import type { Report, SequenceGeometry } from './report.js';
+
+type Vec = [number, number, number];
+
+const cross = (a: Vec, b: Vec): Vec => [a[1] * b[2] - a[2] * b[1], a[2] * b[0] - a[0] * b[2], a[0] * b[1] - a[1] * b[0]];
+
+/** A direction of yaw and pitch (degrees) in the level frame: right, down, forward (right-handed, as a camera's x, y, z). */
+function directionOf(yawDeg: number, pitchDeg: number): Vec {
+  const r = Math.PI / 180;
+  return [Math.cos(pitchDeg * r) * Math.sin(yawDeg * r), -Math.sin(pitchDeg * r), Math.cos(pitchDeg * r) * Math.cos(yawDeg * r)];
+}
+
+/** Camera axes of a station in the level frame, from its yaw, pitch and roll as stationPoses measures them. */
+function axesOf(yawDeg: number, pitchDeg: number, rollDeg: number): { x: Vec; y: Vec; z: Vec } {
+  const z = directionOf(yawDeg, pitchDeg);
+  // The level right of the view is z x up (up = (0, -1, 0)); the camera's x is that turned by the
+  // roll about z, and y = z x x points down the image.
+  const ln = Math.hypot(z[2], z[0]) || 1;
+  const level: Vec = [z[2] / ln, 0, -z[0] / ln];
+  const q = (rollDeg * Math.PI) / 180;
+  const zl = cross(z, level);
+  const x = [0, 1, 2].map((k) => Math.cos(q) * level[k] + Math.sin(q) * zl[k]) as Vec;
+  return { x, y: cross(z, x), z };
+}
+
+export interface Footprint {
+  readonly station: number;
+  /** The frame's border as (yaw, pitch) in degrees, yaw unwrapped along the outline. */
+  readonly outline: [number, number][];
+  readonly centre: [number, number];
+}
+
+/** A run of uncovered map cells in one row: pitch from..to, yaw from..to, degrees. */
+export interface HoleRun {
+  readonly pitchFromDeg: number;
+  readonly pitchToDeg: number;
+  readonly yawFromDeg: number;
+  readonly yawToDeg: number;
+}
+
+export interface CoverageMap {
+  readonly footprints: Footprint[];
+  readonly holes: HoleRun[];
+  /** The band of pitch the frames were aimed over, where an uncovered direction is a hole. */
+  readonly band: { readonly fromDeg: number; readonly toDeg: number };
+  readonly cellDeg: number;
+}
+
+interface PlacedCamera {
+  readonly station: number;
+  readonly width: number;
+  readonly height: number;
+  readonly axes: { x: Vec; y: Vec; z: Vec };
+}
+
+/** The placed stations of a report with their reference frame's size. */
+function placedCameras(report: Report, g: SequenceGeometry): PlacedCamera[] {
+  return g.poses.flatMap((p) => {
+    const ref = report.stations[p.station]?.reference;
+    const frame = report.frames.find((f) => f.file === ref);
+    return frame ? [{ station: p.station, width: frame.width, height: frame.height, axes: axesOf(p.yawDeg, p.pitchDeg, p.rollDeg) }] : [];
+  });
+}
+
+function direction(c: PlacedCamera, f: number, u: number, v: number): Vec {
+  const a = (u - (c.width - 1) / 2) / f, b = (v - (c.height - 1) / 2) / f;
+  return [0, 1, 2].map((k) => a * c.axes.x[k] + b * c.axes.y[k] + c.axes.z[k]) as Vec;
+}
+
+function angles(d: Vec): [number, number] {
+  const n = Math.hypot(d[0], d[1], d[2]);
+  return [(Math.atan2(d[0], d[2]) * 180) / Math.PI, (Math.asin(-d[1] / n) * 180) / Math.PI];
+}
+
+function sees(c: PlacedCamera, f: number, d: Vec): boolean {
+  const z = d[0] * c.axes.z[0] + d[1] * c.axes.z[1] + d[2] * c.axes.z[2];
+  if (z <= 0) return false;
+  const u = (f * (d[0] * c.axes.x[0] + d[1] * c.axes.x[1] + d[2] * c.axes.x[2])) / z + (c.width - 1) / 2;
+  const v = (f * (d[0] * c.axes.y[0] + d[1] * c.axes.y[1] + d[2] * c.axes.y[2])) / z + (c.height - 1) / 2;
+  return u >= -0.5 && u <= c.width - 0.5 && v >= -0.5 && v <= c.height - 0.5;
+}
+
+/**
+ * Footprints and holes of a report's geometry, on a grid of `cellDeg`. The band where holes count
+ * runs from the lowest to the highest frame centre, widened by 80 % of half a frame's height, so the
+ * notches where frames of one row meet at their corners do not count; a set reaching within a
+ * frame of a pole counts up to the pole (a missing zenith or nadir).
+ */
+export function coverageMap(report: Report, cellDeg = 1): CoverageMap | null {
+  const g = report.geometry;
+  if (!g || g.poses.length === 0) return null;
+  const cams = placedCameras(report, g);
+  const f = g.focalPx;
+  const footprints: Footprint[] = cams.map((c) => {
+    const border: [number, number][] = [];
+    const steps = 24;
+    const edge = (u0: number, v0: number, u1: number, v1: number): void => {
+      for (let k = 0; k < steps; k++) border.push([u0 + ((u1 - u0) * k) / steps, v0 + ((v1 - v0) * k) / steps]);
+    };
+    const W = c.width - 0.5, H = c.height - 0.5;
+    edge(-0.5, -0.5, W, -0.5);
+    edge(W, -0.5, W, H);
+    edge(W, H, -0.5, H);
+    edge(-0.5, H, -0.5, -0.5);
+    const outline: [number, number][] = [];
+    for (const [u, v] of border) {
+      const [yaw0, pitch] = angles(direction(c, f, u, v));
+      let yaw = yaw0;
+      if (outline.length) {
+        const prev = outline[outline.length - 1][0];
+        while (yaw - prev > 180) yaw -= 360;
+        while (yaw - prev < -180) yaw += 360;
+      }
+      outline.push([yaw, pitch]);
+    }
+    return { station: c.station, outline, centre: angles(c.axes.z) };
+  });
+
+  const halfV = Math.max(...cams.map((c) => (Math.atan(c.height / (2 * f)) * 180) / Math.PI));
+  const pitches = footprints.map((p) => p.centre[1]);
+  let from = Math.min(...pitches) - 0.8 * halfV, to = Math.max(...pitches) + 0.8 * halfV;
+  if (to > 90 - 2 * halfV) to = 90;
+  if (from < -90 + 2 * halfV) from = -90;
+  const holes: HoleRun[] = [];
+  for (let pc = -90; pc < 90; pc += cellDeg) {
+    const pm = pc + cellDeg / 2;
+    if (pm < from || pm > to) continue;
+    let runStart: number | null = null;
+    for (let yc = -180; yc <= 180; yc += cellDeg) {
+      const d = directionOf(yc + cellDeg / 2, pm);
+      const open = yc < 180 && !cams.some((c) => sees(c, f, d));
+      if (open && runStart === null) runStart = yc;
+      if (!open && runStart !== null) {
+        holes.push({ pitchFromDeg: pc, pitchToDeg: pc + cellDeg, yawFromDeg: runStart, yawToDeg: yc });
+        runStart = null;
+      }
+    }
+  }
+  return { footprints, holes, band: { fromDeg: from, toDeg: to }, cellDeg };
+}
+
+/** Degrees of the band left uncovered (area-weighted by cos pitch, so a pole cap is not overstated), as a share of the band. */
+export function holeShare(map: CoverageMap): number {
+  const w = (p: number): number => Math.cos((p * Math.PI) / 180);
+  let open = 0, all = 0;
+  for (let p = -90; p < 90; p += map.cellDeg) {
+    const pm = p + map.cellDeg / 2;
+    if (pm >= map.band.fromDeg && pm <= map.band.toDeg) all += 360 * w(pm);
+  }
+  for (const h of map.holes) open += (h.yawToDeg - h.yawFromDeg) * w((h.pitchFromDeg + h.pitchToDeg) / 2);
+  return all > 0 ? open / all : 0;
+}
+
+const esc = (s: string): string => s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;');
+
+/**
+ * The map as a standalone SVG: 2 px a degree by default, yaw from -180 (left) to 180, pitch 90 at
+ * the top. Frames are outlined and numbered by station (counting from 1, as the app does); holes
+ * are hatched in vermillion (Okabe & Ito's palette) and named in the legend, never by colour alone.
+ */
+export function coverageMapSvg(report: Report, scale = 2): string | null {
+  const map = coverageMap(report);
+  if (!map) return null;
+  const W = 360 * scale, H = 180 * scale, top = 28, bottom = 36;
+  const x = (yaw: number): number => (yaw + 180) * scale;
+  const y = (pitch: number): number => top + (90 - pitch) * scale;
+  const parts: string[] = [];
+  parts.push(`<svg xmlns="http://www.w3.org/2000/svg" width="${W}" height="${H + top + bottom}" viewBox="0 0 ${W} ${H + top + bottom}" font-family="sans-serif" font-size="11">`);
+  parts.push('<title>Seamscout coverage map</title>');
+  parts.push('<defs><pattern id="hole" width="6" height="6" patternUnits="userSpaceOnUse" patternTransform="rotate(45)"><rect width="6" height="6" fill="#fbe3d6"/><line x1="0" y1="0" x2="0" y2="6" stroke="#D55E00" stroke-width="2"/></pattern>');
+  parts.push(`<clipPath id="sphere"><rect x="0" y="${top}" width="${W}" height="${H}"/></clipPath></defs>`);
+  parts.push(`<rect x="0" y="0" width="${W}" height="${H + top + bottom}" fill="#ffffff"/>`);
+  parts.push(`<rect x="0" y="${top}" width="${W}" height="${H}" fill="#f4f4f4" stroke="#999999"/>`);
+  const g = report.geometry!;
+  parts.push(`<text x="4" y="18">Coverage: ${Math.round(g.horizontalDeg)}° of the horizon, ${Math.round(g.verticalDeg)}° vertically${g.closure ? (g.closure.closes ? '; the turn closes' : '; the turn does not meet itself') : ''}</text>`);
+  parts.push('<g clip-path="url(#sphere)">');
+  for (let yaw = -150; yaw < 180; yaw += 30) parts.push(`<line x1="${x(yaw)}" y1="${top}" x2="${x(yaw)}" y2="${top + H}" stroke="#dddddd"/>`);
+  for (let p = -60; p <= 60; p += 30) parts.push(`<line x1="0" y1="${y(p)}" x2="${W}" y2="${y(p)}" stroke="${p === 0 ? '#bbbbbb' : '#dddddd'}"/>`);
+  for (const h of map.holes) {
+    parts.push(`<rect class="hole" x="${x(h.yawFromDeg)}" y="${y(h.pitchToDeg)}" width="${(h.yawToDeg - h.yawFromDeg) * scale}" height="${(h.pitchToDeg - h.pitchFromDeg) * scale}" fill="url(#hole)"/>`);
+  }
+  for (const fp of map.footprints) {
+    for (const shift of [-360, 0, 360]) {
+      const pts = fp.outline.map(([a, b]) => `${x(a + shift).toFixed(1)},${y(b).toFixed(1)}`).join(' ');
+      parts.push(`<polygon class="footprint" data-station="${fp.station}" points="${pts}" fill="#0072B2" fill-opacity="0.08" stroke="#0072B2" stroke-width="1.2"/>`);
+    }
+    parts.push(`<text x="${x(fp.centre[0]).toFixed(1)}" y="${(y(fp.centre[1]) + 4).toFixed(1)}" text-anchor="middle" fill="#003b5c">${esc(String(fp.station + 1))}</text>`);
+  }
+  parts.push('</g>');
+  for (let yaw = -180; yaw <= 180; yaw += 90) parts.push(`<text x="${Math.min(W - 30, Math.max(2, x(yaw) - 12))}" y="${top + H + 14}" fill="#555555">${yaw}°</text>`);
+  const ly = top + H + 30;
+  parts.push(`<rect x="4" y="${ly - 10}" width="14" height="12" fill="#0072B2" fill-opacity="0.08" stroke="#0072B2"/><text x="22" y="${ly}">frame (station number)</text>`);
+  parts.push(`<rect x="170" y="${ly - 10}" width="14" height="12" fill="url(#hole)" stroke="#D55E00"/><text x="188" y="${ly}">${map.holes.length ? 'not covered' : 'not covered (none in the shot band)'}</text>`);
+  parts.push('</svg>');
+  return parts.join('\n') + '\n';
+}
