@@ -3,7 +3,7 @@
 // frame and nowhere else, and the SVG's structure.
 import { describe, expect, it } from 'vitest';
 import { cameraModel, directionAngles, pixelDirection } from '../src/core/camera.js';
-import { coverageMap, coverageMapSvg, holeShare } from '../src/core/coverage-map.js';
+import { coverageHoles, coverageMap, coverageMapSvg, holeShare } from '../src/core/coverage-map.js';
 import type { Report } from '../src/core/report.js';
 import { defaultBudget } from '../src/core/report.js';
 import { judge } from '../src/core/verdicts.js';
@@ -24,6 +24,7 @@ function reportOf(poses: { yawDeg: number; pitchDeg: number; rollDeg: number }[]
     geometry: {
       focalPx: f, focalFrom: 'exif', poses: poses.map((p, station) => ({ station, ...p })), unplaced: [],
       horizontalDeg: 0, verticalDeg: 0, gaps: [], closure: null, rmsPx: 0,
+      rows: [...new Set(poses.map((p) => p.pitchDeg))].sort((a, b) => a - b).map((pitchDeg) => ({ pitchDeg, stations: poses.flatMap((p, k) => (p.pitchDeg === pitchDeg ? [k] : [])) })),
     },
   }, defaultBudget);
 }
@@ -85,5 +86,32 @@ describe('the coverage map', () => {
     expect(map.band.toDeg).toBe(90);
     expect(map.holes.some((h) => h.pitchFromDeg >= 85)).toBe(true);
     expect(map.holes.every((h) => h.pitchFromDeg >= 75)).toBe(true);
+  });
+
+  it('says where to aim for a frame missing from the upper of two rows', () => {
+    // Rows of 8 at pitch 0 and 30, 45 degrees apart; the upper frame at yaw 90 is missing.
+    const rows = [0, 30].flatMap((pitch) => Array.from({ length: 8 }, (_, k) => ({ yawDeg: wrap(45 * k), pitchDeg: pitch, rollDeg: 0 })));
+    const report = reportOf(rows.filter((p) => !(p.pitchDeg === 30 && p.yawDeg === 90)));
+    const holes = coverageHoles(report);
+    expect(holes).toHaveLength(1);
+    const h = holes[0];
+    expect(h.verdict).toBe('reshoot');
+    expect(h.pole).toBeNull();
+    expect(Math.abs(h.yawDeg - 90)).toBeLessThan(5);
+    expect(h.pitchDeg).toBeGreaterThan(20);
+    expect(h.pitchDeg).toBeLessThan(45);
+    // The upper row's neighbours of the gap are stations 10 and 11 (counting from 1).
+    expect(h.advice).toMatch(/between stations 10 and 11/);
+    expect(report.holes).toEqual(holes);
+    expect(report.verdict).toBe('reshoot');
+  });
+
+  it('names the band between rows too far apart, and the missing zenith, and leaves a single sweep alone', () => {
+    const apart = [0, 45].flatMap((pitch) => Array.from({ length: 12 }, (_, k) => ({ yawDeg: wrap(30 * k), pitchDeg: pitch, rollDeg: 0 })));
+    const holes = coverageHoles(reportOf(apart));
+    expect(holes.some((h) => h.widthDeg === 360 && /all the way round/.test(h.advice))).toBe(true);
+    expect(holes.some((h) => h.pole === 'zenith' && /straight up/.test(h.advice))).toBe(true);
+    const sweep = Array.from({ length: 11 }, (_, k) => ({ yawDeg: wrap(30 * k), pitchDeg: 0, rollDeg: 0 }));
+    expect(coverageHoles(reportOf(sweep))).toEqual([]);
   });
 });

@@ -77,6 +77,25 @@ describe('GraphML export', () => {
     expect(e1.overlap).toBeUndefined();
     expect(e1.verdict).toBe('reshoot');
   });
+
+  it('gives placed frames their station\'s yaw, pitch and roll, and leaves unplaced ones without', () => {
+    const placed = judge({
+      ...analysis,
+      geometry: {
+        focalPx: 2916.7, focalFrom: 'exif', unplaced: [2], horizontalDeg: 110, verticalDeg: 38, gaps: [], closure: null, rmsPx: 0.3, rows: [{ pitchDeg: 0.1, stations: [0, 1] }],
+        poses: [{ station: 0, yawDeg: 0, pitchDeg: 0.2, rollDeg: -0.1 }, { station: 1, yawDeg: 31.5, pitchDeg: -0.3, rollDeg: 0.4 }],
+      },
+    }, defaultBudget);
+    const d = new XMLParser({ ignoreAttributes: false, attributeNamePrefix: '@', isArray: (name) => ['key', 'node', 'edge', 'data'].includes(name) }).parse(reportToGraphml(placed));
+    const keyName = new Map(d.graphml.key.map((k: Record<string, string>) => [k['@id'], k['@attr.name']]));
+    const fields = (el: { data: { '@key': string; '#text': unknown }[] }): Record<string, string> =>
+      Object.fromEntries(el.data.map((x) => [keyName.get(x['@key']), String(x['#text'])]));
+    const nodes = d.graphml.graph.node.map((n: never) => fields(n));
+    expect(Number(nodes[1].yawDeg)).toBeCloseTo(31.5, 10);
+    expect(Number(nodes[1].rollDeg)).toBeCloseTo(0.4, 10);
+    expect(nodes[2].yawDeg).toBeUndefined();
+    expect(Number(fields(d.graphml.graph).focalPx)).toBeCloseTo(2916.7, 10);
+  });
 });
 
 describe('CSV export (RFC 4180)', () => {

@@ -434,7 +434,7 @@ describe('export and theme', () => {
     await tick();
     expect(text($('[data-export-result]'))).toBe('Written: /home/me/shoot.graphml');
     expect([...document.querySelectorAll('[data-export]')].map((b) => [b.getAttribute('data-export'), text(b)])).toEqual([
-      ['json', 'Export report (JSON)'], ['graphml', 'Export pair graph (GraphML)'], ['csv', 'Export pairs (CSV)'], ['dot', 'Export graph (DOT)'],
+      ['json', 'Export report (JSON)'], ['graphml', 'Export pair graph (GraphML)'], ['csv', 'Export pairs (CSV)'], ['dot', 'Export graph (DOT)'], ['coverage', 'Export coverage map (SVG)'],
     ]);
   });
 

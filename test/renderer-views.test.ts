@@ -352,7 +352,7 @@ describe('the coverage map', () => {
   const placed = judge({
     ...analysis,
     geometry: {
-      focalPx: 2000, focalFrom: 'exif', unplaced: [], horizontalDeg: 150, verticalDeg: 53, gaps: [{ fromYawDeg: 120, toYawDeg: 330 }], closure: null, rmsPx: 0.3,
+      focalPx: 2000, focalFrom: 'exif', unplaced: [], horizontalDeg: 150, verticalDeg: 53, gaps: [{ fromYawDeg: 120, toYawDeg: 330 }], closure: null, rmsPx: 0.3, rows: [],
       // Three stations 50 degrees apart: the first two overlap, the third leaves a gap before it.
       poses: [{ station: 0, yawDeg: 0, pitchDeg: 0, rollDeg: 0 }, { station: 1, yawDeg: 50, pitchDeg: 0, rollDeg: 0 }, { station: 2, yawDeg: 130, pitchDeg: 0, rollDeg: 0 }],
     },

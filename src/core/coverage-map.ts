@@ -2,7 +2,10 @@
  * The coverage map: every placed frame's footprint on an equirectangular view of the sphere around
  * the camera (yaw across, pitch up), and the directions inside the shot band no frame sees.
  */
-import type { Report, SequenceGeometry } from './report.js';
+import type { Analysis, CoverageHole, SequenceGeometry, Verdict } from './report.js';
+
+/** What the map is drawn from: the frames' sizes, the stations' reference frames, the geometry. */
+export type MapSource = Pick<Analysis, 'frames' | 'stations' | 'geometry'>;
 
 type Vec = [number, number, number];
 
@@ -58,7 +61,7 @@ interface PlacedCamera {
 }
 
 /** The placed stations of a report with their reference frame's size. */
-function placedCameras(report: Report, g: SequenceGeometry): PlacedCamera[] {
+function placedCameras(report: MapSource, g: SequenceGeometry): PlacedCamera[] {
   return g.poses.flatMap((p) => {
     const ref = report.stations[p.station]?.reference;
     const frame = report.frames.find((f) => f.file === ref);
@@ -90,7 +93,7 @@ function sees(c: PlacedCamera, f: number, d: Vec): boolean {
  * notches where frames of one row meet at their corners do not count; a set reaching within a
  * frame of a pole counts up to the pole (a missing zenith or nadir).
  */
-export function coverageMap(report: Report, cellDeg = 1): CoverageMap | null {
+export function coverageMap(report: MapSource, cellDeg = 1): CoverageMap | null {
   const g = report.geometry;
   if (!g || g.poses.length === 0) return null;
   const cams = placedCameras(report, g);
@@ -162,7 +165,7 @@ const esc = (s: string): string => s.replace(/&/g, '&amp;').replace(/</g, '&lt;'
  * the top. Frames are outlined and numbered by station (counting from 1, as the app does); holes
  * are hatched in vermillion (Okabe & Ito's palette) and named in the legend, never by colour alone.
  */
-export function coverageMapSvg(report: Report, scale = 2): string | null {
+export function coverageMapSvg(report: MapSource, scale = 2): string | null {
   const map = coverageMap(report);
   if (!map) return null;
   const W = 360 * scale, H = 180 * scale, top = 28, bottom = 36;
@@ -197,4 +200,113 @@ export function coverageMapSvg(report: Report, scale = 2): string | null {
   parts.push(`<rect x="170" y="${ly - 10}" width="14" height="12" fill="url(#hole)" stroke="#D55E00"/><text x="188" y="${ly}">${map.holes.length ? 'not covered' : 'not covered (none in the shot band)'}</text>`);
   parts.push('</svg>');
   return parts.join('\n') + '\n';
+}
+
+/** One connected stretch of uncovered cells (8-neighbours, wrapping in yaw). */
+interface HoleRegion {
+  readonly cells: number;
+  readonly yawDeg: number;
+  readonly pitchDeg: number;
+  readonly widthDeg: number;
+  readonly heightDeg: number;
+  readonly pole: 'zenith' | 'nadir' | null;
+}
+
+/** The holes of a map as connected regions. */
+export function holeRegions(map: CoverageMap): HoleRegion[] {
+  const c = map.cellDeg;
+  const cols = Math.round(360 / c), rowsN = Math.round(180 / c);
+  const open = new Uint8Array(cols * rowsN);
+  for (const h of map.holes) {
+    const r = Math.round((h.pitchFromDeg + 90) / c);
+    for (let y = h.yawFromDeg; y < h.yawToDeg; y += c) open[r * cols + Math.round((y + 180) / c)] = 1;
+  }
+  const seen = new Uint8Array(open.length);
+  const regions: HoleRegion[] = [];
+  for (let start = 0; start < open.length; start++) {
+    if (!open[start] || seen[start]) continue;
+    const stack = [start];
+    seen[start] = 1;
+    const cells: number[] = [];
+    while (stack.length) {
+      const k = stack.pop()!;
+      cells.push(k);
+      const r = Math.floor(k / cols), q = k % cols;
+      for (let dr = -1; dr <= 1; dr++)
+        for (let dq = -1; dq <= 1; dq++) {
+          const rr = r + dr;
+          if (rr < 0 || rr >= rowsN) continue;
+          const nk = rr * cols + ((q + dq + cols) % cols);
+          if (open[nk] && !seen[nk]) {
+            seen[nk] = 1;
+            stack.push(nk);
+          }
+        }
+    }
+    // Yaw: circular mean, then the extent unwrapped around it; pitch: plain.
+    let sx = 0, sy = 0, pLo = Infinity, pHi = -Infinity;
+    for (const k of cells) {
+      const yaw = ((k % cols) * c - 180 + c / 2) * (Math.PI / 180);
+      sx += Math.cos(yaw);
+      sy += Math.sin(yaw);
+      const p = Math.floor(k / cols) * c - 90;
+      pLo = Math.min(pLo, p);
+      pHi = Math.max(pHi, p + c);
+    }
+    const mid = (Math.atan2(sy, sx) * 180) / Math.PI;
+    let yLo = Infinity, yHi = -Infinity;
+    for (const k of cells) {
+      const d = ((((k % cols) * c - 180 + c / 2 - mid) % 360) + 540) % 360 - 180;
+      yLo = Math.min(yLo, d - c / 2);
+      yHi = Math.max(yHi, d + c / 2);
+    }
+    const pole = pHi >= 90 && map.band.toDeg >= 90 ? 'zenith' : pLo <= -90 && map.band.fromDeg <= -90 ? 'nadir' : null;
+    const wraps = yHi - yLo >= 359;
+    regions.push({
+      cells: cells.length,
+      yawDeg: wraps ? 0 : mid + (yLo + yHi) / 2,
+      pitchDeg: pole === 'zenith' ? 90 : pole === 'nadir' ? -90 : (pLo + pHi) / 2,
+      widthDeg: wraps ? 360 : yHi - yLo,
+      heightDeg: pHi - pLo,
+      pole,
+    });
+  }
+  return regions;
+}
+
+const round = (v: number): number => Math.round(v);
+const wrapYaw = (d: number): number => ((((d + 180) % 360) + 360) % 360) - 180;
+
+/**
+ * Holes worth a reshoot in a set shot in rows or up to a pole, with where to aim: gaps inside a
+ * row, bands between rows, and a missing zenith or nadir. A single sweep gets none (its gaps are
+ * the pairs' own flags, low-overlap, no-match and no-closure). Holes under 2 degrees across are weak
+ * (within the error of the poses and the footprint model); larger ones reshoot.
+ */
+export function coverageHoles(source: MapSource): CoverageHole[] {
+  const g = source.geometry;
+  if (!g) return [];
+  const map = coverageMap(source);
+  if (!map) return [];
+  const poleBand = map.band.toDeg >= 90 || map.band.fromDeg <= -90;
+  if ((g.rows?.length ?? 1) < 2 && !poleBand) return [];
+  // The hole's neighbours: in the row nearest its pitch, the stations either side of it in yaw.
+  const near = (yaw: number, pitch: number): string => {
+    const rows = g.rows?.length ? g.rows : [{ pitchDeg: 0, stations: g.poses.map((p) => p.station) }];
+    const row = rows.reduce((a, b) => (Math.abs(b.pitchDeg - pitch) < Math.abs(a.pitchDeg - pitch) ? b : a));
+    const inRow = g.poses.filter((p) => row.stations.includes(p.station)).map((p) => ({ s: p.station + 1, d: wrapYaw(p.yawDeg - yaw) }));
+    const left = inRow.filter((x) => x.d < 0).sort((a, b) => b.d - a.d)[0];
+    const right = inRow.filter((x) => x.d >= 0).sort((a, b) => a.d - b.d)[0];
+    const pair = [left?.s, right?.s].filter((x): x is number => x !== undefined).sort((a, b) => a - b);
+    return pair.length === 2 && pair[0] !== pair[1] ? `between stations ${pair[0]} and ${pair[1]}` : `next to station ${pair[0]}`;
+  };
+  return holeRegions(map).map((r) => {
+    const verdict: Verdict = Math.min(r.widthDeg, r.heightDeg) >= 2 || r.pole ? 'reshoot' : 'weak';
+    let advice: string;
+    if (r.pole === 'zenith') advice = `the sky straight up is not covered above pitch ${round(90 - r.heightDeg)}°: add a frame aimed straight up`;
+    else if (r.pole === 'nadir') advice = `the ground straight down is not covered below pitch ${round(-90 + r.heightDeg)}°: add a frame aimed straight down (common practice: hand-held, with the tripod moved aside)`;
+    else if (r.widthDeg >= 359) advice = `nothing covers pitch ${round(r.pitchDeg - r.heightDeg / 2)}° to ${round(r.pitchDeg + r.heightDeg / 2)}° all the way round: the rows are too far apart; add a row at pitch ${round(r.pitchDeg)}°, or tilt the rows closer together`;
+    else advice = `nothing covers about ${round(r.widthDeg)}° x ${round(r.heightDeg)}° at yaw ${round(wrapYaw(r.yawDeg))}°, pitch ${round(r.pitchDeg)}° (${near(r.yawDeg, r.pitchDeg)}): add a frame aimed there`;
+    return { code: 'coverage-hole', verdict, yawDeg: wrapYaw(r.yawDeg), pitchDeg: r.pitchDeg, widthDeg: r.widthDeg, heightDeg: r.heightDeg, pole: r.pole, advice };
+  });
 }

@@ -17,6 +17,7 @@ export type FlagCode =
   | 'incomplete-bracket'
   | 'bracket-drift'
   | 'no-closure'
+  | 'coverage-hole'
   | 'size-mismatch';
 
 export type SkipCode = 'unreadable' | 'too-large' | 'not-an-image' | 'duplicate';
@@ -122,6 +123,8 @@ export interface SequenceGeometry {
   readonly closure: { readonly misclosureDeg: number | null; readonly closes: boolean } | null;
   /** Root-mean-square transfer error of the tie points under the refined rotations, pixels. */
   readonly rmsPx: number;
+  /** Rows of stations at one pitch, lowest first (one row for a single sweep). */
+  readonly rows: readonly { readonly pitchDeg: number; readonly stations: readonly number[] }[];
 }
 
 /** Everything analysis produces, before judging. */
@@ -134,6 +137,21 @@ export interface Analysis {
   /** Degrees of the horizon covered (the geometry's horizontalDeg), or null without geometry. */
   readonly sweepDeg: number | null;
   readonly geometry: SequenceGeometry | null;
+}
+
+/** A stretch of the sphere no frame sees, in a set shot in rows or up to a pole, with where to aim. */
+export interface CoverageHole {
+  readonly code: 'coverage-hole';
+  readonly verdict: Verdict;
+  /** Where to aim a frame to fill it: the hole's middle, in the poses' yaw and pitch. */
+  readonly yawDeg: number;
+  readonly pitchDeg: number;
+  /** Its extent in degrees of yaw (measured at its middle's pitch) and of pitch. */
+  readonly widthDeg: number;
+  readonly heightDeg: number;
+  /** The cap above or below the frames when the set reaches up or down to it. */
+  readonly pole: 'zenith' | 'nadir' | null;
+  readonly advice: string;
 }
 
 export interface FolderProblem {
@@ -173,6 +191,8 @@ export interface Report {
   readonly pairs: readonly ReportPair[];
   readonly skipped: readonly SkippedFile[];
   readonly folderProblems: readonly FolderProblem[];
+  /** Holes in the coverage of sets shot in rows or up to a pole; empty for a single sweep. */
+  readonly holes?: readonly CoverageHole[];
 }
 
 /** The minimum evidence a pair needs, and the other thresholds verdicts are judged by. */

@@ -55,6 +55,19 @@ export function sequenceGeometry(input: GeometryInput): SequenceGeometry | null 
   const hfov = placed.map(({ s }) => fieldOfViewDeg(input.sizes[s].width, refined.focalPx));
   const vfov = placed.map(({ s }) => fieldOfViewDeg(input.sizes[s].height, refined.focalPx));
   const horizon = circleCoverage(placed.map(({ p }) => p!.yawDeg), hfov);
+  // Rows: stations whose pitches lie within half a frame's height of the next.
+  const byPitch = placed.map(({ p, s }, k) => ({ s, pitch: p!.pitchDeg, v: vfov[k] })).sort((a, b) => a.pitch - b.pitch);
+  const rows: { pitchDeg: number; stations: number[] }[] = [];
+  let current: typeof byPitch = [];
+  const close = (): void => {
+    if (current.length) rows.push({ pitchDeg: current.reduce((t, x) => t + x.pitch, 0) / current.length, stations: current.map((x) => x.s).sort((a, b) => a - b) });
+    current = [];
+  };
+  for (const x of byPitch) {
+    if (current.length && x.pitch - current[current.length - 1].pitch > 0.5 * x.v) close();
+    current.push(x);
+  }
+  close();
   return {
     focalPx: refined.focalPx,
     focalFrom: input.exifFocalPx !== null ? 'exif' : 'homographies',
@@ -65,5 +78,6 @@ export function sequenceGeometry(input: GeometryInput): SequenceGeometry | null 
     gaps: horizon.gaps.map((g) => ({ fromYawDeg: g.fromDeg, toYawDeg: g.toDeg })),
     closure: c === null ? null : { misclosureDeg, closes },
     rmsPx: refined.rmsPx,
+    rows,
   };
 }

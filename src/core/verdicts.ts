@@ -1,4 +1,5 @@
 import type { Analysis, FlagCode, Finding, FolderProblem, FrameSettings, MatchBudget, PairMeasure, Report, ReportFrame, ReportPair, ReportStation, SequenceGeometry, StationMeasure, Verdict } from './report.js';
+import { coverageHoles } from './coverage-map.js';
 import { reportSchema } from './report.js';
 import { modalPattern, patternOf } from './stations.js';
 
@@ -199,7 +200,8 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
     const found = stationFindings[i].done();
     return { ...s, flags: found.reasons, ...found };
   });
-  const verdicts = [...pairs.map((p) => p.verdict), ...frames.map((f) => f.verdict), ...stations.map((s) => s.verdict)];
+  const holes = coverageHoles(analysis);
+  const verdicts = [...pairs.map((p) => p.verdict), ...frames.map((f) => f.verdict), ...stations.map((s) => s.verdict), ...holes.map((h) => h.verdict)];
   const problems = [...pairs.map((p) => p.verdict), ...frames.map((f) => f.verdict)];
   return {
     schema: reportSchema,
@@ -220,6 +222,7 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
     pairs,
     skipped: analysis.skipped,
     folderProblems,
+    holes,
   };
 }
 

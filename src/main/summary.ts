@@ -46,7 +46,7 @@ export function formatSummary(report: Report): string {
     out.push('', 'Not checked:');
     for (const s of report.skipped) out.push(`! ${s.file}: ${s.reason}`);
   }
-  const advice = [...new Set([...report.pairs.flatMap((p) => p.advice), ...report.frames.flatMap((f) => f.advice)])];
+  const advice = [...new Set([...report.pairs.flatMap((p) => p.advice), ...report.frames.flatMap((f) => f.advice), ...(report.holes ?? []).map((h) => h.advice)])];
   out.push('');
   if (report.verdict === 'ok') out.push('Verdict: ok. Every pair and frame is within the match budget.');
   else {

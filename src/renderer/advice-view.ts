@@ -23,6 +23,7 @@ export function adviceItems(report: Report): AdviceItem[] {
   for (const p of report.pairs) if (p.kind !== 'other') for (const a of p.advice) add(p.verdict, a, pairKey(p));
   for (const s of report.stations) for (const a of s.advice) add(s.verdict, a, null);
   for (const f of report.frames) for (const a of f.advice) add(f.verdict, a, null);
+  for (const h of report.holes ?? []) add(h.verdict, h.advice, null);
   return [...seen.values()].filter((i) => i.verdict !== 'ok').sort((x, y) => rank[x.verdict] - rank[y.verdict]);
 }
 

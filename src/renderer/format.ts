@@ -56,6 +56,7 @@ export const flagMeaning: Record<FlagCode, string> = {
   'incomplete-bracket': 'the station has fewer bracket frames than the others',
   'bracket-drift': 'the camera moved between frames of the bracket',
   'no-closure': 'the last station does not line up with the first',
+  'coverage-hole': 'part of the view around the camera is in no frame',
   'size-mismatch': 'the frame has another size than the rest of the sequence',
 };
 

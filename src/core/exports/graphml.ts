@@ -13,6 +13,9 @@ interface Key {
 const keys: Key[] = [
   { id: 'g_verdict', for: 'graph', name: 'verdict', type: 'string' },
   { id: 'g_sweep', for: 'graph', name: 'sweepDeg', type: 'double' },
+  { id: 'g_vertical', for: 'graph', name: 'verticalDeg', type: 'double' },
+  { id: 'g_focal', for: 'graph', name: 'focalPx', type: 'double' },
+  { id: 'g_closes', for: 'graph', name: 'turnCloses', type: 'boolean' },
   { id: 'n_file', for: 'node', name: 'file', type: 'string' },
   { id: 'n_station', for: 'node', name: 'station', type: 'int' },
   { id: 'n_reference', for: 'node', name: 'reference', type: 'boolean' },
@@ -21,6 +24,9 @@ const keys: Key[] = [
   { id: 'n_capture', for: 'node', name: 'captureTime', type: 'string' },
   { id: 'n_verdict', for: 'node', name: 'verdict', type: 'string' },
   { id: 'n_flags', for: 'node', name: 'flags', type: 'string' },
+  { id: 'n_yaw', for: 'node', name: 'yawDeg', type: 'double' },
+  { id: 'n_pitch', for: 'node', name: 'pitchDeg', type: 'double' },
+  { id: 'n_roll', for: 'node', name: 'rollDeg', type: 'double' },
   { id: 'e_kind', for: 'edge', name: 'kind', type: 'string' },
   { id: 'e_verdict', for: 'edge', name: 'verdict', type: 'string' },
   { id: 'e_reasons', for: 'edge', name: 'reasons', type: 'string' },
@@ -42,23 +48,29 @@ function data(id: string, v: unknown): string {
 
 /**
  * The pair graph as GraphML (graphml.graphdrawing.org, the GraphML primer): frames as nodes with
- * file and station, pairs as undirected edges from a to b, every measure a declared data key; a
- * missing measure (an unmatched pair) is an absent data element.
+ * file, station and, where the geometry placed it, the station's yaw, pitch and roll (a starting
+ * point for a stitching program's optimiser); pairs as undirected edges from a to b, every measure a
+ * declared data key; a missing measure (an unmatched pair, an unplaced station) is an absent data
+ * element.
  */
 export function reportToGraphml(report: Report): string {
   const ids = new Map(report.frames.map((f, i) => [f.file, `f${i}`]));
   const refs = new Set(report.stations.map((s) => s.reference));
+  const g = report.geometry ?? null;
+  // Every frame of a station points where the station does (brackets share one pose).
+  const pose = new Map(g?.poses.map((p) => [p.station, p]) ?? []);
   const out: string[] = [
     '<?xml version="1.0" encoding="UTF-8"?>',
     '<graphml xmlns="http://graphml.graphdrawing.org/xmlns" xmlns:xsi="http://www.w3.org/2001/XMLSchema-instance" xsi:schemaLocation="http://graphml.graphdrawing.org/xmlns http://graphml.graphdrawing.org/xmlns/1.0/graphml.xsd">',
     ...keys.map((k) => `  <key id="${k.id}" for="${k.for}" attr.name="${k.name}" attr.type="${k.type}"/>`),
     '  <graph id="sequence" edgedefault="undirected">',
-    `    ${data('g_verdict', report.verdict)}${data('g_sweep', report.sweepDeg)}`,
+    `    ${data('g_verdict', report.verdict)}${data('g_sweep', report.sweepDeg)}${data('g_vertical', g?.verticalDeg)}${data('g_focal', g?.focalPx)}${data('g_closes', g?.closure ? g.closure.closes : null)}`,
   ];
   for (const f of report.frames) {
     out.push(
       `    <node id="${ids.get(f.file)}">${data('n_file', f.file)}${data('n_station', f.station)}${data('n_reference', refs.has(f.file))}` +
-        `${data('n_width', f.width)}${data('n_height', f.height)}${data('n_capture', f.captureTime)}${data('n_verdict', f.verdict)}${data('n_flags', f.flags.join(' ') || null)}</node>`,
+        `${data('n_width', f.width)}${data('n_height', f.height)}${data('n_capture', f.captureTime)}${data('n_verdict', f.verdict)}${data('n_flags', f.flags.join(' ') || null)}` +
+        `${data('n_yaw', pose.get(f.station)?.yawDeg)}${data('n_pitch', pose.get(f.station)?.pitchDeg)}${data('n_roll', pose.get(f.station)?.rollDeg)}</node>`,
     );
   }
   report.pairs.forEach((p, i) => {
