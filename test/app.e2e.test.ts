@@ -85,7 +85,7 @@ describe('the app in a real browser', () => {
         expect(['weak', 'reshoot']).toContain(await links.first().getAttribute('data-verdict'));
       } else {
         // Frame problems show on the frame tiles, in words.
-        const words = { blurred: /blurred/i, 'incomplete-bracket': /incomplete/i, 'bracket-drift': /drift|moved/i }[problem.code]!;
+        const words = ({ blurred: /blurred/i, 'incomplete-bracket': /incomplete/i, 'bracket-drift': /drift|moved/i } as Record<string, RegExp>)[problem.code]!;
         const flagged = problem.code === 'bracket-drift' ? problem.frames.slice(0, 1) : problem.frames;
         for (const file of flagged) {
           const tile = page.locator(`[data-frame="${file}"]`);

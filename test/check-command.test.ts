@@ -17,11 +17,14 @@ beforeAll(() => {
 });
 
 describe('seamscout check', () => {
-  it('checks a real pair, exits 0, and writes a report that validates against the schema', async () => {
+  it('checks a real pair, flags its parallax, and writes a report that validates against the schema', async () => {
     const json = join(out, 'report.json');
     const r = await runCli(['check', card, '--json', json, '--threads', '1']);
     expect(r.stderr).not.toMatch(/seamscout:/);
-    expect(r.code).toBe(0);
+    // The leuven pair was photographed from two positions (test/fixtures/external/SOURCES.md): near
+    // and far parts of the street cannot line up under one homography, which is parallax (exit 1).
+    expect(r.code).toBe(1);
+    expect(r.stdout).toMatch(/parallax/);
     expect(r.stdout).toMatch(/leuven.\.jpg -> leuven.\.jpg\s+neighbour/);
     const report = JSON.parse(readFileSync(json, 'utf8'));
     const schema = JSON.parse(readFileSync(join(projectRoot, 'schema/report.schema.json'), 'utf8'));
@@ -57,7 +60,7 @@ describe('seamscout check', () => {
     expect(r.stderr).toMatch(/exists \(use --force to overwrite\)/);
     expect(readFileSync(csv, 'utf8')).toBe('keep me');
     const forced = await runCli(['check', card, '--csv', csv, '--force', '--threads', '0']);
-    expect(forced.code).toBe(0);
+    expect(forced.code).toBe(1);
     expect(readFileSync(csv, 'utf8')).toMatch(/^a,b,kind/);
     expect(existsSync(join(card, 'pairs.csv'))).toBe(false);
   });

@@ -7,7 +7,7 @@ import { cameraModel, rotationHomography } from './camera.js';
 import { overlapRegions } from './overlap.js';
 import { createRandom } from './random.js';
 
-export type DemoProblemCode = 'low-overlap' | 'exposure-jump' | 'blurred' | 'incomplete-bracket' | 'bracket-drift';
+export type DemoProblemCode = 'low-overlap' | 'exposure-jump' | 'blurred' | 'incomplete-bracket' | 'bracket-drift' | 'movement';
 
 export interface DemoPlanOptions {
   /** Camera positions in the sweep. */
@@ -17,6 +17,19 @@ export interface DemoPlanOptions {
   readonly seed: number;
   /** No planted problems. */
   readonly clean: boolean;
+  /**
+   * A figure standing in the overlap of the middle station and the next, in the middle station's
+   * frames only (it walked off before the next was shot): a planted movement problem.
+   */
+  readonly visitor?: boolean;
+}
+
+/** A figure in the scene, as the directions it covers, degrees (yaw as the poses'). */
+export interface Visitor {
+  readonly yawDeg: number;
+  readonly pitchDeg: number;
+  readonly widthDeg: number;
+  readonly heightDeg: number;
 }
 
 export const defaultDemoPlanOptions: DemoPlanOptions = { stations: 12, width: 3000, height: 2000, seed: 1, clean: false };
@@ -66,6 +79,8 @@ export interface PlannedFrame extends Pose {
   readonly blurPx: number;
   /** Seed of this frame's sensor noise. */
   readonly noiseSeed: number;
+  /** A figure in this frame that the next station's frames do not show. */
+  readonly visitor?: Visitor;
 }
 
 export interface PlannedStation {
@@ -257,6 +272,20 @@ export function planDemoShoot(options: Partial<DemoPlanOptions> = {}): DemoPlan 
 
   const problems: PlannedProblem[] = [];
   const ref = (s: number): PlannedFrame => frames.find((f) => f.station === s && f.evBias === 0)!;
+  if (o.visitor && n >= 2) {
+    // Between the middle station and the next (the next but one after the planted gap), in the
+    // lower half of the frames: about 3 degrees wide and 7 tall, a person at some distance.
+    let vs = Math.floor((n - 1) / 2);
+    if (at['low-overlap'] === vs && vs + 2 < n) vs++;
+    const ya = ref(vs).yawDeg, yb = ref(vs + 1).yawDeg;
+    const mid = ya + ((((yb - ya) % 360) + 540) % 360 - 180) / 2;
+    const visitor: Visitor = { yawDeg: round((((mid % 360) + 360) % 360), 6), pitchDeg: -6, widthDeg: 3, heightDeg: 7 };
+    for (let k = 0; k < frames.length; k++) if (frames[k].station === vs) frames[k] = { ...frames[k], visitor };
+    problems.push({
+      code: 'movement', frames: [ref(vs).file, ref(vs + 1).file], stations: [vs, vs + 1],
+      detail: `A figure stands in the overlap of stations ${vs} and ${vs + 1} (yaw ${round(visitor.yawDeg, 1)} degrees, pitch ${visitor.pitchDeg}) in station ${vs}'s frames only: it walked off before station ${vs + 1} was shot.`,
+    });
+  }
   const time = (t: number): string => (t >= 1 ? `${round(t, 2)} s` : `1/${round(1 / t, 1)} s`);
   if (!o.clean) {
     const g = at['low-overlap']!;

@@ -17,6 +17,34 @@ export interface RadianceImage {
   readonly data: Float32Array;
 }
 
+/**
+ * Paints a figure into a radiance image: the directions within its box get a dark coat with light
+ * horizontal bands (texture a matcher can see), over whatever the scene had there.
+ */
+export function paintVisitor(radiance: RadianceImage, camera: CameraModel, pose: Pose, v: { yawDeg: number; pitchDeg: number; widthDeg: number; heightDeg: number }): void {
+  const { width, height, data } = radiance;
+  const r = worldToCamera(pose);
+  const f = focalLengthPx(camera);
+  const cx = (width - 1) / 2, cy = (height - 1) / 2;
+  const deg = 180 / Math.PI;
+  for (let y = 0; y < height; y++) {
+    const vv = (y - cy) / f;
+    for (let x = 0; x < width; x++) {
+      const u = (x - cx) / f;
+      const dx = r[0] * u + r[3] * vv + r[6], dy = r[1] * u + r[4] * vv + r[7], dz = r[2] * u + r[5] * vv + r[8];
+      const yaw = Math.atan2(dx, dz) * deg;
+      const e = Math.atan2(dy, Math.hypot(dx, dz)) * deg;
+      const dyaw = ((((yaw - v.yawDeg) % 360) + 540) % 360) - 180;
+      if (Math.abs(dyaw) > v.widthDeg / 2 || Math.abs(e - v.pitchDeg) > v.heightDeg / 2) continue;
+      const band = Math.sin(((e - v.pitchDeg) / v.heightDeg) * 9 * Math.PI) > 0.3 ? 0.5 : 0.03;
+      const o = 3 * (y * width + x);
+      data[o] = band;
+      data[o + 1] = band * 0.6;
+      data[o + 2] = band * 0.5;
+    }
+  }
+}
+
 /** 8-bit sRGB-encoded RGB, interleaved, row-major: what goes into the JPEG encoder. */
 export interface RgbImage {
   readonly width: number;

@@ -18,6 +18,8 @@ export type FlagCode =
   | 'bracket-drift'
   | 'no-closure'
   | 'coverage-hole'
+  | 'movement'
+  | 'parallax'
   | 'size-mismatch';
 
 export type SkipCode = 'unreadable' | 'too-large' | 'not-an-image' | 'duplicate';
@@ -84,6 +86,13 @@ export interface PairMeasure {
   readonly rmsError: number | null;
   /** Largest displacement of a frame corner under the homography, full-resolution px (bracket pairs). */
   readonly shiftPx: number | null;
+  /**
+   * Regions of a (full-resolution px) whose content b does not repeat where the homography puts
+   * it: something moved between the shots. Absent or null when not measured.
+   */
+  readonly moved?: readonly { readonly x: number; readonly y: number; readonly width: number; readonly height: number }[] | null;
+  /** Share (0..1) of the overlap's textured blocks that do not line up under the homography, even a few pixels off; absent or null when not measured. */
+  readonly misfit?: number | null;
 }
 
 export interface SkippedFile {

@@ -39,8 +39,20 @@ function mode<T>(xs: T[]): T | null {
   return best;
 }
 
+/** Above this share of the overlap not lining up, a pair is flagged for parallax. */
+export const parallaxMisfit = 0.2;
+
+/** "in the lower left" and the like: where a region's middle lies among the frame's thirds. */
+function whereIn(m: { x: number; y: number; width: number; height: number }, size: { width: number; height: number } | null): string {
+  if (!size) return 'in part';
+  const col = Math.min(2, Math.floor((3 * (m.x + m.width / 2)) / size.width));
+  const row = Math.min(2, Math.floor((3 * (m.y + m.height / 2)) / size.height));
+  const v = ['upper', 'middle', 'lower'][row], h = ['left', 'centre', 'right'][col];
+  return row === 1 && col === 1 ? 'in the middle' : row === 1 ? `at the ${h}` : col === 1 ? `in the ${v} middle` : `in the ${v} ${h}`;
+}
+
 /** Judges a pair between stations (neighbour or closure) against the budget. */
-function judgeStationPair(p: PairMeasure, budget: MatchBudget, sweepDeg: number | null, geometry: SequenceGeometry | null): Finding {
+function judgeStationPair(p: PairMeasure, budget: MatchBudget, sweepDeg: number | null, geometry: SequenceGeometry | null, frameSize: (file: string) => { width: number; height: number } | null): Finding {
   const f = new Findings();
   const between = `${p.a} and ${p.b}`;
   if (p.homography === null) {
@@ -62,6 +74,12 @@ function judgeStationPair(p: PairMeasure, budget: MatchBudget, sweepDeg: number 
   else if (overlap < budget.weakOverlap) f.add('low-overlap', 'weak', `overlap is ${pct(overlap)} between ${between}: aim for 30-50 %, or add a frame between them`);
   if (p.inliers < budget.minInliers / 2) f.add('few-inliers', 'reshoot', `only ${p.inliers} matching points between ${between}: add a frame between them`);
   else if (p.inliers < budget.minInliers) f.add('few-inliers', 'weak', `only ${p.inliers} matching points between ${between}: more overlap or more detail in it would help`);
+  if (p.misfit != null && p.misfit > parallaxMisfit) {
+    f.add('parallax', 'weak', `the frames do not line up across ${pct(p.misfit)} of the overlap between ${between}: the camera probably moved off its pivot (turn it about the lens's entrance pupil, common practice); near and far things will not both stitch`);
+  }
+  for (const m of p.moved ?? []) {
+    f.add('movement', 'weak', `something moved between ${between}, ${whereIn(m, frameSize(p.a))} of ${p.a}: a person, a wave or a branch there will ghost or be cut at the seam; reshoot one of them once it has passed`);
+  }
   if (p.evDiff !== null && Math.abs(p.evDiff) > budget.maxEvDiff) {
     const v: Verdict = Math.abs(p.evDiff) > 2 * budget.maxEvDiff ? 'reshoot' : 'weak';
     f.add('exposure-jump', v, `exposure changed by ${signedEv(p.evDiff)} between ${between}: lock exposure and reshoot`);
@@ -156,8 +174,10 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
   }
 
   // Pairs.
+  const sizes = new Map(analysis.frames.map((f) => [f.file, { width: f.width, height: f.height }]));
+  const frameSize = (file: string): { width: number; height: number } | null => sizes.get(file) ?? null;
   const pairs: ReportPair[] = analysis.pairs.map((p) => {
-    if (p.kind === 'neighbour' || p.kind === 'closure') return { ...p, ...judgeStationPair(p, budget, analysis.sweepDeg, analysis.geometry) };
+    if (p.kind === 'neighbour' || p.kind === 'closure') return { ...p, ...judgeStationPair(p, budget, analysis.sweepDeg, analysis.geometry, frameSize) };
     if (p.kind === 'bracket') {
       const f = new Findings();
       if (p.homography === null) {

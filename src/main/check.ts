@@ -455,6 +455,8 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
           evDiff: r.evDiff,
           rmsError: r.rmsError === null ? null : r.rmsError * scale,
           shiftPx: h && kind === 'bracket' ? cornerShift(h, sa.fullWidth, sa.fullHeight) : null,
+          moved: r.moved?.map((m) => ({ x: m.x * scale, y: m.y * scale, width: m.width * scale, height: m.height * scale })) ?? null,
+          misfit: r.misfit,
         };
       });
       const inStations = stations.flatMap((s) => s.members).sort((p, q) => p - q);

@@ -5,6 +5,8 @@ import type { Homography } from '../core/homography.js';
 import { project, transferErrors } from '../core/homography.js';
 import { isPlausible } from '../core/homography-estimator.js';
 import { refineHomography } from '../core/homography-refine.js';
+import type { MovedRegion } from '../core/movement.js';
+import { findMovement } from '../core/movement.js';
 import { overlapRegions } from '../core/overlap.js';
 import type { RefinedPoints } from '../core/tie-point-refine.js';
 import { refineTiePoints } from '../core/tie-point-refine.js';
@@ -38,6 +40,10 @@ export interface PairAnalysis {
   readonly evDiff: number | null;
   /** Inlier correspondences xa, ya, xb, yb in analysis pixels. */
   readonly tiePoints: Float32Array;
+  /** Regions of a whose content b does not repeat where the model puts it, analysis pixels (null without a model). */
+  readonly moved: MovedRegion[] | null;
+  /** Share of the overlap's textured blocks that do not line up (null without a model or with too few blocks). */
+  readonly misfit: number | null;
   readonly noModel: string | null;
 }
 
@@ -95,6 +101,9 @@ function fitTiePoints(start: Homography, ax: Float64Array, ay: Float64Array, ref
   return { h, rms, count: keep.length, points };
 }
 
+/** Fewest compared blocks for the share that does not line up to mean anything. */
+const minMisfitBlocks = 40;
+
 /** Most tie points refined per pair. */
 export const refinedTiePoints = 300;
 
@@ -120,6 +129,8 @@ export function analysePair(a: FrameAnalysis, b: FrameAnalysis, options: PairOpt
     g = estimatePairGeometry(fa, fb);
   }
   let evDiff: number | null = null;
+  let moved: MovedRegion[] | null = null;
+  let misfit: number | null = null;
   let tie: Float32Array = new Float32Array(0);
   let homography: Homography | null = g.homography;
   let overlap = g.overlap;
@@ -153,6 +164,9 @@ export function analysePair(a: FrameAnalysis, b: FrameAnalysis, options: PairOpt
       idx.forEach((i, k) => tie.set([ka.x[g.matches.a[i]], ka.y[g.matches.a[i]], kb.x[g.matches.b[i]], kb.y[g.matches.b[i]]], 4 * k));
     }
     evDiff = exposureDifference(a.image, b.image, homography!, { step: 4 })?.ev ?? null;
+    const m = findMovement(a.image, b.image, homography!);
+    moved = m.regions;
+    misfit = m.blocks >= minMisfitBlocks ? m.misfit : null;
   }
   return {
     matches: g.matches.count,
@@ -163,6 +177,8 @@ export function analysePair(a: FrameAnalysis, b: FrameAnalysis, options: PairOpt
     rmsError,
     evDiff,
     tiePoints: tie,
+    moved,
+    misfit,
     noModel: g.noModel,
   };
 }

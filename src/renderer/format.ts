@@ -57,6 +57,8 @@ export const flagMeaning: Record<FlagCode, string> = {
   'bracket-drift': 'the camera moved between frames of the bracket',
   'no-closure': 'the last station does not line up with the first',
   'coverage-hole': 'part of the view around the camera is in no frame',
+  movement: 'something in the overlap moved between the two shots',
+  parallax: 'near and far things do not line up together: the camera moved, not only turned',
   'size-mismatch': 'the frame has another size than the rest of the sequence',
 };
 
