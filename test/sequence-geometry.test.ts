@@ -120,3 +120,39 @@ describe('the same turn without its last station', () => {
     }
   }, 240_000);
 });
+
+describe('a set shot in two rows', () => {
+  const options = { clean: true, width: 1200, height: 800, seed: 9, stations: 12, rows: [-12, 8] } as const;
+
+  it('is seen as two rows of twelve, with nothing flagged: the step between rows is no neighbour pair', async () => {
+    const demo = await writeDemoShoot(join(tempDir(), 'rows'), options);
+    const report = judge((await runCheck(demo.folder, { pool, allPairs: true })).analysis, defaultBudget);
+    const g = report.geometry!;
+    expect(g.rows.map((r) => r.stations.length)).toEqual([12, 12]);
+    expect(Math.abs(g.rows[0].pitchDeg - -12)).toBeLessThan(1.5);
+    expect(Math.abs(g.rows[1].pitchDeg - 8)).toBeLessThan(1.5);
+    expectPoses(report, demo.truth);
+    expect(report.holes).toEqual([]);
+    expect(report.pairs.filter((p) => p.reasons.length).map((p) => `${p.a}->${p.b} ${p.kind}: ${p.reasons}`)).toEqual([]);
+    // Each row comes round on its own closure pair.
+    expect(report.pairs.filter((p) => p.kind === 'closure')).toHaveLength(2);
+  }, 240_000);
+
+  it('finds the hole one missing frame of the upper row leaves, where it is', async () => {
+    const demo = await writeDemoShoot(join(tempDir(), 'rows-hole'), options);
+    const gone = demo.truth.stations[20];
+    for (const f of gone.frames) rmSync(join(demo.folder, f));
+    const report = judge((await runCheck(demo.folder, { pool, allPairs: true })).analysis, defaultBudget);
+    const holes = report.holes ?? [];
+    expect(holes).toHaveLength(1);
+    const yaw0 = reference(demo.truth, 0).yawDeg;
+    const missing = reference(demo.truth, 20);
+    console.log(`two rows, one frame missing: ${holes[0].advice} (the frame was aimed at yaw ${wrap(missing.yawDeg - yaw0).toFixed(1)}, pitch ${missing.pitchDeg.toFixed(1)})`);
+    expect(Math.abs(wrap(holes[0].yawDeg - (missing.yawDeg - yaw0)))).toBeLessThan(3);
+    // Within the missing frame's height (the lower row covers its lower part).
+    expect(holes[0].pitchDeg).toBeGreaterThan(missing.pitchDeg - 19);
+    expect(holes[0].pitchDeg).toBeLessThan(missing.pitchDeg + 19);
+    expect(holes[0].verdict).toBe('reshoot');
+    expect(report.verdict).toBe('reshoot');
+  }, 240_000);
+});

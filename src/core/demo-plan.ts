@@ -22,6 +22,11 @@ export interface DemoPlanOptions {
    * frames only (it walked off before the next was shot): a planted movement problem.
    */
   readonly visitor?: boolean;
+  /**
+   * Pitch of each row in degrees, lowest first, for a set shot in rows: `stations` stations in each
+   * row, a full turn per row, shot row after row (clean sets only). Default: one row at the horizon.
+   */
+  readonly rows?: readonly number[];
 }
 
 /** A figure in the scene, as the directions it covers, degrees (yaw as the poses'). */
@@ -110,6 +115,8 @@ export interface DemoCamera {
 export interface DemoPlan {
   readonly seed: number;
   readonly clean: boolean;
+  /** Rows of stations (1 for a single sweep); stations are numbered row after row. */
+  readonly rows: number;
   /** True when the sweep's steps add up to 360 degrees (the last station overlaps the first). */
   readonly fullTurn: boolean;
   readonly camera: DemoCamera;
@@ -128,6 +135,10 @@ export function expectDemoPlanOptions(o: DemoPlanOptions): void {
   if (o.width * o.height > demoMaxPixels) throw new RangeError(`Expected at most ${demoMaxPixels} pixels for size but received ${o.width}x${o.height}`);
   whole(o.seed, 0, 0xffffffff, 'seed');
   whole(o.stations, o.clean ? 2 : demoMinStationsWithProblems, demoMaxStations, o.clean ? 'stations' : 'stations (with planted problems)');
+  const rows = o.rows ?? [0];
+  if (rows.length === 0 || rows.some((p) => !(Math.abs(p) <= 80))) throw new RangeError(`Expected one or more row pitches between -80 and 80 degrees for rows but received ${JSON.stringify(o.rows)}`);
+  if (rows.length > 1 && !o.clean) throw new RangeError('Expected clean: true for a set shot in rows but received clean: false');
+  if (rows.length * o.stations > demoMaxStations) throw new RangeError(`Expected at most ${demoMaxStations} stations in all rows but received ${rows.length * o.stations}`);
 }
 
 /** The camera model of a demo shoot of this size. */
@@ -226,15 +237,18 @@ export function planDemoShoot(options: Partial<DemoPlanOptions> = {}): DemoPlan 
   let yaw = startYaw;
   let stationMs = startMs;
   const blurPx = Math.max(2, Math.round((blurPxAt3000 * o.width) / 3000));
-  for (let s = 0; s < n; s++) {
+  const rowPitches = o.rows ?? [0];
+  for (let s = 0; s < n * rowPitches.length; s++) {
+    const inRow = s % n;
     if (s > 0) {
-      yaw += steps[s - 1];
+      // Each row turns once round from the same start.
+      yaw = inRow === 0 ? startYaw : yaw + steps[inRow - 1];
       stationMs += stationIntervalMs + Math.round(1200 * (rnd.next() - 0.5));
     }
     // A levelled head, nudged: yaw within a third of a degree, pitch and roll under a degree.
     const pose: Pose = {
       yawDeg: yaw + 0.6 * (rnd.next() - 0.5),
-      pitchDeg: Math.max(-0.9, Math.min(0.9, 0.35 * rnd.normal())),
+      pitchDeg: rowPitches[Math.floor(s / n)] + Math.max(-0.9, Math.min(0.9, 0.35 * rnd.normal())),
       rollDeg: Math.max(-0.9, Math.min(0.9, 0.3 * rnd.normal())),
     };
     const jump = at['exposure-jump'] === s ? jumpEv : 0;
@@ -323,6 +337,7 @@ export function planDemoShoot(options: Partial<DemoPlanOptions> = {}): DemoPlan 
   return {
     seed: o.seed,
     clean: o.clean,
+    rows: rowPitches.length,
     fullTurn,
     camera: {
       make: demoMake, model: demoModel, sensorWidthMm: camera.sensorWidthMm, sensorHeightMm: camera.sensorHeightMm,

@@ -44,9 +44,11 @@ export interface DemoTruth {
 }
 
 function pairKind(plan: DemoPlan, a: PlannedFrame, b: PlannedFrame): DemoPairKind {
-  const n = plan.stations.length;
   if (a.station === b.station) return 'bracket';
-  const lo = Math.min(a.station, b.station), hi = Math.max(a.station, b.station);
+  // In a set of rows, neighbours and the closure are counted within each row.
+  const n = plan.stations.length / plan.rows;
+  if (Math.floor(a.station / n) !== Math.floor(b.station / n)) return 'other';
+  const lo = Math.min(a.station, b.station) % n, hi = Math.max(a.station, b.station) % n;
   if (hi - lo === 1) return 'neighbour';
   if (plan.fullTurn && lo === 0 && hi === n - 1) return 'closure';
   return 'other';

@@ -55,7 +55,7 @@ export function sequenceGeometry(input: GeometryInput): SequenceGeometry | null 
   const hfov = placed.map(({ s }) => fieldOfViewDeg(input.sizes[s].width, refined.focalPx));
   const vfov = placed.map(({ s }) => fieldOfViewDeg(input.sizes[s].height, refined.focalPx));
   const horizon = circleCoverage(placed.map(({ p }) => p!.yawDeg), hfov);
-  // Rows: stations whose pitches lie within half a frame's height of the next.
+  // Rows: stations whose pitches lie within a quarter of a frame's height (at least 5 degrees) of the next.
   const byPitch = placed.map(({ p, s }, k) => ({ s, pitch: p!.pitchDeg, v: vfov[k] })).sort((a, b) => a.pitch - b.pitch);
   const rows: { pitchDeg: number; stations: number[] }[] = [];
   let current: typeof byPitch = [];
@@ -64,7 +64,7 @@ export function sequenceGeometry(input: GeometryInput): SequenceGeometry | null 
     current = [];
   };
   for (const x of byPitch) {
-    if (current.length && x.pitch - current[current.length - 1].pitch > 0.5 * x.v) close();
+    if (current.length && x.pitch - current[current.length - 1].pitch > Math.max(5, 0.25 * x.v)) close();
     current.push(x);
   }
   close();

@@ -8,6 +8,8 @@ import { analysisToFull } from '../core/resolution.js';
 import type { StationGroup } from '../core/stations.js';
 import { groupStations } from '../core/stations.js';
 import type { RotationLink } from '../core/rotations.js';
+import { bracketShift } from '../core/bracket-shift.js';
+import { circleCoverage, fieldOfViewDeg } from '../core/coverage.js';
 import { sequenceGeometry } from '../core/sequence-geometry.js';
 import { focalPxFrom35mm } from '../core/sweep.js';
 import type { AnalysisPool } from './analysis-pool.js';
@@ -153,7 +155,8 @@ interface Frame {
 interface PlannedPair {
   readonly i: number;
   readonly j: number;
-  readonly kind: PairKind;
+  /** Changed once the geometry shows rows: a step between rows is not a neighbour pair. */
+  kind: PairKind;
 }
 
 interface Station {
@@ -393,8 +396,38 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
       await Promise.all(chosen.map(([i, j]) => analysePair(i, j, false)));
     }
     const closurePair = planned.find((p) => p.kind === 'closure') ?? null;
-    const geometry = geometryOf(planned.filter((p) => p.kind === 'neighbour' || p.kind === 'other'), closurePair);
+    let geometry = geometryOf(planned.filter((p) => p.kind === 'neighbour' || p.kind === 'other'), closurePair);
+    if (geometry && geometry.rows.length >= 2) geometry = await byRows(geometry);
     return assemble(geometry);
+
+    /**
+     * A set shot in rows: the step from one row to the next is no neighbour pair (it is judged by
+     * coverage instead), and each row that comes most of the way round gets its own closure pair,
+     * its last station to its first; the turn-wide closure pair no longer applies.
+     */
+    async function byRows(g: SequenceGeometry): Promise<SequenceGeometry | null> {
+      const rowOf = new Int32Array(stations.length).fill(-1);
+      g.rows.forEach((r, k) => r.stations.forEach((s) => (rowOf[s] = k)));
+      for (const p of planned) {
+        const a = rowOf[stationOf[p.i]], b = rowOf[stationOf[p.j]];
+        if ((p.kind === 'neighbour' || p.kind === 'closure') && a !== b) p.kind = 'other';
+      }
+      const hfov = (s: number): number => fieldOfViewDeg(frames[stations[s].reference]!.summary.fullWidth, g.focalPx);
+      const yawOf = new Map(g.poses.map((p) => [p.station, p.yawDeg]));
+      for (const r of g.rows) {
+        if (r.stations.length < 3) continue;
+        const covered = circleCoverage(r.stations.map((s) => yawOf.get(s)!), r.stations.map(hfov)).coveredDeg;
+        if (covered < nearFullTurnDeg) continue;
+        const i = stations[r.stations[r.stations.length - 1]].reference, j = stations[r.stations[0]].reference;
+        const known = planned.find((p) => (p.i === i && p.j === j) || (p.i === j && p.j === i));
+        if (known) known.kind = 'closure';
+        else {
+          await analysePair(i, j);
+          if (pairResults.get(`${i}:${j}`)!.homography || covered >= closingTurnDeg) planned.push({ i, j, kind: 'closure' });
+        }
+      }
+      return geometryOf(planned.filter((p) => p.kind !== 'bracket'), null);
+    }
 
     /** Full-resolution homography and tie points of a measured pair, or null without a model. */
     function fullPair(i: number, j: number): { h: Float64Array; scale: number; points: Float64Array } | null {
@@ -434,6 +467,12 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
     /** The measurements so far: frames of finalised stations, the stations, the pairs measured yet. */
     function assemble(geometry: SequenceGeometry | null): CheckResult {
       const name = (k: number): string => frames[k]!.file.name;
+      // Focal length of a frame in full-resolution pixels: the sequence's, else its EXIF's.
+      const focalOf = (k: number): number | null => {
+        if (geometry) return geometry.focalPx;
+        const f35 = frames[k]!.exif.settings.focalLength35, sm = frames[k]!.summary;
+        return f35 ? focalPxFrom35mm(f35, sm.fullWidth, sm.fullHeight) : null;
+      };
       const tiePoints: TiePointSet[] = [];
       const measured = planned.filter(({ i, j }) => pairResults.has(`${i}:${j}`));
       const pairs: PairMeasure[] = measured.map(({ i, j, kind }) => {
@@ -454,7 +493,7 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
           homography: h ? Array.from(h) : null,
           evDiff: r.evDiff,
           rmsError: r.rmsError === null ? null : r.rmsError * scale,
-          shiftPx: h && kind === 'bracket' ? cornerShift(h, sa.fullWidth, sa.fullHeight) : null,
+          shiftPx: full && kind === 'bracket' ? (bracketShift(full.points, sa.fullWidth, sa.fullHeight, focalOf(i) ?? NaN) ?? cornerShift(full.h, sa.fullWidth, sa.fullHeight)) : null,
           moved: r.moved?.map((m) => ({ x: m.x * scale, y: m.y * scale, width: m.width * scale, height: m.height * scale })) ?? null,
           misfit: r.misfit,
         };
