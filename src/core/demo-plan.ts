@@ -3,7 +3,8 @@
  * time, and the problems planted in it. Pure and deterministic from its options.
  */
 import type { CameraModel, Pose } from './camera.js';
-import { cameraModel, rotationHomography } from './camera.js';
+import { cameraModel, rotationHomography, worldToCamera } from './camera.js';
+import type { NearPost } from './render.js';
 import { overlapRegions } from './overlap.js';
 import { createRandom } from './random.js';
 
@@ -27,6 +28,13 @@ export interface DemoPlanOptions {
    * row, a full turn per row, shot row after row (clean sets only). Default: one row at the horizon.
    */
   readonly rows?: readonly number[];
+  /** Ten striped posts 3 m from the camera: near things among the far scene. */
+  readonly posts?: boolean;
+  /**
+   * How far in front of the pivot the lens's entrance pupil sits, metres (0: the camera turns about
+   * its centre). Off centre, the posts shift against the distant scene between stations: parallax.
+   */
+  readonly pivotOffsetM?: number;
 }
 
 /** A figure in the scene, as the directions it covers, degrees (yaw as the poses'). */
@@ -86,6 +94,8 @@ export interface PlannedFrame extends Pose {
   readonly noiseSeed: number;
   /** A figure in this frame that the next station's frames do not show. */
   readonly visitor?: Visitor;
+  /** Where the camera's centre is, metres, when it is off the pivot (world frame, y up). */
+  readonly centre?: readonly [number, number, number];
 }
 
 export interface PlannedStation {
@@ -115,6 +125,8 @@ export interface DemoCamera {
 export interface DemoPlan {
   readonly seed: number;
   readonly clean: boolean;
+  /** Near posts in the scene (none unless asked for). */
+  readonly posts: readonly NearPost[];
   /** Rows of stations (1 for a single sweep); stations are numbered row after row. */
   readonly rows: number;
   /** True when the sweep's steps add up to 360 degrees (the last station overlaps the first). */
@@ -334,9 +346,21 @@ export function planDemoShoot(options: Partial<DemoPlanOptions> = {}): DemoPlan 
     });
   }
 
+  const posts: NearPost[] = o.posts ? Array.from({ length: 10 }, (_, k) => {
+    const a = ((36 * k + 11) * Math.PI) / 180;
+    return { x: 3 * Math.sin(a), z: 3 * Math.cos(a), radius: 0.06, bottom: -1.6, top: 0.5 };
+  }) : [];
+  const offset = o.pivotOffsetM ?? 0;
+  if (offset !== 0)
+    for (let k = 0; k < frames.length; k++) {
+      // The entrance pupil sits `offset` along the optical axis from the pivot.
+      const w = worldToCamera(frames[k]);
+      frames[k] = { ...frames[k], centre: [offset * w[6], offset * w[7], offset * w[8]] };
+    }
   return {
     seed: o.seed,
     clean: o.clean,
+    posts,
     rows: rowPitches.length,
     fullTurn,
     camera: {

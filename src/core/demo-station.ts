@@ -6,7 +6,8 @@ import type { Pose } from './camera.js';
 import type { DemoPlan, PlannedFrame, Visitor } from './demo-plan.js';
 import { demoCameraModel } from './demo-plan.js';
 import type { RgbImage } from './render.js';
-import { exposeFrame, paintVisitor, renderRadiance } from './render.js';
+import type { NearPost } from './render.js';
+import { exposeFrame, paintPosts, paintVisitor, renderRadiance } from './render.js';
 import type { SceneView } from './scene-radiance.js';
 
 /** One radiance render and the exposures taken from it. */
@@ -14,6 +15,9 @@ export interface RenderJob {
   readonly pose: Pose;
   /** A figure in this pose's view (one station's frames), or null. */
   readonly visitor: Visitor | null;
+  /** Near posts, and where the camera's centre is (the origin unless off its pivot). */
+  readonly posts: readonly NearPost[];
+  readonly centre: readonly [number, number, number];
   readonly frames: readonly JobFrame[];
 }
 
@@ -26,13 +30,13 @@ export interface JobFrame {
 
 /** The plan's frames grouped by identical pose, in shooting order of each group's first frame. */
 export function renderJobs(plan: DemoPlan, only?: ReadonlySet<string>): RenderJob[] {
-  const jobs = new Map<string, { pose: Pose; visitor: Visitor | null; frames: JobFrame[] }>();
+  const jobs = new Map<string, RenderJob & { frames: JobFrame[] }>();
   for (const f of plan.frames) {
     if (only && !only.has(f.file)) continue;
     const key = `${f.station}:${f.yawDeg}:${f.pitchDeg}:${f.rollDeg}`;
     let job = jobs.get(key);
     if (!job) {
-      job = { pose: { yawDeg: f.yawDeg, pitchDeg: f.pitchDeg, rollDeg: f.rollDeg }, visitor: f.visitor ?? null, frames: [] };
+      job = { pose: { yawDeg: f.yawDeg, pitchDeg: f.pitchDeg, rollDeg: f.rollDeg }, visitor: f.visitor ?? null, posts: plan.posts, centre: f.centre ?? [0, 0, 0], frames: [] };
       jobs.set(key, job);
     }
     job.frames.push(jobFrame(f));
@@ -51,6 +55,7 @@ function jobFrame(f: PlannedFrame): JobFrame {
 export function renderJob(view: SceneView, width: number, height: number, job: RenderJob, scratch?: Float32Array): RgbImage[] {
   const camera = demoCameraModel(width, height);
   const radiance = renderRadiance(view, camera, job.pose, {}, scratch);
+  if (job.posts.length) paintPosts(radiance, camera, job.pose, job.posts, job.centre);
   if (job.visitor) paintVisitor(radiance, camera, job.pose, job.visitor);
   return job.frames.map((f) => exposeFrame(radiance, { ev: f.exposureOffsetEv, blurPx: f.blurPx, noiseSeed: f.noiseSeed }));
 }

@@ -30,26 +30,42 @@ export interface MovementParams {
    * pixels): a few pixels of misfit (lens distortion, a little parallax) are not movement.
    */
   readonly search: number;
+  /** How far a differing block is looked for before it counts as gone, px. */
+  readonly displacedSearch: number;
+  /** Correlation at which a differing block counts as found, displaced. */
+  readonly displacedCorrelation: number;
+  /** Fewest blocks displaced by one common shift that make parallax. */
+  readonly minDisplaced: number;
 }
 
-export const defaultMovementParams: MovementParams = { block: 16, minCorrelation: 0.4, flatSd: 3, texturedSd: 8, minBlocks: 3, search: 3 };
+export const defaultMovementParams: MovementParams = { block: 16, minCorrelation: 0.4, flatSd: 3, texturedSd: 8, minBlocks: 3, search: 3, displacedSearch: 36, displacedCorrelation: 0.75, minDisplaced: 6 };
 
 export interface Movement {
   /** Blocks compared (textured in at least one frame, inside both). */
   readonly blocks: number;
   /** Blocks that differ. */
   readonly differing: number;
-  /** Connected differing blocks, when they are few: something moved there. */
+  /** Of those, blocks found in b farther off the model's position, by one common shift: parallax, not movement. */
+  readonly displaced: number;
+  /** Connected differing blocks not found displaced, when they are few: something moved there. */
   readonly regions: MovedRegion[];
   /**
    * Share of the compared blocks that differ. A large share is not movement but frames that do
    * not line up across the overlap (parallax, or a model that fits one plane only).
    */
   readonly misfit: number;
+  /**
+   * Near and far things do not line up together: many blocks displaced by one common shift, a
+   * large share of the overlap off, or what differs scattered over many separate places. No
+   * moved regions are named then: they cannot be told from parallax.
+   */
+  readonly parallax: boolean;
 }
 
-/** Above this share of differing blocks the overlap as a whole does not line up: no regions are named. */
-export const maxMovementShare = 0.15;
+/** Above this share of differing blocks the overlap as a whole does not line up. */
+export const parallaxMisfit = 0.2;
+/** More separate differing places than this are misalignment scattered over the overlap, not things that moved. */
+export const maxMovedRegions = 5;
 
 function bilinear(img: GrayImage, x: number, y: number): number {
   const x0 = Math.floor(x), y0 = Math.floor(y);
@@ -67,7 +83,8 @@ export function findMovement(a: GrayImage, b: GrayImage, h: ArrayLike<number>, p
   const cols = Math.floor(a.width / s), rows = Math.floor(a.height / s);
   const differs = new Uint8Array(cols * rows);
   const va = new Float64Array(s * s), vb = new Float64Array(s * s);
-  let blocks = 0, differing = 0;
+  let blocks = 0, differing = 0, displaced = 0;
+  const shifts: { k: number; dx: number; dy: number }[] = [];
   const n = s * s;
   const bx = new Float64Array(n), by = new Float64Array(n);
   // Correlation of a's block (in va) with b sampled at the mapped positions shifted by (dx, dy);
@@ -127,10 +144,44 @@ export function findMovement(a: GrayImage, b: GrayImage, h: ArrayLike<number>, p
           for (let dx = -p.search; dx <= p.search && unlike; dx++) if ((dx || dy) && compare(dx, dy, ma, saa) >= p.minCorrelation) unlike = false;
       }
       if (unlike) {
-        differs[r * cols + c] = 1;
         differing++;
+        // Is it there in b, only farther off (parallax: near things shift against far ones), or
+        // gone (movement)? Searched coarsely over +/- displacedSearch px, then around the best.
+        if (sda >= p.texturedSd && sdb >= p.flatSd) {
+          let best = -1, bdx = 0, bdy = 0;
+          const D = p.displacedSearch;
+          for (let dy = -D; dy <= D; dy += 3)
+            for (let dx = -D; dx <= D; dx += 3) {
+              const z = compare(dx, dy, ma, saa);
+              if (z > best) [best, bdx, bdy] = [z, dx, dy];
+            }
+          for (let dy = bdy - 2; dy <= bdy + 2 && best < p.displacedCorrelation; dy++)
+            for (let dx = bdx - 2; dx <= bdx + 2; dx++) best = Math.max(best, compare(dx, dy, ma, saa) || -1);
+          if (best >= p.displacedCorrelation) shifts.push({ k: r * cols + c, dx: bdx, dy: bdy });
+        }
+        differs[r * cols + c] = 1;
       }
     }
+
+  // Parallax shifts near things together: blocks found displaced by about one common shift (the
+  // most frequent, on a 4 px grid) count as displaced, once there are several of them and they
+  // make up a good part of the blocks found anywhere; a block found at some chance shift of its own
+  // (smooth or repetitive texture matches somewhere) stays among the moved.
+  const bins = new Map<string, { n: number; dx: number; dy: number }>();
+  for (const sh of shifts) {
+    const key = `${Math.round(sh.dx / 4)},${Math.round(sh.dy / 4)}`;
+    const b0 = bins.get(key) ?? { n: 0, dx: 0, dy: 0 };
+    bins.set(key, { n: b0.n + 1, dx: b0.dx + sh.dx, dy: b0.dy + sh.dy });
+  }
+  const top = [...bins.values()].sort((x, y) => y.n - x.n)[0];
+  if (top) {
+    const mx = top.dx / top.n, my = top.dy / top.n;
+    const coherent = shifts.filter((sh) => Math.hypot(sh.dx - mx, sh.dy - my) <= 4);
+    if (coherent.length >= Math.max(p.minDisplaced, 0.3 * shifts.length)) {
+      displaced = coherent.length;
+      for (const sh of coherent) differs[sh.k] = 0;
+    }
+  }
 
   // Connected differing blocks (4-neighbours) of at least minBlocks make a region.
   const seen = new Uint8Array(cols * rows);
@@ -161,5 +212,6 @@ export function findMovement(a: GrayImage, b: GrayImage, h: ArrayLike<number>, p
     if (count >= p.minBlocks) regions.push({ x: c0 * s, y: r0 * s, width: (c1 - c0 + 1) * s, height: (r1 - r0 + 1) * s });
   }
   const misfit = blocks > 0 ? differing / blocks : 0;
-  return { blocks, differing, regions: misfit <= maxMovementShare ? regions : [], misfit };
+  const parallax = displaced > 0 || misfit > parallaxMisfit || regions.length > maxMovedRegions;
+  return { blocks, differing, displaced, regions: parallax ? [] : regions, misfit, parallax };
 }

@@ -45,6 +45,59 @@ export function paintVisitor(radiance: RadianceImage, camera: CameraModel, pose:
   }
 }
 
+/** A vertical post near the camera (metres; world frame: y up, z forward at yaw 0, x right). */
+export interface NearPost {
+  readonly x: number;
+  readonly z: number;
+  readonly radius: number;
+  readonly bottom: number;
+  readonly top: number;
+}
+
+/**
+ * Paints near posts into a radiance image seen from `centre` (metres): each pixel's ray is cut with
+ * every post's cylinder, and the nearest hit shades the post, striped along its height, times the
+ * same cos^4 vignetting as the scene. A camera whose centre is off its pivot sees the posts shift
+ * against the distant scene from one station to the next: parallax.
+ */
+export function paintPosts(radiance: RadianceImage, camera: CameraModel, pose: Pose, posts: readonly NearPost[], centre: readonly [number, number, number]): void {
+  const { width, height, data } = radiance;
+  const r = worldToCamera(pose);
+  const f = focalLengthPx(camera);
+  const cx = (width - 1) / 2, cy = (height - 1) / 2;
+  const [ox, oy, oz] = centre;
+  for (let y = 0; y < height; y++) {
+    const v = (y - cy) / f;
+    for (let x = 0; x < width; x++) {
+      const u = (x - cx) / f;
+      const dx = r[0] * u + r[3] * v + r[6], dy = r[1] * u + r[4] * v + r[7], dz = r[2] * u + r[5] * v + r[8];
+      let best = Infinity, hitY = 0, hitA = 0;
+      for (const p of posts) {
+        // |(o + t d) - p| = radius in the horizontal plane.
+        const qx = ox - p.x, qz = oz - p.z;
+        const a = dx * dx + dz * dz, b = 2 * (qx * dx + qz * dz), c = qx * qx + qz * qz - p.radius * p.radius;
+        const disc = b * b - 4 * a * c;
+        if (disc < 0 || a === 0) continue;
+        const t = (-b - Math.sqrt(disc)) / (2 * a);
+        if (!(t > 0) || t >= best) continue;
+        const hy = oy + t * dy;
+        if (hy < p.bottom || hy > p.top) continue;
+        best = t;
+        hitY = hy;
+        hitA = Math.atan2(qx + t * dx, qz + t * dz);
+      }
+      if (best === Infinity) continue;
+      const band = Math.sin(hitY * 2 * Math.PI / 0.14) > 0 ? 0.55 : 0.06;
+      const shade = band * (0.8 + 0.2 * Math.cos(hitA));
+      const q = 1 / (1 + u * u + v * v);
+      const o = 3 * (y * width + x);
+      data[o] = shade * q * q;
+      data[o + 1] = 0.85 * shade * q * q;
+      data[o + 2] = 0.6 * shade * q * q;
+    }
+  }
+}
+
 /** 8-bit sRGB-encoded RGB, interleaved, row-major: what goes into the JPEG encoder. */
 export interface RgbImage {
   readonly width: number;

@@ -93,6 +93,8 @@ export interface PairMeasure {
   readonly moved?: readonly { readonly x: number; readonly y: number; readonly width: number; readonly height: number }[] | null;
   /** Share (0..1) of the overlap's textured blocks that do not line up under the homography, even a few pixels off; absent or null when not measured. */
   readonly misfit?: number | null;
+  /** Near and far things do not line up together (parallax): absent or null when not measured. */
+  readonly parallax?: boolean | null;
 }
 
 export interface SkippedFile {

@@ -39,8 +39,6 @@ function mode<T>(xs: T[]): T | null {
   return best;
 }
 
-/** Above this share of the overlap not lining up, a pair is flagged for parallax. */
-export const parallaxMisfit = 0.2;
 
 /** "in the lower left" and the like: where a region's middle lies among the frame's thirds. */
 function whereIn(m: { x: number; y: number; width: number; height: number }, size: { width: number; height: number } | null): string {
@@ -74,8 +72,8 @@ function judgeStationPair(p: PairMeasure, budget: MatchBudget, sweepDeg: number 
   else if (overlap < budget.weakOverlap) f.add('low-overlap', 'weak', `overlap is ${pct(overlap)} between ${between}: aim for 30-50 %, or add a frame between them`);
   if (p.inliers < budget.minInliers / 2) f.add('few-inliers', 'reshoot', `only ${p.inliers} matching points between ${between}: add a frame between them`);
   else if (p.inliers < budget.minInliers) f.add('few-inliers', 'weak', `only ${p.inliers} matching points between ${between}: more overlap or more detail in it would help`);
-  if (p.misfit != null && p.misfit > parallaxMisfit) {
-    f.add('parallax', 'weak', `the frames do not line up across ${pct(p.misfit)} of the overlap between ${between}: the camera probably moved off its pivot (turn it about the lens's entrance pupil, common practice); near and far things will not both stitch`);
+  if (p.parallax) {
+    f.add('parallax', 'weak', `near and far things do not line up together in the overlap between ${between} (${pct(p.misfit ?? 0)} of it off): the camera moved off its pivot; turn it about the lens's entrance pupil (common practice) and reshoot if the seam crosses near things`);
   }
   for (const m of p.moved ?? []) {
     f.add('movement', 'weak', `something moved between ${between}, ${whereIn(m, frameSize(p.a))} of ${p.a}: a person, a wave or a branch there will ghost or be cut at the seam; reshoot one of them once it has passed`);

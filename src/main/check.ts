@@ -496,6 +496,7 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
           shiftPx: full && kind === 'bracket' ? (bracketShift(full.points, sa.fullWidth, sa.fullHeight, focalOf(i) ?? NaN) ?? cornerShift(full.h, sa.fullWidth, sa.fullHeight)) : null,
           moved: r.moved?.map((m) => ({ x: m.x * scale, y: m.y * scale, width: m.width * scale, height: m.height * scale })) ?? null,
           misfit: r.misfit,
+          parallax: r.parallax,
         };
       });
       const inStations = stations.flatMap((s) => s.members).sort((p, q) => p - q);

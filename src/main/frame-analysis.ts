@@ -44,6 +44,8 @@ export interface PairAnalysis {
   readonly moved: MovedRegion[] | null;
   /** Share of the overlap's textured blocks that do not line up (null without a model or with too few blocks). */
   readonly misfit: number | null;
+  /** Near and far things do not line up together (see core/movement.ts); null as misfit. */
+  readonly parallax: boolean | null;
   readonly noModel: string | null;
 }
 
@@ -131,6 +133,7 @@ export function analysePair(a: FrameAnalysis, b: FrameAnalysis, options: PairOpt
   let evDiff: number | null = null;
   let moved: MovedRegion[] | null = null;
   let misfit: number | null = null;
+  let parallax: boolean | null = null;
   let tie: Float32Array = new Float32Array(0);
   let homography: Homography | null = g.homography;
   let overlap = g.overlap;
@@ -167,6 +170,7 @@ export function analysePair(a: FrameAnalysis, b: FrameAnalysis, options: PairOpt
     const m = findMovement(a.image, b.image, homography!);
     moved = m.regions;
     misfit = m.blocks >= minMisfitBlocks ? m.misfit : null;
+    parallax = m.blocks >= minMisfitBlocks ? m.parallax : null;
   }
   return {
     matches: g.matches.count,
@@ -179,6 +183,7 @@ export function analysePair(a: FrameAnalysis, b: FrameAnalysis, options: PairOpt
     tiePoints: tie,
     moved,
     misfit,
+    parallax,
     noModel: g.noModel,
   };
 }
