@@ -4,7 +4,7 @@ import type { AnalysisTask } from './analysis-worker.js';
 import runTask from './analysis-worker.js';
 import type { FrameAnalysis, PairAnalysis, PairOptions } from './frame-analysis.js';
 
-const defaultPairOptions: PairOptions = { retryAtFullSize: true };
+const defaultPairOptions: PairOptions = { retryAtFullSize: true, overlapBlocks: true };
 
 export interface AnalysisPool {
   analyseFrame(path: string, maxSide: number, signal?: AbortSignal): Promise<FrameAnalysis>;

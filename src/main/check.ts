@@ -243,13 +243,15 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
 
     // Planned pairs are retried on full-size corners when they find no model; pairs screened in by
     // --all-pairs are not (most of them do not overlap, and a retry would double their cost).
-    const analysePair = (i: number, j: number, retryAtFullSize = true): Promise<void> =>
+    // Brackets (one pose) are not compared block by block: movement and parallax are for pairs
+    // between stations.
+    const analysePair = (i: number, j: number, retryAtFullSize = true, overlapBlocks = stationOf[i] !== stationOf[j] || stationOf[i] < 0): Promise<void> =>
       pairSlot(async () => {
         const key = `${i}:${j}`;
         if (pairResults.has(key)) return;
         const a = frames[i]!.data, b = frames[j]!.data;
         if (!a || !b) throw new Error(`internal: frames of pair ${i}:${j} were let go too early`);
-        pairResults.set(key, await pool.analysePair(a, b, { retryAtFullSize }, signal));
+        pairResults.set(key, await pool.analysePair(a, b, { retryAtFullSize, overlapBlocks }, signal));
         options.onProgress?.({ phase: 'pairs', done: ++pairsDone, total: planned.length, file: frames[j]!.file.name });
       });
 

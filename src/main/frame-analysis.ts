@@ -115,13 +115,15 @@ export interface PairOptions {
    * images and try once more: a narrow overlap may hold too few corners at half size.
    */
   readonly retryAtFullSize: boolean;
+  /** Compare the aligned overlap block by block for movement and parallax (pairs between stations). */
+  readonly overlapBlocks: boolean;
 }
 
 /**
  * Matches two analysed frames, refines the inlier tie points on the pixels and refits the
  * homography to them, and measures overlap and exposure difference.
  */
-export function analysePair(a: FrameAnalysis, b: FrameAnalysis, options: PairOptions = { retryAtFullSize: true }): PairAnalysis {
+export function analysePair(a: FrameAnalysis, b: FrameAnalysis, options: PairOptions = { retryAtFullSize: true, overlapBlocks: true }): PairAnalysis {
   let fa = a.features, fb = b.features;
   let g = estimatePairGeometry(fa, fb);
   if (!g.homography && options.retryAtFullSize && checkFeatureParams.halvings > 0) {
@@ -167,10 +169,12 @@ export function analysePair(a: FrameAnalysis, b: FrameAnalysis, options: PairOpt
       idx.forEach((i, k) => tie.set([ka.x[g.matches.a[i]], ka.y[g.matches.a[i]], kb.x[g.matches.b[i]], kb.y[g.matches.b[i]]], 4 * k));
     }
     evDiff = exposureDifference(a.image, b.image, homography!, { step: 4 })?.ev ?? null;
-    const m = findMovement(a.image, b.image, homography!);
-    moved = m.regions;
-    misfit = m.blocks >= minMisfitBlocks ? m.misfit : null;
-    parallax = m.blocks >= minMisfitBlocks ? m.parallax : null;
+    if (options.overlapBlocks) {
+      const m = findMovement(a.image, b.image, homography!);
+      moved = m.regions;
+      misfit = m.blocks >= minMisfitBlocks ? m.misfit : null;
+      parallax = m.blocks >= minMisfitBlocks ? m.parallax : null;
+    }
   }
   return {
     matches: g.matches.count,
