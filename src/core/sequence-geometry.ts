@@ -6,6 +6,7 @@ import { circleCoverage, fieldOfViewDeg, intervalCoverageDeg } from './coverage.
 import type { SequenceGeometry } from './report.js';
 import type { FrameSize, Rotation, RotationLink } from './rotations.js';
 import { chainRotations, focalFromHomography, mul3, refineRotations, relativeRotation, rotationAngleOf, stationPoses, transpose3 } from './rotations.js';
+import { median } from './median.js';
 
 export interface GeometryInput {
   /** Size of each station's reference frame at full resolution, by station. */
@@ -21,10 +22,6 @@ export interface GeometryInput {
 /** A closing turn must meet itself within this many degrees (common practice: a pair matched wrongly is off by far more). */
 export const maxMisclosureDeg = 2;
 
-function median(xs: number[]): number {
-  const s = [...xs].sort((a, b) => a - b);
-  return s.length % 2 ? s[s.length >> 1] : (s[s.length / 2 - 1] + s[s.length / 2]) / 2;
-}
 
 /** Rotations, coverage and closure of a sequence; null when no focal length can be had or fewer than one link. */
 export function sequenceGeometry(input: GeometryInput): SequenceGeometry | null {

@@ -1,5 +1,6 @@
 import { exposureOf } from './exposure-value.js';
 import type { FrameSettings } from './report.js';
+import { median } from './median.js';
 
 export interface StationInput {
   readonly settings: FrameSettings;
@@ -36,11 +37,6 @@ function bracketKeys(frames: readonly StationInput[]): { keys: (number | null)[]
   return { keys: frames.map(() => null), source: null };
 }
 
-function median(xs: number[]): number {
-  const s = [...xs].sort((a, b) => a - b);
-  const m = s.length >> 1;
-  return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
-}
 
 /**
  * Groups frames (in shooting order) into stations. From EXIF: a frame starts a new station when its

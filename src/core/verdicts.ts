@@ -2,6 +2,7 @@ import type { Analysis, FlagCode, Finding, FolderProblem, FrameSettings, MatchBu
 import { coverageHoles } from './coverage-map.js';
 import { reportSchema } from './report.js';
 import { modalPattern, patternOf } from './stations.js';
+import { median } from './median.js';
 
 const rank: Record<Verdict, number> = { ok: 0, weak: 1, reshoot: 2 };
 export const worst = (...vs: Verdict[]): Verdict => vs.reduce<Verdict>((w, v) => (rank[v] > rank[w] ? v : w), 'ok');
@@ -24,12 +25,6 @@ const pct = (v: number): string => `${Math.round(100 * v)} %`;
 const signedEv = (v: number): string => `${v >= 0 ? '+' : ''}${v.toFixed(1)} EV`;
 const shutter = (t: number): string => (t >= 0.3 ? `${Number(t.toPrecision(2))} s` : `1/${Math.round(1 / t)} s`);
 
-function median(xs: number[]): number {
-  if (xs.length === 0) return NaN;
-  const s = [...xs].sort((a, b) => a - b);
-  const m = s.length >> 1;
-  return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
-}
 
 function mode<T>(xs: T[]): T | null {
   const counts = new Map<T, number>();

@@ -20,6 +20,7 @@ import { readFrameExif } from './exif.js';
 import type { FrameAnalysis, PairAnalysis } from './frame-analysis.js';
 import type { ScannedFile } from './scan.js';
 import { scanFolder } from './scan.js';
+import { median } from '../core/median.js';
 
 export interface CheckProgress {
   readonly phase: 'frames' | 'pairs';
@@ -70,10 +71,6 @@ const nearFullTurnDeg = 300;
 /** Frames covering this much were a full turn for certain: a closure pair without a model is reported. */
 const closingTurnDeg = 330;
 
-function median(xs: readonly number[]): number {
-  const s = [...xs].sort((a, b) => a - b);
-  return s.length % 2 ? s[s.length >> 1] : (s[s.length / 2 - 1] + s[s.length / 2]) / 2;
-}
 
 /** Frames in flight when the analysis runs in the calling thread. */
 const inThreadLanes = 6;
