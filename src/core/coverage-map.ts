@@ -93,9 +93,34 @@ function sees(c: PlacedCamera, f: number, d: Vec): boolean {
  * notches where frames of one row meet at their corners do not count; a set reaching within a
  * frame of a pole counts up to the pole (a missing zenith or nadir).
  */
+/**
+ * The band of pitch the frames were aimed over: from the lowest to the highest frame centre,
+ * widened by 80 % of half a frame's height; up to a pole when it comes within a frame of it.
+ */
+function shotBand(cams: readonly PlacedCamera[], f: number): { fromDeg: number; toDeg: number } {
+  const halfV = Math.max(...cams.map((c) => (Math.atan(c.height / (2 * f)) * 180) / Math.PI));
+  const pitches = cams.map((c) => angles(c.axes.z)[1]);
+  let from = Math.min(...pitches) - 0.8 * halfV, to = Math.max(...pitches) + 0.8 * halfV;
+  if (to > 90 - 2 * halfV) to = 90;
+  if (from < -90 + 2 * halfV) from = -90;
+  return { fromDeg: from, toDeg: to };
+}
+
+// Maps already drawn, by geometry (re-judging with another budget keeps the geometry).
+const drawn = new WeakMap<SequenceGeometry, Map<number, CoverageMap | null>>();
+
 export function coverageMap(report: MapSource, cellDeg = 1): CoverageMap | null {
   const g = report.geometry;
   if (!g || g.poses.length === 0) return null;
+  const cached = drawn.get(g)?.get(cellDeg);
+  if (cached !== undefined) return cached;
+  const map = drawMap(report, g, cellDeg);
+  if (!drawn.has(g)) drawn.set(g, new Map());
+  drawn.get(g)!.set(cellDeg, map);
+  return map;
+}
+
+function drawMap(report: MapSource, g: SequenceGeometry, cellDeg: number): CoverageMap | null {
   const cams = placedCameras(report, g);
   const f = g.focalPx;
   const footprints: Footprint[] = cams.map((c) => {
@@ -123,11 +148,7 @@ export function coverageMap(report: MapSource, cellDeg = 1): CoverageMap | null 
     return { station: c.station, outline, centre: angles(c.axes.z) };
   });
 
-  const halfV = Math.max(...cams.map((c) => (Math.atan(c.height / (2 * f)) * 180) / Math.PI));
-  const pitches = footprints.map((p) => p.centre[1]);
-  let from = Math.min(...pitches) - 0.8 * halfV, to = Math.max(...pitches) + 0.8 * halfV;
-  if (to > 90 - 2 * halfV) to = 90;
-  if (from < -90 + 2 * halfV) from = -90;
+  const { fromDeg: from, toDeg: to } = shotBand(cams, f);
   const holes: HoleRun[] = [];
   for (let pc = -90; pc < 90; pc += cellDeg) {
     const pm = pc + cellDeg / 2;
@@ -285,11 +306,16 @@ const wrapYaw = (d: number): number => ((((d + 180) % 360) + 360) % 360) - 180;
  */
 export function coverageHoles(source: MapSource): CoverageHole[] {
   const g = source.geometry;
-  if (!g) return [];
+  if (!g || g.poses.length === 0) return [];
+  // A single sweep short of the poles has no holes of its own: decided before drawing the map.
+  if ((g.rows?.length ?? 1) < 2) {
+    const cams = placedCameras(source, g);
+    if (cams.length === 0) return [];
+    const band = shotBand(cams, g.focalPx);
+    if (band.toDeg < 90 && band.fromDeg > -90) return [];
+  }
   const map = coverageMap(source);
   if (!map) return [];
-  const poleBand = map.band.toDeg >= 90 || map.band.fromDeg <= -90;
-  if ((g.rows?.length ?? 1) < 2 && !poleBand) return [];
   // The hole's neighbours: in the row nearest its pitch, the stations either side of it in yaw.
   const near = (yaw: number, pitch: number): string => {
     const rows = g.rows?.length ? g.rows : [{ pitchDeg: 0, stations: g.poses.map((p) => p.station) }];
