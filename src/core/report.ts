@@ -22,7 +22,7 @@ export type FlagCode =
   | 'parallax'
   | 'size-mismatch';
 
-export type SkipCode = 'unreadable' | 'too-large' | 'not-an-image' | 'duplicate';
+export type SkipCode = 'unreadable' | 'too-large' | 'not-an-image' | 'duplicate' | 'no-preview';
 
 /** Problems of the folder as a whole. */
 export type FolderCode = 'no-frames' | 'one-frame';

@@ -92,6 +92,8 @@ export function skipOf(file: string, err: unknown, size?: number): SkippedFile {
   if (code === 'ENOENT') return { file, code: 'unreadable', reason: 'the file went away during the check' };
   if (code === 'EACCES' || code === 'EPERM') return { file, code: 'unreadable', reason: 'no permission to read it' };
   if (/pixel limit/i.test(message)) return { file, code: 'too-large', reason: 'too large to decode safely (over the pixel limit)' };
+  if (/no usable preview: the (\.\w+) container/i.test(message)) return { file, code: 'no-preview', reason: `RAW ${/(\.\w+) container/.exec(message)![1]} files are not read yet: shoot RAW+JPEG, or check exported JPEGs` };
+  if (/no usable preview|TIFF byte order|TIFF mark/i.test(message)) return { file, code: 'no-preview', reason: 'holds no embedded preview Seamscout can read: shoot RAW+JPEG, or check exported JPEGs' };
   if (/timeout/i.test(message)) return { file, code: 'unreadable', reason: 'decoding took too long' };
   if (/premature end|truncated|unexpected end|corrupt|invalid/i.test(message)) return { file, code: 'unreadable', reason: 'damaged or cut short: copy it from the card again' };
   if (/unsupported image format|bad seek|not a known file format|improper image header|input buffer/i.test(message)) return { file, code: 'not-an-image', reason: 'not an image Seamscout can read' };

@@ -1,5 +1,6 @@
 import sharp from 'sharp';
 import type { GrayImage } from '../core/image.js';
+import { isRawFile, orient, readRawPreview } from './raw-file.js';
 
 /** Largest image sharp is allowed to decode (a guard against decompression bombs): 200 MP. */
 export const pixelLimit = 200_000_000;
@@ -21,15 +22,22 @@ export interface DecodedFrame {
  * cheaper than one just above it.
  */
 export async function decodeForAnalysis(path: string, maxSide: number): Promise<DecodedFrame> {
-  const img = sharp(path, { limitInputPixels: pixelLimit, failOn: 'error' }).autoOrient();
-  const meta = await img.metadata();
+  // A RAW file is read through its largest embedded JPEG preview, turned upright by the RAW's own
+  // orientation; its full size is the sensor's, so geometry maps back to sensor pixels.
+  const raw = isRawFile(path) ? await readRawPreview(path) : null;
+  const source = sharp(raw ? raw.jpeg : path, { limitInputPixels: pixelLimit, failOn: 'error' });
+  const img = raw ? orient(source, raw.orientation) : source.autoOrient();
+  const meta = await source.metadata();
   if (!meta.width || !meta.height) throw new Error(`Expected an image with a size for ${path} but received none`);
-  const swap = (meta.orientation ?? 1) >= 5;
-  const fullWidth = swap ? meta.height : meta.width;
-  const fullHeight = swap ? meta.width : meta.height;
-  const scale = Math.min(1, maxSide / Math.max(fullWidth, fullHeight));
-  const width = Math.max(1, Math.round(fullWidth * scale));
-  const height = Math.max(1, Math.round(fullHeight * scale));
+  const swap = (raw ? raw.orientation : meta.orientation ?? 1) >= 5;
+  const storedW = raw?.sensorWidth ?? meta.width, storedH = raw?.sensorHeight ?? meta.height;
+  const fullWidth = swap ? storedH : storedW;
+  const fullHeight = swap ? storedW : storedH;
+  // The analysis image keeps the decoded picture's own aspect (a preview may be cropped a little).
+  const picW = swap ? meta.height : meta.width, picH = swap ? meta.width : meta.height;
+  const scale = Math.min(1, maxSide / Math.max(picW, picH));
+  const width = Math.max(1, Math.round(picW * scale));
+  const height = Math.max(1, Math.round(picH * scale));
   const { data, info } = await img
     .resize(width, height, { fit: 'fill', kernel: 'linear' })
     .greyscale()

@@ -1,8 +1,9 @@
 import { readdir, realpath, stat } from 'node:fs/promises';
 import { extname, join, relative } from 'node:path';
+import { rawExtensions, unreadRawExtensions } from './raw-file.js';
 
-/** File endings of the formats sharp decodes that cameras and phones write. */
-export const imageExtensions = new Set(['.jpg', '.jpeg', '.jpe', '.png', '.tif', '.tiff', '.webp', '.avif', '.heic', '.heif']);
+/** File endings of the formats sharp decodes that cameras and phones write, and of camera RAW files. */
+export const imageExtensions = new Set(['.jpg', '.jpeg', '.jpe', '.png', '.tif', '.tiff', '.webp', '.avif', '.heic', '.heif', ...rawExtensions, ...unreadRawExtensions]);
 
 export interface ScannedFile {
   readonly path: string;

@@ -68,3 +68,24 @@ export function writeTiff(littleEndian: boolean, ifds: readonly TiffIfd[], blobs
   for (const [name, b] of Object.entries(blobs)) out.set(b, at.get(name)!);
   return out;
 }
+
+/**
+ * A DNG-shaped file around a JPEG preview (DNG 1.6: IFD0 a small thumbnail with the orientation,
+ * SubIFDs for the raw image, NewSubfileType 0 with its DefaultCropSize, and the preview,
+ * NewSubfileType 1, JPEG-compressed). The raw image's data is a stub: only the layout matters here.
+ */
+export function dngAround(preview: Uint8Array | null, options: { orientation?: number; sensor: [number, number]; littleEndian?: boolean }): Uint8Array {
+  const [w, h] = options.sensor;
+  const subs: (string)[] = ['raw', ...(preview ? ['preview'] : [])];
+  return writeTiff(options.littleEndian ?? true, [
+    {
+      name: 'ifd0', entries: [
+        { tag: 254, type: 4, values: [1] }, { tag: 256, type: 3, values: [16] }, { tag: 257, type: 3, values: [8] }, { tag: 259, type: 3, values: [1] },
+        { tag: 274, type: 3, values: [options.orientation ?? 1] }, { tag: 273, type: 4, values: ['thumb'] }, { tag: 279, type: 4, values: [16 * 8 * 3] },
+        { tag: 330, type: 4, values: subs },
+      ],
+    },
+    { name: 'raw', entries: [{ tag: 254, type: 4, values: [0] }, { tag: 256, type: 4, values: [w + 16] }, { tag: 257, type: 4, values: [h + 16] }, { tag: 259, type: 3, values: [1] }, { tag: 50720, type: 5, values: [w, 1, h, 1] }] },
+    ...(preview ? [{ name: 'preview', entries: [{ tag: 254, type: 4 as const, values: [1] }, { tag: 259, type: 3 as const, values: [7] }, { tag: 273, type: 4 as const, values: ['jpeg'] }, { tag: 279, type: 4 as const, values: [preview.length] }] }] : []),
+  ], { thumb: new Uint8Array(16 * 8 * 3), ...(preview ? { jpeg: preview } : {}) });
+}
