@@ -46,6 +46,7 @@ describe('seamscout check', () => {
     expect((await runCli(['check', join(card, 'missing')])).code).toBe(2);
     expect((await runCli(['check', card, '--weak-overlap', 'lots'])).code).toBe(2);
     expect((await runCli(['check', card, '--frobnicate'])).code).toBe(2);
+    expect((await runCli(['check', card, '--prefer', 'tiff'])).code).toBe(2);
     const map = await runCli(['check', card, '--coverage-map', join(out, 'map.jpg')]);
     expect(map.code).toBe(2);
     expect(map.stderr).toMatch(/Expected a file name ending in \.svg or \.png for --coverage-map/);

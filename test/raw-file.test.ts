@@ -63,3 +63,24 @@ describe('a card of RAW files', () => {
     expect(skipped[1].reason).toMatch(/\.cr3 files are not read yet/);
   }, 240_000);
 });
+
+describe('a card of RAW+JPEG pairs (one shutter press written twice)', () => {
+  it('counts each shot once, checking the JPEG or the RAW file as asked, and says which', async () => {
+    const demo = await writeDemoShoot(join(tempDir(), 'pairs-src'), { clean: true, width: 800, height: 534, stations: 2, seed: 4 });
+    const card = tempDir('seamscout-raw-jpeg-');
+    const jpegs = readdirSync(demo.folder).filter((n) => n.endsWith('.JPG')).sort();
+    for (const f of jpegs) {
+      writeFileSync(join(card, f), readFileSync(join(demo.folder, f)));
+      writeFileSync(join(card, f.replace(/\.JPG$/, '.dng')), dngAround(readFileSync(join(demo.folder, f)), { sensor: [4000, 2670] }));
+    }
+    const pool = createAnalysisPool(0);
+    for (const prefer of ['jpeg', 'raw'] as const) {
+      const report = judge((await runCheck(card, { pool, prefer })).analysis, defaultBudget);
+      expect(report.frames.map((f) => f.file).sort(), prefer).toEqual(jpegs.map((f) => (prefer === 'raw' ? f.replace('.JPG', '.dng') : f)));
+      expect(report.skipped).toHaveLength(jpegs.length);
+      expect(report.skipped.every((s) => s.code === 'same-shot'), prefer).toBe(true);
+      expect(report.skipped[0].reason).toMatch(prefer === 'raw' ? /the RAW file was checked/ : /the JPEG was checked/);
+      expect(report.frames[0].width).toBe(prefer === 'raw' ? 4000 : 800);
+    }
+  }, 240_000);
+});

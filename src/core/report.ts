@@ -22,7 +22,7 @@ export type FlagCode =
   | 'parallax'
   | 'size-mismatch';
 
-export type SkipCode = 'unreadable' | 'too-large' | 'not-an-image' | 'duplicate' | 'no-preview';
+export type SkipCode = 'unreadable' | 'too-large' | 'not-an-image' | 'duplicate' | 'no-preview' | 'same-shot';
 
 /** Problems of the folder as a whole. */
 export type FolderCode = 'no-frames' | 'one-frame';

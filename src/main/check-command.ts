@@ -22,6 +22,7 @@ Options:
   --recursive              look in sub-folders too
   --all-pairs              match every plausible pair (multi-row or unordered sets)
   --size N                 longest side of the analysis image in px (default ${defaultMaxSide})
+  --prefer jpeg|raw        of a RAW+JPEG pair (one shot written twice), check this one (default jpeg)
   --threads N              worker threads (default: none on 2 cores or fewer, else one per core;
                            0 = analyse in the command's own thread)
   --json FILE              write the report (schema seamscout-report/1)
@@ -60,7 +61,7 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
       allowPositionals: true,
       options: {
         recursive: { type: 'boolean' }, 'all-pairs': { type: 'boolean' }, size: { type: 'string' }, threads: { type: 'string' },
-        json: { type: 'string' }, graphml: { type: 'string' }, csv: { type: 'string' }, dot: { type: 'string' }, 'tie-points': { type: 'string' }, 'coverage-map': { type: 'string' },
+        json: { type: 'string' }, graphml: { type: 'string' }, csv: { type: 'string' }, dot: { type: 'string' }, 'tie-points': { type: 'string' }, 'coverage-map': { type: 'string' }, prefer: { type: 'string' },
         force: { type: 'boolean' }, 'no-cache': { type: 'boolean' }, settings: { type: 'string' }, 'no-progress': { type: 'boolean' }, help: { type: 'boolean' },
         'min-inliers': { type: 'string' }, 'reshoot-overlap': { type: 'string' }, 'weak-overlap': { type: 'string' }, 'max-ev': { type: 'string' },
         'min-sharpness': { type: 'string' }, 'max-bracket-shift': { type: 'string' },
@@ -90,6 +91,7 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
     size = whole('size', v.size, 64) ?? defaultMaxSide;
     threads = whole('threads', v.threads, 0);
     if (v['coverage-map']) coverageMapFormat(v['coverage-map']);
+    if (v.prefer !== undefined && v.prefer !== 'jpeg' && v.prefer !== 'raw') throw new TypeError(`Expected jpeg or raw for --prefer but received ${v.prefer}`);
     const settings = await readSettings(v.settings);
     budget = resolveBudget(settings.budget ?? {}, {
       minInliers: v['min-inliers'],
@@ -129,6 +131,7 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
       allPairs: v['all-pairs'],
       maxSide: size,
       threads: threads ?? commandLineThreads(),
+      prefer: v.prefer as 'jpeg' | 'raw' | undefined,
       cache: v['no-cache'] ? null : createFeatureCache(),
       onProgress: showProgress ? (p) => process.stderr.write(progressLine(p.phase, p.done, p.total)) : undefined,
     });

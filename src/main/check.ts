@@ -20,6 +20,8 @@ import { readFrameExif } from './exif.js';
 import type { FrameAnalysis, PairAnalysis } from './frame-analysis.js';
 import type { ScannedFile } from './scan.js';
 import { scanFolder } from './scan.js';
+import type { ShotPreference } from './shot-pairs.js';
+import { oneFilePerShot } from './shot-pairs.js';
 import { median } from '../core/median.js';
 
 export interface CheckProgress {
@@ -38,6 +40,8 @@ export interface CheckOptions {
   /** Worker threads; 0 runs in this thread. */
   readonly threads?: number;
   readonly pool?: AnalysisPool;
+  /** Which file of a RAW+JPEG pair to check (default: the JPEG). */
+  readonly prefer?: ShotPreference;
   /** Where frame analyses are kept between checks; none by default. */
   readonly cache?: FeatureCache | null;
   readonly onProgress?: (p: CheckProgress) => void;
@@ -197,9 +201,10 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
   const signal = options.signal;
   try {
     const scan = await scanFolder(folder, options.recursive ?? false);
-    const skipped: SkippedFile[] = scan.problems.map((p) => ({ file: p.name, code: 'unreadable', reason: `cannot be read: ${p.reason}` }));
-    const exifs = await inOrder(scan.files, 8, (f) => readFrameExif(f.path), signal);
-    const ordered = shootingOrder(scan.files.map((file, i) => ({ file: file.name, captureMs: exifs[i].captureMs, scanned: file, exif: exifs[i] })));
+    const shots = oneFilePerShot(scan.files, options.prefer ?? 'jpeg');
+    const skipped: SkippedFile[] = [...scan.problems.map((p) => ({ file: p.name, code: 'unreadable' as const, reason: `cannot be read: ${p.reason}` })), ...shots.skipped];
+    const exifs = await inOrder(shots.files, 8, (f) => readFrameExif(f.path), signal);
+    const ordered = shootingOrder(shots.files.map((file, i) => ({ file: file.name, captureMs: exifs[i].captureMs, scanned: file, exif: exifs[i] })));
     const n = ordered.length;
 
     const byExif = ordered.some((o) => o.exif.settings.exposureTime !== null || o.exif.settings.evBias !== null);
