@@ -66,27 +66,8 @@ export function rawLayout(bytes: Uint8Array): RawLayout {
   let orientation = 1;
   const seen = new Set<number>();
   /** The frame size of a viewable JPEG stream at o (n bytes), or null when it is none. */
-  const viewableJpeg = (o: number, n: number): { width: number; height: number } | null => {
-    if (!(n > 4 && o >= 0 && o + n <= bytes.length && bytes[o] === 0xff && bytes[o + 1] === 0xd8)) return null;
-    let p = o + 2;
-    const end = o + n;
-    while (p + 4 <= end) {
-      if (bytes[p] !== 0xff) return null;
-      const marker = bytes[p + 1];
-      if (marker === 0xff) {
-        p++;
-        continue;
-      }
-      const len = (bytes[p + 2] << 8) | bytes[p + 3];
-      if (marker >= 0xc0 && marker <= 0xcf && marker !== 0xc4 && marker !== 0xc8 && marker !== 0xcc) {
-        if (marker > 0xc2 || p + 9 > end) return null;
-        return { height: (bytes[p + 5] << 8) | bytes[p + 6], width: (bytes[p + 7] << 8) | bytes[p + 8] };
-      }
-      if (marker === 0xda || len < 2) return null;
-      p += 2 + len;
-    }
-    return null;
-  };
+  const viewableJpeg = (o: number, n: number): { width: number; height: number } | null =>
+    n > 4 && o >= 0 && o + n <= bytes.length ? jpegHeader(bytes, o)?.size ?? null : null;
   const addPreview = (offset: number, length: number): boolean => {
     const size = viewableJpeg(offset, length);
     if (!size) return false;
@@ -140,4 +121,85 @@ export function rawLayout(bytes: Uint8Array): RawLayout {
 export function largestPreview(layout: RawLayout): EmbeddedJpeg | null {
   const area = (p: EmbeddedJpeg): number => p.width * p.height;
   return layout.previews.reduce<EmbeddedJpeg | null>((best, p) => (!best || area(p) > area(best) || (area(p) === area(best) && p.length > best.length) ? p : best), null);
+}
+
+/**
+ * The frame size of the viewable JPEG stream (SOF0-SOF2) starting at `o`, and where its marker
+ * segments end (after the first start of scan), or null when there is none there.
+ */
+export function jpegHeader(bytes: Uint8Array, o: number): { size: { width: number; height: number }; scan: number } | null {
+  if (!(o + 4 <= bytes.length && bytes[o] === 0xff && bytes[o + 1] === 0xd8)) return null;
+  let p = o + 2, size: { width: number; height: number } | null = null;
+  // Marker segments up to the start of scan (ITU-T T.81, B.1.1.4): FF xx, 2-byte length.
+  while (p + 4 <= bytes.length) {
+    if (bytes[p] !== 0xff) return null;
+    const marker = bytes[p + 1];
+    if (marker === 0xff) {
+      p++;
+      continue;
+    }
+    const len = (bytes[p + 2] << 8) | bytes[p + 3];
+    if (len < 2) return null;
+    if (marker >= 0xc0 && marker <= 0xcf && marker !== 0xc4 && marker !== 0xc8 && marker !== 0xcc) {
+      if (marker > 0xc2 || p + 9 > bytes.length) return null;
+      size = { height: (bytes[p + 5] << 8) | bytes[p + 6], width: (bytes[p + 7] << 8) | bytes[p + 8] };
+    }
+    p += 2 + len;
+    if (marker === 0xda) return size ? { size, scan: p } : null;
+  }
+  return null;
+}
+
+/** The frame size of the viewable JPEG stream starting at `o`, and where it ends (after EOI), or null. */
+export function jpegExtent(bytes: Uint8Array, o: number): { width: number; height: number; end: number } | null {
+  const head = jpegHeader(bytes, o);
+  if (!head) return null;
+  // Entropy-coded data and further scans up to EOI: FF 00 is a stuffed byte, FF D0-D7 a restart.
+  for (let p = head.scan; p + 1 < bytes.length; p++) {
+    if (bytes[p] !== 0xff) continue;
+    const m = bytes[p + 1];
+    if (m === 0xd9) return { ...head.size, end: p + 2 };
+    if (m === 0x00 || (m >= 0xd0 && m <= 0xd7) || m === 0xff) continue;
+    // Another segment between scans (DHT, SOS of a progressive file): skip its length.
+    if (p + 3 < bytes.length) p += 1 + ((bytes[p + 2] << 8) | bytes[p + 3]);
+  }
+  return null;
+}
+
+/**
+ * Viewable JPEG streams found by their start-of-image marker anywhere in a file, each checked by
+ * parsing it to its end (nested thumbnails inside a found stream are skipped): for containers that
+ * hold their previews as plain JPEG streams among other data (Canon's CR3, an ISO base media file).
+ */
+export function scanForJpegs(bytes: Uint8Array): EmbeddedJpeg[] {
+  const out: EmbeddedJpeg[] = [];
+  for (let p = 0; p + 3 < bytes.length; ) {
+    const at = bytes.indexOf(0xff, p);
+    if (at < 0 || at + 3 >= bytes.length) break;
+    if (bytes[at + 1] === 0xd8 && bytes[at + 2] === 0xff) {
+      const e = jpegExtent(bytes, at);
+      if (e) {
+        out.push({ offset: at, length: e.end - at, width: e.width, height: e.height });
+        p = e.end;
+        continue;
+      }
+    }
+    p = at + 1;
+  }
+  return out;
+}
+
+/**
+ * The preview of a Fujifilm RAF file: its header names "FUJIFILMCCD-RAW" and, at bytes 84 and 88,
+ * the offset and length of the embedded JPEG, big-endian (the layout as the format's public
+ * descriptions give it; from memory, checked here only against files built to it).
+ */
+export function rafPreview(bytes: Uint8Array): EmbeddedJpeg | null {
+  const magic = 'FUJIFILMCCD-RAW';
+  if (bytes.length < 92 || String.fromCharCode(...bytes.subarray(0, magic.length)) !== magic) return null;
+  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  const offset = view.getUint32(84, false), length = view.getUint32(88, false);
+  if (offset + length > bytes.length) return null;
+  const e = jpegExtent(bytes, offset);
+  return e ? { offset, length, width: e.width, height: e.height } : null;
 }

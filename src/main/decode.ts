@@ -26,10 +26,10 @@ export async function decodeForAnalysis(path: string, maxSide: number): Promise<
   // orientation; its full size is the sensor's, so geometry maps back to sensor pixels.
   const raw = isRawFile(path) ? await readRawPreview(path) : null;
   const source = sharp(raw ? raw.jpeg : path, { limitInputPixels: pixelLimit, failOn: 'error' });
-  const img = raw ? orient(source, raw.orientation) : source.autoOrient();
+  const img = raw && raw.orientation !== null ? orient(source, raw.orientation) : source.autoOrient();
   const meta = await source.metadata();
   if (!meta.width || !meta.height) throw new Error(`Expected an image with a size for ${path} but received none`);
-  const swap = (raw ? raw.orientation : meta.orientation ?? 1) >= 5;
+  const swap = (raw?.orientation ?? meta.orientation ?? 1) >= 5;
   const storedW = raw?.sensorWidth ?? meta.width, storedH = raw?.sensorHeight ?? meta.height;
   const fullWidth = swap ? storedH : storedW;
   const fullHeight = swap ? storedW : storedH;

@@ -1,25 +1,28 @@
 import { readFile } from 'node:fs/promises';
 import { extname } from 'node:path';
 import type { Sharp } from 'sharp';
-import { largestPreview, rawLayout } from '../core/raw-preview.js';
+import type { EmbeddedJpeg } from '../core/raw-preview.js';
+import { largestPreview, rafPreview, rawLayout, scanForJpegs } from '../core/raw-preview.js';
 
 /**
- * Endings of the TIFF-based camera RAW formats whose embedded JPEG preview is read: DNG and the
- * makers' TIFF-like files. (.cr3, in an ISO media container, and .raf, in Fujifilm's own, are not
- * read yet: they are listed as not readable.)
+ * Endings of the camera RAW formats whose embedded JPEG preview is read: DNG and the makers'
+ * TIFF-like files, Canon's CR3 (an ISO base media file) and Fujifilm's RAF.
  */
-export const rawExtensions = new Set(['.dng', '.cr2', '.nef', '.nrw', '.arw', '.srf', '.sr2', '.orf', '.rw2', '.pef', '.srw', '.erf', '.3fr', '.iiq', '.mef', '.mos', '.kdc', '.dcr']);
+export const rawExtensions = new Set(['.dng', '.cr2', '.nef', '.nrw', '.arw', '.srf', '.sr2', '.orf', '.rw2', '.pef', '.srw', '.erf', '.3fr', '.iiq', '.mef', '.mos', '.kdc', '.dcr', '.cr3', '.raf']);
 
 /** Endings of RAW formats recognised as such but not read yet. */
-export const unreadRawExtensions = new Set(['.cr3', '.raf', '.x3f']);
+export const unreadRawExtensions = new Set(['.x3f']);
 
 export const isRawFile = (path: string): boolean => rawExtensions.has(extname(path).toLowerCase()) || unreadRawExtensions.has(extname(path).toLowerCase());
 
 export interface RawPreview {
   /** The embedded JPEG stream, as stored. */
   readonly jpeg: Buffer;
-  /** TIFF Orientation of the RAW file (the preview itself usually carries none). */
-  readonly orientation: number;
+  /**
+   * TIFF Orientation of a TIFF-based RAW file (its preview usually carries none); null for the
+   * containers whose preview carries its own EXIF orientation (CR3, RAF).
+   */
+  readonly orientation: number | null;
   /** The sensor's image size as stored (before orientation), or null when the file does not say. */
   readonly sensorWidth: number | null;
   readonly sensorHeight: number | null;
@@ -30,11 +33,25 @@ export async function readRawPreview(path: string): Promise<RawPreview> {
   const ending = extname(path).toLowerCase();
   if (unreadRawExtensions.has(ending)) throw new Error(`no usable preview: the ${ending} container is not read yet`);
   const bytes = await readFile(path);
-  const layout = rawLayout(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.length));
+  const u8 = new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.length);
+  const cut = (p: EmbeddedJpeg): Buffer => Buffer.from(bytes.subarray(p.offset, p.offset + p.length));
+  if (ending === '.raf') {
+    const p = rafPreview(u8);
+    if (!p) throw new Error(`no usable preview in ${path}`);
+    return { jpeg: cut(p), orientation: null, sensorWidth: null, sensorHeight: null };
+  }
+  if (ending === '.cr3') {
+    // An ISO base media file ('ftyp', brand 'crx '): its previews are plain JPEG streams in its boxes.
+    if (!(bytes.length > 12 && bytes.toString('latin1', 4, 12) === 'ftypcrx ')) throw new Error(`no usable preview in ${path}: not a CR3 file`);
+    const best = largestPreview({ previews: scanForJpegs(u8), sensorWidth: null, sensorHeight: null, orientation: 1 });
+    if (!best) throw new Error(`no usable preview in ${path}`);
+    return { jpeg: cut(best), orientation: null, sensorWidth: null, sensorHeight: null };
+  }
+  const layout = rawLayout(u8);
   const best = largestPreview(layout);
   if (!best) throw new Error(`no usable preview in ${path}`);
   return {
-    jpeg: Buffer.from(bytes.subarray(best.offset, best.offset + best.length)),
+    jpeg: cut(best),
     orientation: layout.orientation >= 1 && layout.orientation <= 8 ? layout.orientation : 1,
     sensorWidth: layout.sensorWidth,
     sensorHeight: layout.sensorHeight,
