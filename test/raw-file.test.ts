@@ -12,9 +12,10 @@ import { createAnalysisPool } from '../src/main/analysis-pool.js';
 import { runCheck } from '../src/main/check.js';
 import { decodeForAnalysis } from '../src/main/decode.js';
 import { writeDemoShoot } from '../src/main/demo-writer.js';
+import { readFrameExif } from '../src/main/exif.js';
 import { tempDir } from './helpers/cli.js';
 import { externalFixture } from './helpers/images.js';
-import { dngAround } from './helpers/tiff-writer.js';
+import { dngAround, writeTiff } from './helpers/tiff-writer.js';
 
 let preview: Uint8Array;
 beforeAll(async () => {
@@ -51,6 +52,20 @@ function box(type: string, ...payload: Uint8Array[]): Uint8Array {
   }
   return out;
 }
+
+describe('the settings of a RAW file', () => {
+  it('are read from its EXIF IFD (TIFF 6.0 / EXIF 2.3 tags: ExposureTime, FNumber, ISO)', async () => {
+    const file = writeTiff(true, [
+      { name: 'ifd0', entries: [{ tag: 256, type: 3, values: [16] }, { tag: 257, type: 3, values: [8] }, { tag: 34665, type: 4, values: ['exif'] }] },
+      { name: 'exif', entries: [{ tag: 33434, type: 5, values: [1, 250] }, { tag: 33437, type: 5, values: [8, 1] }, { tag: 34855, type: 3, values: [200] }] },
+    ], {});
+    const dir = tempDir('seamscout-raw-exif-');
+    for (const ending of ['dng', 'nef', 'cr2', 'arw']) {
+      writeFileSync(join(dir, `x.${ending}`), file);
+      expect((await readFrameExif(join(dir, `x.${ending}`))).settings, ending).toMatchObject({ exposureTime: 1 / 250, fNumber: 8, iso: 200 });
+    }
+  });
+});
 
 describe('RAW containers that are not TIFF', () => {
   it('reads a CR3 (ISO base media file, brand crx) through its largest JPEG, skipping lossless and stray markers', async () => {
