@@ -120,8 +120,9 @@ export interface PairOptions {
 }
 
 /**
- * Matches two analysed frames, refines the inlier tie points on the pixels and refits the
- * homography to them, and measures overlap and exposure difference.
+ * Matches two analysed frames, finds tie points on the pixels (a's keypoints inside b, located in
+ * b by correlation) and refits the homography to them, and measures overlap, exposure difference
+ * and, between stations, movement and parallax in the aligned overlap.
  */
 export function analysePair(a: FrameAnalysis, b: FrameAnalysis, options: PairOptions = { retryAtFullSize: true, overlapBlocks: true }): PairAnalysis {
   let fa = a.features, fb = b.features;
