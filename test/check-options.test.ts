@@ -96,6 +96,10 @@ describe('the command line', () => {
     const broken = await runCli(['check', demo.folder, '--settings', settings]);
     expect(broken.code).toBe(2);
     expect(broken.stderr).toMatch(/Expected JSON in the settings file/);
+    writeFileSync(settings, JSON.stringify({ prefer: 'nef' }));
+    const prefer = await runCli(['check', demo.folder, '--settings', settings]);
+    expect(prefer.code).toBe(2);
+    expect(prefer.stderr).toMatch(/Expected "jpeg" or "raw" for prefer/);
   }, 120_000);
 
   it('writes the inlier tie points at full resolution', async () => {

@@ -22,7 +22,8 @@ Options:
   --recursive              look in sub-folders too
   --all-pairs              match every plausible pair (multi-row or unordered sets)
   --size N                 longest side of the analysis image in px (default ${defaultMaxSide})
-  --prefer jpeg|raw        of a RAW+JPEG pair (one shot written twice), check this one (default jpeg)
+  --prefer jpeg|raw        of a RAW+JPEG pair (one shot written twice), check this one (default jpeg;
+                           also "prefer" in the settings file)
   --threads N              worker threads (default: none on 2 cores or fewer, else one per core;
                            0 = analyse in the command's own thread)
   --json FILE              write the report (schema seamscout-report/1)
@@ -86,13 +87,14 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
     if (!Number.isInteger(n) || n < min) throw new TypeError(`Expected a whole number of at least ${min} for --${name} but received ${value}`);
     return n;
   };
-  let budget, size: number, threads: number | undefined;
+  let budget, size: number, threads: number | undefined, prefer: 'jpeg' | 'raw' | undefined;
   try {
     size = whole('size', v.size, 64) ?? defaultMaxSide;
     threads = whole('threads', v.threads, 0);
     if (v['coverage-map']) coverageMapFormat(v['coverage-map']);
     if (v.prefer !== undefined && v.prefer !== 'jpeg' && v.prefer !== 'raw') throw new TypeError(`Expected jpeg or raw for --prefer but received ${v.prefer}`);
     const settings = await readSettings(v.settings);
+    prefer = (v.prefer as 'jpeg' | 'raw' | undefined) ?? settings.prefer;
     budget = resolveBudget(settings.budget ?? {}, {
       minInliers: v['min-inliers'],
       reshootOverlap: percent(v['reshoot-overlap']),
@@ -131,7 +133,7 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
       allPairs: v['all-pairs'],
       maxSide: size,
       threads: threads ?? commandLineThreads(),
-      prefer: v.prefer as 'jpeg' | 'raw' | undefined,
+      prefer,
       cache: v['no-cache'] ? null : createFeatureCache(),
       onProgress: showProgress ? (p) => process.stderr.write(progressLine(p.phase, p.done, p.total)) : undefined,
     });

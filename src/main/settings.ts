@@ -2,9 +2,13 @@ import { readFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import { configDir } from './user-dirs.js';
 
-/** The settings file: `{ "budget": { "minInliers": 30, ... } }`; more sections may follow. */
+/**
+ * The settings file: `{ "budget": { "minInliers": 30, ... }, "prefer": "raw" }`; more sections may
+ * follow. `prefer` names the file of a RAW+JPEG pair to check ("jpeg", the default, or "raw").
+ */
 export interface SettingsFile {
   readonly budget?: Record<string, unknown>;
+  readonly prefer?: 'jpeg' | 'raw';
 }
 
 export const defaultSettingsPath = (): string => join(configDir(), 'settings.json');
@@ -28,5 +32,7 @@ export async function readSettings(path: string | undefined): Promise<SettingsFi
   if (typeof parsed !== 'object' || parsed === null || Array.isArray(parsed)) throw new Error(`Expected an object in the settings file ${file}`);
   const budget = (parsed as SettingsFile).budget;
   if (budget !== undefined && (typeof budget !== 'object' || budget === null)) throw new Error(`Expected an object for budget in ${file}`);
+  const prefer = (parsed as SettingsFile).prefer;
+  if (prefer !== undefined && prefer !== 'jpeg' && prefer !== 'raw') throw new Error(`Expected "jpeg" or "raw" for prefer in ${file} but received ${JSON.stringify(prefer)}`);
   return parsed as SettingsFile;
 }
