@@ -45,18 +45,31 @@ const TAG = {
   defaultCropSize: 50720,
 } as const;
 
+/**
+ * Random access to a file's bytes, so a large RAW file need not be read whole to find its preview:
+ * `byte(o)` for 0 <= o < length.
+ */
+export interface ByteSource {
+  readonly length: number;
+  byte(offset: number): number;
+}
+
+/** A ByteSource over bytes already in memory. */
+export const bytesSource = (b: Uint8Array): ByteSource => ({ length: b.length, byte: (o) => b[o] });
+
 /** Bytes per value of each TIFF field type (1 BYTE ... 13 IFD); 0 for unknown types. */
 const typeSize = [0, 1, 1, 2, 4, 8, 1, 1, 2, 4, 8, 4, 8, 4];
 
 /** Reads a file's TIFF structure; throws on what is not TIFF-shaped at all. */
-export function rawLayout(bytes: Uint8Array): RawLayout {
+export function rawLayout(input: Uint8Array | ByteSource): RawLayout {
+  const bytes = input instanceof Uint8Array ? bytesSource(input) : input;
+  const b = (o: number): number => bytes.byte(o);
   if (bytes.length < 8) throw new RangeError(`Expected a TIFF-based file of 8 bytes or more but received ${bytes.length}`);
-  const order = String.fromCharCode(bytes[0], bytes[1]);
+  const order = String.fromCharCode(b(0), b(1));
   if (order !== 'II' && order !== 'MM') throw new RangeError(`Expected a TIFF byte order mark (II or MM) but received ${JSON.stringify(order)}`);
   const little = order === 'II';
-  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
-  const u16 = (o: number): number => view.getUint16(o, little);
-  const u32 = (o: number): number => view.getUint32(o, little);
+  const u16 = (o: number): number => (little ? b(o) | (b(o + 1) << 8) : (b(o) << 8) | b(o + 1));
+  const u32 = (o: number): number => (little ? (b(o) | (b(o + 1) << 8) | (b(o + 2) << 16)) + b(o + 3) * 2 ** 24 : b(o) * 2 ** 24 + ((b(o + 1) << 16) | (b(o + 2) << 8) | b(o + 3)));
   // 42 in TIFF; makers' variants keep the layout with another mark (0x4f52 'RO', 0x55 'U').
   const magic = u16(2);
   if (magic !== 42 && magic !== 0x4f52 && magic !== 0x5352 && magic !== 0x55) throw new RangeError(`Expected the TIFF mark 42 but received ${magic}`);
@@ -91,7 +104,7 @@ export function rawLayout(bytes: Uint8Array): RawLayout {
         const read: number[] = [];
         for (let c = 0; c < Math.min(count, 64); c++) {
           const o = at + c * size;
-          read.push(size === 1 ? bytes[o] : size === 2 ? u16(o) : size === 4 ? u32(o) : u32(o) / Math.max(1, u32(o + 4)));
+          read.push(size === 1 ? b(o) : size === 2 ? u16(o) : size === 4 ? u32(o) : u32(o) / Math.max(1, u32(o + 4)));
         }
         values.set(tag, read);
       }
@@ -127,22 +140,24 @@ export function largestPreview(layout: RawLayout): EmbeddedJpeg | null {
  * The frame size of the viewable JPEG stream (SOF0-SOF2) starting at `o`, and where its marker
  * segments end (after the first start of scan), or null when there is none there.
  */
-export function jpegHeader(bytes: Uint8Array, o: number): { size: { width: number; height: number }; scan: number } | null {
-  if (!(o + 4 <= bytes.length && bytes[o] === 0xff && bytes[o + 1] === 0xd8)) return null;
+export function jpegHeader(input: Uint8Array | ByteSource, o: number): { size: { width: number; height: number }; scan: number } | null {
+  const src = input instanceof Uint8Array ? bytesSource(input) : input;
+  const at = (k: number): number => src.byte(k);
+  if (!(o + 4 <= src.length && at(o) === 0xff && at(o + 1) === 0xd8)) return null;
   let p = o + 2, size: { width: number; height: number } | null = null;
   // Marker segments up to the start of scan (ITU-T T.81, B.1.1.4): FF xx, 2-byte length.
-  while (p + 4 <= bytes.length) {
-    if (bytes[p] !== 0xff) return null;
-    const marker = bytes[p + 1];
+  while (p + 4 <= src.length) {
+    if (at(p) !== 0xff) return null;
+    const marker = at(p + 1);
     if (marker === 0xff) {
       p++;
       continue;
     }
-    const len = (bytes[p + 2] << 8) | bytes[p + 3];
+    const len = (at(p + 2) << 8) | at(p + 3);
     if (len < 2) return null;
     if (marker >= 0xc0 && marker <= 0xcf && marker !== 0xc4 && marker !== 0xc8 && marker !== 0xcc) {
-      if (marker > 0xc2 || p + 9 > bytes.length) return null;
-      size = { height: (bytes[p + 5] << 8) | bytes[p + 6], width: (bytes[p + 7] << 8) | bytes[p + 8] };
+      if (marker > 0xc2 || p + 9 > src.length) return null;
+      size = { height: (at(p + 5) << 8) | at(p + 6), width: (at(p + 7) << 8) | at(p + 8) };
     }
     p += 2 + len;
     if (marker === 0xda) return size ? { size, scan: p } : null;

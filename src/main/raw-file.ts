@@ -1,7 +1,8 @@
+import { closeSync, fstatSync, openSync, readSync } from 'node:fs';
 import { readFile } from 'node:fs/promises';
 import { extname } from 'node:path';
 import type { Sharp } from 'sharp';
-import type { EmbeddedJpeg } from '../core/raw-preview.js';
+import type { ByteSource, EmbeddedJpeg } from '../core/raw-preview.js';
 import { largestPreview, rafPreview, rawLayout, scanForJpegs } from '../core/raw-preview.js';
 
 /**
@@ -32,6 +33,7 @@ export interface RawPreview {
 export async function readRawPreview(path: string): Promise<RawPreview> {
   const ending = extname(path).toLowerCase();
   if (unreadRawExtensions.has(ending)) throw new Error(`no usable preview: the ${ending} container is not read yet`);
+  if (ending !== '.raf' && ending !== '.cr3') return tiffBasedPreview(path);
   const bytes = await readFile(path);
   const u8 = new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.length);
   const cut = (p: EmbeddedJpeg): Buffer => Buffer.from(bytes.subarray(p.offset, p.offset + p.length));
@@ -40,22 +42,50 @@ export async function readRawPreview(path: string): Promise<RawPreview> {
     if (!p) throw new Error(`no usable preview in ${path}`);
     return { jpeg: cut(p), orientation: null, sensorWidth: null, sensorHeight: null };
   }
-  if (ending === '.cr3') {
-    // An ISO base media file ('ftyp', brand 'crx '): its previews are plain JPEG streams in its boxes.
-    if (!(bytes.length > 12 && bytes.toString('latin1', 4, 12) === 'ftypcrx ')) throw new Error(`no usable preview in ${path}: not a CR3 file`);
-    const best = largestPreview({ previews: scanForJpegs(u8), sensorWidth: null, sensorHeight: null, orientation: 1 });
-    if (!best) throw new Error(`no usable preview in ${path}`);
-    return { jpeg: cut(best), orientation: null, sensorWidth: null, sensorHeight: null };
-  }
-  const layout = rawLayout(u8);
-  const best = largestPreview(layout);
+  // CR3, an ISO base media file ('ftyp', brand 'crx '): its previews are plain JPEG streams in its boxes.
+  if (!(bytes.length > 12 && bytes.toString('latin1', 4, 12) === 'ftypcrx ')) throw new Error(`no usable preview in ${path}: not a CR3 file`);
+  const best = largestPreview({ previews: scanForJpegs(u8), sensorWidth: null, sensorHeight: null, orientation: 1 });
   if (!best) throw new Error(`no usable preview in ${path}`);
+  return { jpeg: cut(best), orientation: null, sensorWidth: null, sensorHeight: null };
+}
+
+/** Bytes of a file read a page at a time as they are asked for (IFDs are small and scattered). */
+function pagedSource(fd: number, size: number): ByteSource {
+  const pageSize = 64 * 1024;
+  const pages = new Map<number, Buffer>();
   return {
-    jpeg: cut(best),
-    orientation: layout.orientation >= 1 && layout.orientation <= 8 ? layout.orientation : 1,
-    sensorWidth: layout.sensorWidth,
-    sensorHeight: layout.sensorHeight,
+    length: size,
+    byte(offset) {
+      const k = Math.floor(offset / pageSize);
+      let page = pages.get(k);
+      if (!page) {
+        page = Buffer.alloc(Math.min(pageSize, size - k * pageSize));
+        readSync(fd, page, 0, page.length, k * pageSize);
+        pages.set(k, page);
+      }
+      return page[offset - k * pageSize];
+    },
   };
+}
+
+/** A TIFF-based RAW file's largest preview, reading its IFDs and the preview's bytes, not the sensor data. */
+async function tiffBasedPreview(path: string): Promise<RawPreview> {
+  const fd = openSync(path, 'r');
+  try {
+    const layout = rawLayout(pagedSource(fd, fstatSync(fd).size));
+    const best = largestPreview(layout);
+    if (!best) throw new Error(`no usable preview in ${path}`);
+    const jpeg = Buffer.alloc(best.length);
+    readSync(fd, jpeg, 0, best.length, best.offset);
+    return {
+      jpeg,
+      orientation: layout.orientation >= 1 && layout.orientation <= 8 ? layout.orientation : 1,
+      sensorWidth: layout.sensorWidth,
+      sensorHeight: layout.sensorHeight,
+    };
+  } finally {
+    closeSync(fd);
+  }
 }
 
 /**
