@@ -3,13 +3,13 @@
  * the camera (yaw across, pitch up), and the directions inside the shot band no frame sees.
  */
 import type { Analysis, CoverageHole, SequenceGeometry, Verdict } from './report.js';
+import { cross } from './rotations.js';
 
 /** What the map is drawn from: the frames' sizes, the stations' reference frames, the geometry. */
 export type MapSource = Pick<Analysis, 'frames' | 'stations' | 'geometry'>;
 
 type Vec = [number, number, number];
 
-const cross = (a: Vec, b: Vec): Vec => [a[1] * b[2] - a[2] * b[1], a[2] * b[0] - a[0] * b[2], a[0] * b[1] - a[1] * b[0]];
 
 /** A direction of yaw and pitch (degrees) in the level frame: right, down, forward (right-handed, as a camera's x, y, z). */
 function directionOf(yawDeg: number, pitchDeg: number): Vec {
