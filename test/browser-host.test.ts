@@ -2,13 +2,15 @@
 // local server): 127.0.0.1 only, a per-run token, our own Host and Origin only, nothing served
 // outside its assets and the check's frames.
 import { request } from 'node:http';
-import { copyFileSync, mkdirSync, symlinkSync, writeFileSync } from 'node:fs';
+import { copyFileSync, mkdirSync, readFileSync, symlinkSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { BrowserHost } from '../src/main/browser-host.js';
 import { startBrowserHost } from '../src/main/browser-host.js';
 import { tempDir } from './helpers/cli.js';
 import { externalFixture } from './helpers/images.js';
+import { dngAround } from './helpers/tiff-writer.js';
+import sharp from 'sharp';
 
 let host: BrowserHost;
 let assets: string;
@@ -116,5 +118,63 @@ describe('frames of a check through the host', () => {
     }
     // An older check's frames stop resolving once a new one starts.
     expect((await get(`/frame/${id + 1}/a.jpg?${t}`)).status).toBe(404);
+  }, 60_000);
+});
+
+describe('RAW+JPEG shots through the host', () => {
+  const headers = (): Record<string, string> => ({ 'x-seamscout-token': host.token, 'content-type': 'application/json' });
+  const call = async (name: string, ...args: unknown[]): Promise<{ status: number; json: { ok?: unknown; error?: string } }> => {
+    const r = await get(`/api/${name}`, headers(), 'POST', JSON.stringify(args));
+    return { status: r.status, json: JSON.parse(r.body) };
+  };
+
+  it('stores the choice beside the budget, refuses anything but jpeg or raw, and the next check reads the RAW file, shown by its preview', async () => {
+    expect((await call('loadShotPreference')).json.ok).toBe('jpeg');
+    await call('saveBudget', { minInliers: 44 });
+    expect((await call('saveShotPreference', 'raw')).json.ok).toBe('raw');
+    expect((await call('saveShotPreference', 'tiff')).json.error).toMatch(/Expected jpeg or raw/);
+    expect((await call('loadShotPreference')).json.ok).toBe('raw');
+    const settings = JSON.parse(readFileSync(join(process.env.SEAMSCOUT_CONFIG_DIR!, 'settings.json'), 'utf8'));
+    expect(settings.prefer).toBe('raw');
+    expect(settings.budget.minInliers).toBe(44);
+
+    const card = tempDir('seamscout-host-raw-');
+    for (const [name, file] of [['A', 'leuvenA.jpg'], ['B', 'leuvenB.jpg']]) {
+      copyFileSync(externalFixture(file), join(card, `${name}.JPG`));
+      writeFileSync(join(card, `${name}.DNG`), dngAround(readFileSync(externalFixture(file)), { sensor: [3000, 2000], orientation: 6 }));
+    }
+    const id = (await call('startCheck', { folder: card })).json.ok as number;
+    const t = `t=${host.token}`;
+    let frame = await get(`/frame/${id}/A.DNG?max=300&${t}`);
+    for (let i = 0; i < 200 && frame.status !== 200; i++) {
+      await new Promise((r) => setTimeout(r, 100));
+      frame = await get(`/frame/${id}/A.DNG?max=300&${t}`);
+    }
+    expect(frame.status).toBe(200);
+    expect(frame.headers['content-type']).toBe('image/jpeg');
+    // The JPEG of the same shot is not a frame of this check.
+    expect((await get(`/frame/${id}/A.JPG?max=300&${t}`)).status).toBe(404);
+    await call('saveShotPreference', 'jpeg');
+  }, 60_000);
+
+  it('shows a RAW frame upright by the RAW file\'s orientation', async () => {
+    const card = tempDir('seamscout-host-raw-upright-');
+    for (const [name, file] of [['A', 'leuvenA.jpg'], ['B', 'leuvenB.jpg']]) writeFileSync(join(card, `${name}.DNG`), dngAround(readFileSync(externalFixture(file)), { sensor: [3000, 2000], orientation: 6 }));
+    const id = (await call('startCheck', { folder: card })).json.ok as number;
+    const t = `t=${host.token}`;
+    let status = 0;
+    let body: Buffer = Buffer.alloc(0);
+    for (let i = 0; i < 200 && status !== 200; i++) {
+      await new Promise((r) => setTimeout(r, 100));
+      const res = await fetch(`${host.url.split('/?')[0]}/frame/${id}/A.DNG?max=300&${t}`);
+      status = res.status;
+      body = Buffer.from(await res.arrayBuffer());
+    }
+    expect(status).toBe(200);
+    // Orientation 6 turns the landscape preview to portrait (TIFF 6.0, Orientation).
+    const meta = await sharp(body).metadata();
+    // The preview is 751 x 563: upright it is 225 x 300 at most 300 px, not the 16 x 8 thumbnail
+    // a TIFF reader finds first in the file.
+    expect([meta.width, meta.height]).toEqual([Math.round((300 * 563) / 751), 300]);
   }, 60_000);
 });

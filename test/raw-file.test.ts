@@ -13,6 +13,7 @@ import { runCheck } from '../src/main/check.js';
 import { decodeForAnalysis } from '../src/main/decode.js';
 import { writeDemoShoot } from '../src/main/demo-writer.js';
 import { readFrameExif } from '../src/main/exif.js';
+import { formatSummary } from '../src/main/summary.js';
 import { tempDir } from './helpers/cli.js';
 import { externalFixture } from './helpers/images.js';
 import { dngAround, writeTiff } from './helpers/tiff-writer.js';
@@ -144,6 +145,13 @@ describe('a card of RAW+JPEG pairs (one shutter press written twice)', () => {
       expect(report.skipped.every((s) => s.code === 'same-shot'), prefer).toBe(true);
       expect(report.skipped[0].reason).toMatch(prefer === 'raw' ? /the RAW file was checked/ : /the JPEG was checked/);
       expect(report.frames[0].width).toBe(prefer === 'raw' ? 4000 : 800);
+      // The second file of a shot is no problem of the card: the clean demo stays ok, and the
+      // terminal summary says which file was checked instead of listing them as not checked.
+      expect(report.rawPlusJpeg, prefer).toEqual({ checked: prefer, shots: jpegs.length });
+      expect(report.verdict, prefer).toBe('ok');
+      const summary = formatSummary(report);
+      expect(summary).not.toContain('Not checked');
+      expect(summary).toContain(`${jpegs.length} shots written as RAW and JPEG: ${prefer === 'raw' ? 'the RAW file of each was checked' : 'the JPEG of each was checked'}`);
     }
   }, 240_000);
 });

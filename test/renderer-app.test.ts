@@ -3,7 +3,7 @@
 // re-judging without re-analysis, keyboard navigation, the detail, export, drop and theme. The
 // report is four single-frame stations judged by core's `judge` with the default budget.
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
-import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat, HostInfo, SeamscoutApi } from '../src/main/app-api.js';
+import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat, HostInfo, SeamscoutApi, ShotPreference } from '../src/main/app-api.js';
 import type { Analysis, MatchBudget, PairMeasure, Report } from '../src/core/report.js';
 import { defaultBudget } from '../src/core/report.js';
 import { judge } from '../src/core/verdicts.js';
@@ -29,7 +29,7 @@ const K12 = 'F1.jpg|F2.jpg', K23 = 'F2.jpg|F3.jpg', K34 = 'F3.jpg|F4.jpg';
 
 interface Call { readonly name: string; readonly args: unknown[] }
 
-function fakeApi(opts: { shell?: HostInfo['shell']; chooseFolder?: string | null; budget?: MatchBudget; exportResult?: () => Promise<string | null>; startCheck?: () => Promise<number>; pathForFile?: (f: File) => string } = {}) {
+function fakeApi(opts: { prefer?: ShotPreference; shell?: HostInfo['shell']; chooseFolder?: string | null; budget?: MatchBudget; exportResult?: () => Promise<string | null>; startCheck?: () => Promise<number>; pathForFile?: (f: File) => string } = {}) {
   const calls: Call[] = [];
   const progress: ((e: CheckProgressEvent) => void)[] = [];
   const done: ((e: CheckDoneEvent) => void)[] = [];
@@ -46,6 +46,8 @@ function fakeApi(opts: { shell?: HostInfo['shell']; chooseFolder?: string | null
     cancelCheck: async (id) => log('cancelCheck', [id], undefined),
     loadBudget: async () => log('loadBudget', [], opts.budget ?? defaultBudget),
     saveBudget: async (b) => log('saveBudget', [b], b),
+    loadShotPreference: async () => log('loadShotPreference', [], opts.prefer ?? 'jpeg'),
+    saveShotPreference: async (p) => log('saveShotPreference', [p], p),
     exportReport: (id: number, format: ExportFormat, budget: MatchBudget) => log('exportReport', [id, format, budget], opts.exportResult ? opts.exportResult() : Promise.resolve(`/home/me/shoot.${format}`)),
     tiePoints: async (id, a, b) => log('tiePoints', [id, a, b], [3500, 3000, 100, 3000, 3700, 1000, 300, 1000, 3900, 5000, 500, 5000]),
     frameUrl: (id, file, maxSide) => `seamscout-frame://frames/${id}/${encodeURIComponent(file)}?max=${maxSide}`,
@@ -126,7 +128,7 @@ describe('start screen', () => {
   it('offers the folder dialog, the recent folders and the demo shoot', async () => {
     const f = fakeApi();
     await mount(f);
-    expect(f.names().sort()).toEqual(['hostInfo', 'loadBudget', 'recentFolders']);
+    expect(f.names().sort()).toEqual(['hostInfo', 'loadBudget', 'loadShotPreference', 'recentFolders']);
     expect(text($('[data-choose-folder]'))).toBe('Open folder…');
     expect([...document.querySelectorAll('[data-recent]')].map((b) => b.getAttribute('data-recent'))).toEqual(['/card/yesterday', '/card/shoot']);
     buttonNamed('Try the demo shoot').click();
@@ -190,6 +192,45 @@ describe('start screen', () => {
     expect(f.names()).not.toContain('startCheck');
     expect(text($('.message'))).toContain('Dropping a folder needs the desktop app');
     expect($('[data-path-form]')).not.toBeNull();
+  });
+});
+
+describe('RAW+JPEG shots', () => {
+  const rawPlusJpeg: Analysis = {
+    ...analysis,
+    skipped: [
+      ...files.map((file) => ({ file: file.replace('.jpg', '.CR3'), code: 'same-shot' as const, reason: `the same shot as ${file} (RAW+JPEG): the JPEG was checked` })),
+      { file: 'F9.jpg', code: 'unreadable' as const, reason: 'cannot be read: permission denied' },
+    ],
+    rawPlusJpeg: { checked: 'jpeg', shots: files.length },
+  };
+
+  it('shows the stored choice on the start screen and saves a new one', async () => {
+    const f = fakeApi({ prefer: 'raw' });
+    await mount(f);
+    const checked = (): string | undefined => document.querySelector<HTMLInputElement>('[data-shot-preference] input:checked')?.value;
+    expect(checked()).toBe('raw');
+    const jpeg = document.querySelector<HTMLInputElement>('[data-shot-preference] input[value="jpeg"]')!;
+    jpeg.checked = true;
+    jpeg.dispatchEvent(new Event('change', { bubbles: true }));
+    await tick();
+    expect(f.calls.at(-1)).toEqual({ name: 'saveShotPreference', args: ['jpeg'] });
+    expect(checked()).toBe('jpeg');
+  });
+
+  it('says which file of each shot was checked, lists only the files really left out, and checks the other on request', async () => {
+    const f = fakeApi();
+    const r = judge(rawPlusJpeg, defaultBudget);
+    await withResults(f, r);
+    expect(text($('[data-raw-plus-jpeg]'))).toContain('4 shots on the card as both RAW and JPEG: the JPEG of each was checked.');
+    expect(text($('[data-skipped] summary'))).toBe('1 file not checked');
+    expect([...document.querySelectorAll('[data-skip]')].map((n) => n.getAttribute('data-skip'))).toEqual(['unreadable']);
+    buttonNamed('Check the RAW files instead').click();
+    await tick();
+    expect(f.calls.slice(-2)).toEqual([
+      { name: 'saveShotPreference', args: ['raw'] },
+      { name: 'startCheck', args: [{ folder: '/card/shoot' }] },
+    ]);
   });
 });
 

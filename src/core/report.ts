@@ -24,6 +24,15 @@ export type FlagCode =
 
 export type SkipCode = 'unreadable' | 'too-large' | 'not-an-image' | 'duplicate' | 'no-preview' | 'same-shot';
 
+/**
+ * Shots written twice by the camera, as a RAW file and a JPEG of one shutter press: how many the
+ * folder holds and which file of each was checked (the other is listed as skipped, 'same-shot').
+ */
+export interface RawPlusJpeg {
+  readonly checked: 'jpeg' | 'raw';
+  readonly shots: number;
+}
+
 /** Problems of the folder as a whole. */
 export type FolderCode = 'no-frames' | 'one-frame';
 
@@ -145,6 +154,8 @@ export interface Analysis {
   readonly stations: readonly StationMeasure[];
   readonly pairs: readonly PairMeasure[];
   readonly skipped: readonly SkippedFile[];
+  /** RAW+JPEG shots and which file of each was checked; absent or null when there are none. */
+  readonly rawPlusJpeg?: RawPlusJpeg | null;
   /** Degrees of the horizon covered (the geometry's horizontalDeg), or null without geometry. */
   readonly sweepDeg: number | null;
   readonly geometry: SequenceGeometry | null;
@@ -201,6 +212,8 @@ export interface Report {
   readonly stations: readonly ReportStation[];
   readonly pairs: readonly ReportPair[];
   readonly skipped: readonly SkippedFile[];
+  /** RAW+JPEG shots and which file of each was checked; absent or null when there are none. */
+  readonly rawPlusJpeg?: RawPlusJpeg | null;
   readonly folderProblems: readonly FolderProblem[];
   /** Holes in the coverage of sets shot in rows or up to a pole; empty for a single sweep. */
   readonly holes?: readonly CoverageHole[];

@@ -1,4 +1,4 @@
-import type { Analysis, FlagCode, Finding, FolderProblem, FrameSettings, MatchBudget, PairMeasure, Report, ReportFrame, ReportPair, ReportStation, SequenceGeometry, StationMeasure, Verdict } from './report.js';
+import type { Analysis, FlagCode, SkippedFile, Finding, FolderProblem, FrameSettings, MatchBudget, PairMeasure, Report, ReportFrame, ReportPair, ReportStation, SequenceGeometry, StationMeasure, Verdict } from './report.js';
 import { coverageHoles } from './coverage-map.js';
 import { reportSchema } from './report.js';
 import { modalPattern, patternOf } from './stations.js';
@@ -25,6 +25,9 @@ const pct = (v: number): string => `${Math.round(100 * v)} %`;
 const signedEv = (v: number): string => `${v >= 0 ? '+' : ''}${v.toFixed(1)} EV`;
 const shutter = (t: number): string => (t >= 0.3 ? `${Number(t.toPrecision(2))} s` : `1/${Math.round(1 / t)} s`);
 
+
+/** The files left out for a reason worth a look: all skipped but the second file of a RAW+JPEG shot. */
+export const notChecked = (skipped: readonly SkippedFile[]): SkippedFile[] => skipped.filter((s) => s.code !== 'same-shot');
 
 function mode<T>(xs: T[]): T | null {
   const counts = new Map<T, number>();
@@ -218,7 +221,8 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
   const problems = [...pairs.map((p) => p.verdict), ...frames.map((f) => f.verdict)];
   return {
     schema: reportSchema,
-    verdict: worst(...verdicts, analysis.skipped.length || folderProblems.length ? 'weak' : 'ok'),
+    // A file left out is worth a look, but not the second file of a RAW+JPEG shot.
+    verdict: worst(...verdicts, notChecked(analysis.skipped).length || folderProblems.length ? 'weak' : 'ok'),
     folder: analysis.folder,
     budget,
     sweepDeg: analysis.sweepDeg,
@@ -234,6 +238,7 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
     stations,
     pairs,
     skipped: analysis.skipped,
+    rawPlusJpeg: analysis.rawPlusJpeg ?? null,
     folderProblems,
     holes,
   };
@@ -250,6 +255,7 @@ export function analysisOf(report: Report): Analysis {
     sweepDeg: report.sweepDeg,
     geometry: report.geometry ?? null,
     skipped: report.skipped,
+    rawPlusJpeg: report.rawPlusJpeg ?? null,
     frames: report.frames.map((f) => {
       const { station: _s, flags: _f, ...rest } = strip(f);
       return rest;

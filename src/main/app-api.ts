@@ -36,6 +36,14 @@ export function expectExportFormat(format: unknown): ExportFormat {
   return format as ExportFormat;
 }
 
+/** Which file of a RAW+JPEG shot (one shutter press written twice) a check reads. */
+export type ShotPreference = 'jpeg' | 'raw';
+
+export function expectShotPreference(prefer: unknown): ShotPreference {
+  if (prefer !== 'jpeg' && prefer !== 'raw') throw new TypeError(`Expected jpeg or raw for the RAW+JPEG preference but received ${String(prefer)}`);
+  return prefer;
+}
+
 export interface HostInfo {
   /** 'desktop' inside the Electron window, 'browser' from the local browser host. */
   readonly shell: 'desktop' | 'browser';
@@ -55,6 +63,9 @@ export interface SeamscoutApi {
   /** The budget stored between runs. */
   loadBudget(): Promise<MatchBudget>;
   saveBudget(budget: MatchBudget): Promise<MatchBudget>;
+  /** Which file of a RAW+JPEG shot checks read, stored between runs (the next check uses it). */
+  loadShotPreference(): Promise<ShotPreference>;
+  saveShotPreference(prefer: ShotPreference): Promise<ShotPreference>;
   /** Writes an export of the report; asks where (desktop: save dialog; browser: a download). Returns the path or name written, or null when cancelled. */
   exportReport(checkId: number, format: ExportFormat, budget: MatchBudget): Promise<string | null>;
   /** Inlier correspondences of a pair of the check, full-resolution px: xa, ya, xb, yb per point. */
@@ -76,6 +87,8 @@ export const channels = {
   cancelCheck: 'seamscout:cancel-check',
   loadBudget: 'seamscout:load-budget',
   saveBudget: 'seamscout:save-budget',
+  loadShotPreference: 'seamscout:load-shot-preference',
+  saveShotPreference: 'seamscout:save-shot-preference',
   exportReport: 'seamscout:export-report',
   tiePoints: 'seamscout:tie-points',
   progress: 'seamscout:on-progress',

@@ -1,6 +1,5 @@
 import { realpath } from 'node:fs/promises';
 import { isAbsolute, relative, resolve, sep } from 'node:path';
-import sharp from 'sharp';
 import { coverageMapSvg } from '../core/coverage-map.js';
 import { reportToCsv } from '../core/exports/csv.js';
 import { reportToDot } from '../core/exports/dot.js';
@@ -10,10 +9,10 @@ import { judge, rejudge } from '../core/verdicts.js';
 import type { AnalysisPool } from './analysis-pool.js';
 import { createAnalysisPool } from './analysis-pool.js';
 import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat } from './app-api.js';
-import { loadStoredBudget } from './budget-store.js';
+import { loadStoredBudget, loadStoredPreference } from './settings-store.js';
 import type { TiePointSet } from './check.js';
 import { runCheck } from './check.js';
-import { pixelLimit } from './decode.js';
+import { frameForDisplay } from './decode.js';
 import { createFeatureCache } from './feature-cache.js';
 import { rememberFolder } from './recent-folders.js';
 
@@ -92,8 +91,9 @@ export class AppService {
     try {
       state.realFolder = await realpath(state.folder);
       if (remember) await rememberFolder(state.folder);
-      const budget = await loadStoredBudget();
+      const [budget, prefer] = await Promise.all([loadStoredBudget(), loadStoredPreference()]);
       const result = await runCheck(state.folder, {
+        prefer,
         pool: this.getPool(),
         cache: createFeatureCache(),
         signal: state.controller.signal,
@@ -167,7 +167,7 @@ export class AppService {
     }
     const rel = relative(s.realFolder, real);
     if (rel === '' || rel.startsWith('..' + sep) || rel === '..' || isAbsolute(rel)) return null;
-    const jpeg = await sharp(real, { limitInputPixels: pixelLimit }).autoOrient().resize(side, side, { fit: 'inside' }).jpeg({ quality: 82 }).toBuffer();
+    const jpeg = await frameForDisplay(real, side);
     if (this.frameCache.size > 200) this.frameCache.clear();
     this.frameCache.set(key, jpeg);
     return jpeg;

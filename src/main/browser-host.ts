@@ -8,7 +8,7 @@ import type { MatchBudget } from '../core/report.js';
 import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent } from './app-api.js';
 import { expectExportFormat } from './app-api.js';
 import { AppService } from './app-service.js';
-import { loadStoredBudget, storeBudget } from './budget-store.js';
+import { loadStoredBudget, loadStoredPreference, storeBudget, storePreference } from './settings-store.js';
 import { readRecentFolders } from './recent-folders.js';
 
 export const contentSecurityPolicy =
@@ -105,6 +105,8 @@ export async function startBrowserHost(options: BrowserHostOptions): Promise<Bro
     cancelCheck: ([id]) => service.cancelCheck(Number(id)),
     loadBudget: () => loadStoredBudget(),
     saveBudget: ([b]) => storeBudget((b ?? {}) as Record<string, unknown>),
+    loadShotPreference: () => loadStoredPreference(),
+    saveShotPreference: ([p]) => storePreference(p),
     exportContent: ([id, format, budget]) => {
       return service.exportReport(Number(id), expectExportFormat(format), budget as MatchBudget);
     },

@@ -20,7 +20,7 @@ import { readFrameExif } from './exif.js';
 import type { FrameAnalysis, PairAnalysis } from './frame-analysis.js';
 import type { ScannedFile } from './scan.js';
 import { scanFolder } from './scan.js';
-import type { ShotPreference } from './shot-pairs.js';
+import type { ShotPreference } from './app-api.js';
 import { oneFilePerShot } from './shot-pairs.js';
 import { median } from '../core/median.js';
 
@@ -526,7 +526,7 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
         evOffsets: st.offsets,
         groupedBy: st.groupedBy,
       }));
-      return { analysis: { folder, frames: frameMeasures, stations: stationMeasures, pairs, skipped: [...skipped], sweepDeg: geometry?.horizontalDeg ?? null, geometry }, tiePoints, peakFramesHeld: peakHeld };
+      return { analysis: { folder, frames: frameMeasures, stations: stationMeasures, pairs, skipped: [...skipped], rawPlusJpeg: shots.rawPlusJpeg, sweepDeg: geometry?.horizontalDeg ?? null, geometry }, tiePoints, peakFramesHeld: peakHeld };
     }
   } finally {
     if (!options.pool) await pool.destroy();

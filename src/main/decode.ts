@@ -1,5 +1,7 @@
+import type { Sharp } from 'sharp';
 import sharp from 'sharp';
 import type { GrayImage } from '../core/image.js';
+import type { RawPreview } from './raw-file.js';
 import { isRawFile, orient, readRawPreview } from './raw-file.js';
 
 /** Largest image sharp is allowed to decode (a guard against decompression bombs): 200 MP. */
@@ -17,6 +19,22 @@ export interface DecodedFrame {
 }
 
 /**
+ * A frame as sharp reads it, to be turned upright: a RAW file through its largest embedded JPEG
+ * preview (and the RAW's own orientation and sensor size), any other image as it is.
+ */
+async function openFrame(path: string): Promise<{ source: Sharp; upright: Sharp; raw: RawPreview | null }> {
+  const raw = isRawFile(path) ? await readRawPreview(path) : null;
+  const source = sharp(raw ? raw.jpeg : path, { limitInputPixels: pixelLimit, failOn: 'error' });
+  return { source, upright: raw && raw.orientation !== null ? orient(source, raw.orientation) : source.autoOrient(), raw };
+}
+
+/** A frame upright at most `maxSide` px, as a JPEG to show (RAW files through their preview). */
+export async function frameForDisplay(path: string, maxSide: number): Promise<Buffer> {
+  const { upright } = await openFrame(path);
+  return upright.resize(maxSide, maxSide, { fit: 'inside' }).timeout({ seconds: decodeTimeLimit }).jpeg({ quality: 82 }).toBuffer();
+}
+
+/**
  * Decodes a file to greyscale at most `maxSide` pixels on its longer side, upright by its EXIF
  * orientation. JPEG shrinks on load by 1/2, 1/4 or 1/8, so a size at one of those ratios is far
  * cheaper than one just above it.
@@ -24,9 +42,7 @@ export interface DecodedFrame {
 export async function decodeForAnalysis(path: string, maxSide: number): Promise<DecodedFrame> {
   // A RAW file is read through its largest embedded JPEG preview, turned upright by the RAW's own
   // orientation; its full size is the sensor's, so geometry maps back to sensor pixels.
-  const raw = isRawFile(path) ? await readRawPreview(path) : null;
-  const source = sharp(raw ? raw.jpeg : path, { limitInputPixels: pixelLimit, failOn: 'error' });
-  const img = raw && raw.orientation !== null ? orient(source, raw.orientation) : source.autoOrient();
+  const { source, upright: img, raw } = await openFrame(path);
   const meta = await source.metadata();
   if (!meta.width || !meta.height) throw new Error(`Expected an image with a size for ${path} but received none`);
   const swap = (raw?.orientation ?? meta.orientation ?? 1) >= 5;

@@ -8,7 +8,7 @@ import type { IpcMainInvokeEvent } from 'electron';
 import type { MatchBudget } from '../core/report.js';
 import { channels, expectExportFormat, frameProtocol } from './app-api.js';
 import { AppService } from './app-service.js';
-import { loadStoredBudget, storeBudget } from './budget-store.js';
+import { loadStoredBudget, loadStoredPreference, storeBudget, storePreference } from './settings-store.js';
 import { ensureDemoShoot } from './demo-shoot.js';
 import { readRecentFolders } from './recent-folders.js';
 import type { HardenableContents, HardenableSession } from './window-options.js';
@@ -77,6 +77,8 @@ app.whenReady().then(async () => {
   handle(channels.cancelCheck, (id) => service.cancelCheck(Number(id)));
   handle(channels.loadBudget, () => loadStoredBudget());
   handle(channels.saveBudget, (b) => storeBudget((b ?? {}) as Record<string, unknown>));
+  handle(channels.loadShotPreference, () => loadStoredPreference());
+  handle(channels.saveShotPreference, (p) => storePreference(p));
   handle(channels.tiePoints, (id, a, b) => service.tiePoints(Number(id), String(a), String(b)));
   handle(channels.exportReport, async (id, format, budget) => {
     const { text, name } = service.exportReport(Number(id), expectExportFormat(format), budget as MatchBudget);

@@ -1,4 +1,5 @@
 import type { Report, Verdict } from '../core/report.js';
+import { notChecked } from '../core/verdicts.js';
 
 const word: Record<Verdict, string> = { ok: 'ok', weak: 'WEAK', reshoot: 'RESHOOT' };
 const mark: Record<Verdict, string> = { ok: '  ', weak: '~ ', reshoot: '! ' };
@@ -42,19 +43,29 @@ export function formatSummary(report: Report): string {
     out.push('');
     for (const p of report.folderProblems) out.push(`! ${p.advice}`);
   }
-  if (report.skipped.length) {
+  const left = notChecked(report.skipped);
+  if (left.length) {
     out.push('', 'Not checked:');
-    for (const s of report.skipped) out.push(`! ${s.file}: ${s.reason}`);
+    for (const s of left) out.push(`! ${s.file}: ${s.reason}`);
   }
+  if (report.rawPlusJpeg) out.push('', rawPlusJpegLine(report.rawPlusJpeg));
   const advice = [...new Set([...report.pairs.flatMap((p) => p.advice), ...report.frames.flatMap((f) => f.advice), ...(report.holes ?? []).map((h) => h.advice)])];
   out.push('');
   if (report.verdict === 'ok') out.push('Verdict: ok. Every pair and frame is within the match budget.');
   else {
-    const notChecked = report.skipped.length ? `, ${report.skipped.length} file${report.skipped.length === 1 ? '' : 's'} not checked` : '';
-    out.push(`Verdict: ${word[report.verdict]}. ${report.counts.reshoot} to reshoot, ${report.counts.weak} weak${notChecked}.`);
+    const leftOut = left.length ? `, ${left.length} file${left.length === 1 ? '' : 's'} not checked` : '';
+    out.push(`Verdict: ${word[report.verdict]}. ${report.counts.reshoot} to reshoot, ${report.counts.weak} weak${leftOut}.`);
     if (advice.length) out.push('', 'What to do:', ...advice.map((a) => `  - ${a}`));
   }
   return out.join('\n') + '\n';
+}
+
+/** One line on the shots written as RAW and JPEG: which file of each was checked, and how to check the other. */
+export function rawPlusJpegLine(r: NonNullable<Report['rawPlusJpeg']>): string {
+  const shots = `${r.shots} shot${r.shots === 1 ? '' : 's'} written as RAW and JPEG`;
+  return r.checked === 'raw'
+    ? `${shots}: the RAW file of each was checked, through its embedded preview (--prefer jpeg checks the JPEGs).`
+    : `${shots}: the JPEG of each was checked (--prefer raw checks the RAW files).`;
 }
 
 /** A one-line progress bar for a terminal. */

@@ -1,6 +1,6 @@
 // The page's controller: holds the state (screen, report, budget, selection), talks to main only
 // through the SeamscoutApi object, and hands plain data to the views, which build DOM from it.
-import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat, HostInfo, SeamscoutApi } from '../main/app-api.js';
+import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat, HostInfo, SeamscoutApi, ShotPreference } from '../main/app-api.js';
 import type { MatchBudget, Report } from '../core/report.js';
 import { defaultBudget } from '../core/report.js';
 import { rejudge } from '../core/verdicts.js';
@@ -72,6 +72,8 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   let message: StartModel['message'] = null;
   let budget: MatchBudget = defaultBudget;
   let budgetEdited = false;
+  let prefer: ShotPreference = 'jpeg';
+  let preferChosen = false;
   let running: Running | null = null;
   let early: ({ kind: 'progress'; e: CheckProgressEvent } | { kind: 'done'; e: CheckDoneEvent } | { kind: 'partial'; e: CheckPartialEvent })[] = [];
   let checkId: number | null = null;
@@ -156,13 +158,13 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   }
 
   function startModel(): StartModel {
-    return { shell: host?.shell ?? null, recent, showPathField, canDrop: typeof bridge.pathForFile === 'function', message, hasResults: report !== null };
+    return { shell: host?.shell ?? null, recent, showPathField, canDrop: typeof bridge.pathForFile === 'function', message, hasResults: report !== null, prefer };
   }
 
   function fillResults(): void {
     if (!report) return;
     const hadFocus = stripSlot.contains(doc.activeElement) ? doc.activeElement?.getAttribute('data-pair') ?? null : null;
-    replaceChildren(summarySlot, renderSummary(report));
+    replaceChildren(summarySlot, renderSummary(report, { switchPreference: running ? undefined : switchPreference }));
     // While the detail is open the strip is out of the document, so that [data-pair="a|b"] names
     // one element only (the detail); thumbnails are kept and come back without reloading.
     if (detail) replaceChildren(stripSlot);
@@ -398,6 +400,31 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     }
   }
 
+  // Which file of a RAW+JPEG shot to check.
+  async function setPrefer(p: ShotPreference): Promise<boolean> {
+    prefer = p;
+    preferChosen = true;
+    try {
+      await api.saveShotPreference(p);
+      return true;
+    } catch (e) {
+      message = { kind: 'error', text: `The choice of RAW or JPEG could not be saved: ${messageOf(e)}` };
+      if (screen === 'start') render();
+      return false;
+    }
+  }
+
+  /** Checks the shown folder again, reading the other file of each RAW+JPEG shot. */
+  async function switchPreference(): Promise<void> {
+    if (!report?.rawPlusJpeg || running) return;
+    const folder = report.folder;
+    if (!(await setPrefer(report.rawPlusJpeg.checked === 'raw' ? 'jpeg' : 'raw'))) {
+      setBudgetStatus(message?.text ?? '');
+      return;
+    }
+    openFolder(folder);
+  }
+
   // Start screen.
   function goStart(): void {
     if (screen === 'progress') return;
@@ -430,6 +457,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     },
     openFolder,
     tryDemo: (): void => void startCheck({ demo: true }, 'the demo shoot'),
+    setPrefer: (p: ShotPreference): void => void setPrefer(p),
     backToResults: (): void => {
       if (!report) return;
       screen = 'results';
@@ -526,6 +554,9 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     }, () => undefined),
     api.recentFolders().then((r) => {
       recent = r;
+    }, () => undefined),
+    api.loadShotPreference().then((p) => {
+      if (!preferChosen) prefer = p;
     }, () => undefined),
     api.loadBudget().then((b) => {
       if (budgetEdited) return;

@@ -1,5 +1,6 @@
 // The start screen: open a folder (dialog, typed path in the browser shell, or drop), recent
-// folders, and the demo shoot.
+// folders, the demo shoot, and which file of a RAW+JPEG shot to check.
+import type { ShotPreference } from '../main/app-api.js';
 import { button, el } from './dom.js';
 import { folderIcon } from './icons.js';
 
@@ -12,6 +13,8 @@ export interface StartModel {
   readonly canDrop: boolean;
   readonly message: { readonly kind: 'info' | 'error'; readonly text: string } | null;
   readonly hasResults: boolean;
+  /** Which file of a shot written as RAW and JPEG the next check reads. */
+  readonly prefer: ShotPreference;
 }
 
 export interface StartActions {
@@ -19,6 +22,25 @@ export interface StartActions {
   readonly openFolder: (path: string) => void;
   readonly tryDemo: () => void;
   readonly backToResults: () => void;
+  readonly setPrefer: (prefer: ShotPreference) => void;
+}
+
+/** The choice of which file of a RAW+JPEG shot to check: two radio buttons. */
+function preferenceChoice(prefer: ShotPreference, setPrefer: (p: ShotPreference) => void): HTMLElement {
+  const option = (value: ShotPreference, label: string): HTMLElement => {
+    const input = el('input', { type: 'radio', name: 'prefer', value, checked: prefer === value });
+    input.addEventListener('change', () => {
+      if (input.checked) setPrefer(value);
+    });
+    return el('label', { class: 'choice' }, input, label);
+  };
+  return el(
+    'fieldset',
+    { class: 'shot-preference', 'data-shot-preference': '' },
+    el('legend', {}, 'Shots on the card as both RAW and JPEG'),
+    option('jpeg', 'Check the JPEG'),
+    option('raw', 'Check the RAW file (through its embedded preview)'),
+  );
 }
 
 export function renderStart(m: StartModel, act: StartActions): HTMLElement {
@@ -50,6 +72,7 @@ export function renderStart(m: StartModel, act: StartActions): HTMLElement {
       { class: 'drop-zone', 'data-drop-zone': '' },
       m.canDrop ? 'Or drop a folder anywhere on this window.' : 'Dropping a folder needs the desktop app: here, type its path or use Open folder….',
     ),
+    preferenceChoice(m.prefer, act.setPrefer),
     m.recent.length
       ? el(
           'section',

@@ -1,6 +1,7 @@
 // The summary header: the numbers a photographer reads first, large, and the overall verdict.
 import type { Report, Verdict } from '../core/report.js';
-import { el } from './dom.js';
+import { notChecked } from '../core/verdicts.js';
+import { button, el } from './dom.js';
 import { plural } from './format.js';
 import { verdictBadge, verdictIcon } from './icons.js';
 
@@ -14,8 +15,26 @@ function stat(name: string, value: string, label: string, icon: SVGSVGElement | 
   return el('div', { class: `stat stat-${name}`, 'data-stat': name }, el('dt', {}, icon, label), el('dd', { class: 'numeral' }, value));
 }
 
-export function renderSummary(report: Report): HTMLElement {
+export interface SummaryActions {
+  /** Checks the folder again reading the other file of each RAW+JPEG shot. */
+  readonly switchPreference?: () => void;
+}
+
+/** Which file of each RAW+JPEG shot was checked, with a button to check the other. */
+function rawPlusJpegNote(r: NonNullable<Report['rawPlusJpeg']>, switchPreference: (() => void) | undefined): HTMLElement {
+  const shots = `${plural(r.shots, 'shot')} on the card as both RAW and JPEG:`;
+  const which = r.checked === 'raw' ? 'the RAW file of each was checked, through its embedded preview.' : 'the JPEG of each was checked.';
+  return el(
+    'p',
+    { class: 'raw-plus-jpeg', 'data-raw-plus-jpeg': r.checked },
+    `${shots} ${which} `,
+    switchPreference ? button({ class: 'small', 'data-switch-preference': '' }, switchPreference, r.checked === 'raw' ? 'Check the JPEGs instead' : 'Check the RAW files instead') : null,
+  );
+}
+
+export function renderSummary(report: Report, act: SummaryActions = {}): HTMLElement {
   const c = report.counts;
+  const left = notChecked(report.skipped);
   const folderName = report.folder.split(/[\\/]/).filter(Boolean).pop() ?? report.folder;
   return el(
     'section',
@@ -41,12 +60,13 @@ export function renderSummary(report: Report): HTMLElement {
     (report.folderProblems ?? []).length
       ? el('ul', { class: 'folder-problems', 'data-folder-problems': '' }, report.folderProblems.map((p) => el('li', { 'data-folder-problem': p.code }, verdictIcon('weak', 20), ` ${p.advice}`)))
       : null,
-    report.skipped.length
+    report.rawPlusJpeg ? rawPlusJpegNote(report.rawPlusJpeg, act.switchPreference) : null,
+    left.length
       ? el(
           'details',
-          { class: 'skipped', 'data-skipped': report.skipped.length },
-          el('summary', {}, `${plural(report.skipped.length, 'file')} skipped`),
-          el('ul', {}, report.skipped.map((s) => el('li', { 'data-skip': s.code }, el('span', { class: 'frame-name' }, s.file), `: ${s.reason}`))),
+          { class: 'skipped', 'data-skipped': left.length },
+          el('summary', {}, `${plural(left.length, 'file')} not checked`),
+          el('ul', {}, left.map((s) => el('li', { 'data-skip': s.code }, el('span', { class: 'frame-name' }, s.file), `: ${s.reason}`))),
         )
       : null,
   );

@@ -1,0 +1,53 @@
+import { mkdir } from 'node:fs/promises';
+import { dirname } from 'node:path';
+import { resolveBudget } from '../core/budget.js';
+import type { MatchBudget } from '../core/report.js';
+import type { ShotPreference } from './app-api.js';
+import { expectShotPreference } from './app-api.js';
+import type { SettingsFile } from './settings.js';
+import { defaultSettingsPath, readSettings } from './settings.js';
+import { writeFileAtomic } from './write-file.js';
+
+/** The budget from the user's settings file (defaults where it says nothing or is unreadable). */
+export async function loadStoredBudget(): Promise<MatchBudget> {
+  try {
+    return resolveBudget((await readSettings(undefined)).budget ?? {});
+  } catch {
+    return resolveBudget();
+  }
+}
+
+/** Which file of a RAW+JPEG shot the user's settings file says to check ("jpeg" where it says nothing or is unreadable). */
+export async function loadStoredPreference(): Promise<ShotPreference> {
+  try {
+    return (await readSettings(undefined)).prefer ?? 'jpeg';
+  } catch {
+    return 'jpeg';
+  }
+}
+
+/** Replaces one section of the user's settings file, keeping the others (a broken file is started afresh). */
+async function storeSection(section: keyof SettingsFile, value: unknown): Promise<void> {
+  let settings: Record<string, unknown>;
+  try {
+    settings = { ...(await readSettings(undefined)) };
+  } catch {
+    settings = {};
+  }
+  const path = defaultSettingsPath();
+  await mkdir(dirname(path), { recursive: true });
+  await writeFileAtomic(path, JSON.stringify({ ...settings, [section]: value }, null, 2) + '\n', true);
+}
+
+/** Checks and stores a budget in the user's settings file, keeping its other sections. */
+export async function storeBudget(budget: Record<string, unknown>): Promise<MatchBudget> {
+  const checked = resolveBudget(budget);
+  await storeSection('budget', checked);
+  return checked;
+}
+
+/** Checks and stores which file of a RAW+JPEG shot to check, keeping the file's other sections. */
+export async function storePreference(prefer: unknown): Promise<ShotPreference> {
+  await storeSection('prefer', expectShotPreference(prefer));
+  return prefer as ShotPreference;
+}
