@@ -40,20 +40,6 @@ describe('a RAW file read through its preview', () => {
   });
 });
 
-/** An ISO base media box: 32-bit size, four-letter type, payload. */
-function box(type: string, ...payload: Uint8Array[]): Uint8Array {
-  const n = 8 + payload.reduce((t, p) => t + p.length, 0);
-  const out = new Uint8Array(n);
-  new DataView(out.buffer).setUint32(0, n, false);
-  out.set(new TextEncoder().encode(type), 4);
-  let o = 8;
-  for (const p of payload) {
-    out.set(p, o);
-    o += p.length;
-  }
-  return out;
-}
-
 describe('the settings of a RAW file', () => {
   it('are read from its EXIF IFD (TIFF 6.0 / EXIF 2.3 tags: ExposureTime, FNumber, ISO)', async () => {
     const file = writeTiff(true, [
@@ -65,40 +51,6 @@ describe('the settings of a RAW file', () => {
       writeFileSync(join(dir, `x.${ending}`), file);
       expect((await readFrameExif(join(dir, `x.${ending}`))).settings, ending).toMatchObject({ exposureTime: 1 / 250, fNumber: 8, iso: 200 });
     }
-  });
-});
-
-describe('RAW containers that are not TIFF', () => {
-  it('reads a CR3 (ISO base media file, brand crx) through its largest JPEG, skipping lossless and stray markers', async () => {
-    const small = new Uint8Array(await sharp({ create: { width: 160, height: 120, channels: 3, background: '#808080' } }).jpeg().toBuffer());
-    const big = new Uint8Array(await sharp(Buffer.from(preview)).withMetadata({ orientation: 8 }).jpeg({ quality: 90 }).toBuffer());
-    // Sensor data: noise with a stray start-of-image marker in it.
-    const noise = Uint8Array.from({ length: 4096 }, (_, k) => (k * 2654435761) >>> 24);
-    noise.set([0xff, 0xd8, 0xff, 0xe0, 0x00, 0x10], 100);
-    const file = new Uint8Array([...box('ftyp', new TextEncoder().encode('crx '), new Uint8Array(8)), ...box('uuid', new Uint8Array(16), small), ...box('mdat', noise, big)]);
-    const dir = tempDir('seamscout-cr3-');
-    writeFileSync(join(dir, 'IMG_0001.CR3'), file);
-    writeFileSync(join(dir, 'big.jpg'), big);
-    const raw = await decodeForAnalysis(join(dir, 'IMG_0001.CR3'), 600);
-    const ref = await decodeForAnalysis(join(dir, 'big.jpg'), 600);
-    // Upright by the preview's own EXIF orientation (8: turned a quarter anticlockwise).
-    expect([raw.image.width, raw.image.height, raw.fullWidth, raw.fullHeight]).toEqual([ref.image.width, ref.image.height, ref.fullWidth, ref.fullHeight]);
-    expect(raw.image.height).toBeGreaterThan(raw.image.width);
-    expect(Buffer.from(raw.image.data).equals(Buffer.from(ref.image.data))).toBe(true);
-  });
-
-  it('reads a RAF through the JPEG its header points to', async () => {
-    const header = new Uint8Array(160);
-    header.set(new TextEncoder().encode('FUJIFILMCCD-RAW 0201FF393601'), 0);
-    const jpegAt = 160;
-    new DataView(header.buffer).setUint32(84, jpegAt, false);
-    new DataView(header.buffer).setUint32(88, preview.length, false);
-    const dir = tempDir('seamscout-raf-');
-    writeFileSync(join(dir, 'DSCF0001.RAF'), new Uint8Array([...header, ...preview, ...new Uint8Array(512)]));
-    const raw = await decodeForAnalysis(join(dir, 'DSCF0001.RAF'), 600);
-    expect([raw.fullWidth, raw.fullHeight]).toEqual([751, 563]);
-    writeFileSync(join(dir, 'BROKEN.RAF'), header.subarray(0, 100));
-    await expect(decodeForAnalysis(join(dir, 'BROKEN.RAF'), 600)).rejects.toThrow(/no usable preview/);
   });
 });
 

@@ -203,18 +203,3 @@ export function scanForJpegs(bytes: Uint8Array): EmbeddedJpeg[] {
   }
   return out;
 }
-
-/**
- * The preview of a Fujifilm RAF file: its header names "FUJIFILMCCD-RAW" and, at bytes 84 and 88,
- * the offset and length of the embedded JPEG, big-endian (the layout as the format's public
- * descriptions give it; from memory, checked here only against files built to it).
- */
-export function rafPreview(bytes: Uint8Array): EmbeddedJpeg | null {
-  const magic = 'FUJIFILMCCD-RAW';
-  if (bytes.length < 92 || String.fromCharCode(...bytes.subarray(0, magic.length)) !== magic) return null;
-  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
-  const offset = view.getUint32(84, false), length = view.getUint32(88, false);
-  if (offset + length > bytes.length) return null;
-  const e = jpegExtent(bytes, offset);
-  return e ? { offset, length, width: e.width, height: e.height } : null;
-}

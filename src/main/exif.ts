@@ -1,5 +1,6 @@
 import exifr from 'exifr';
 import type { FrameSettings } from '../core/report.js';
+import { readRawExifBlocks } from './raw-file.js';
 
 export interface FrameExif {
   readonly settings: FrameSettings;
@@ -10,11 +11,31 @@ export interface FrameExif {
   readonly orientation: number | null;
 }
 
-const tags = [
-  'ExposureTime', 'FNumber', 'ISO', 'ISOSpeedRatings', 'PhotographicSensitivity', 'ExposureCompensation',
-  'FocalLength', 'FocalLengthIn35mmFormat', 'WhiteBalance', 'Make', 'Model', 'DateTimeOriginal',
-  'SubSecTimeOriginal', 'Orientation',
-];
+/** The tags a check reads, by name and by number (EXIF 2.32, CIPA DC-008, section 4.6; TIFF 6.0). */
+const tagIds: Record<string, number> = {
+  ExposureTime: 0x829a, FNumber: 0x829d, ISO: 0x8827, ExposureCompensation: 0x9204, FocalLength: 0x920a,
+  FocalLengthIn35mmFormat: 0xa405, WhiteBalance: 0xa403, Make: 0x010f, Model: 0x0110, DateTimeOriginal: 0x9003,
+  SubSecTimeOriginal: 0x9291, Orientation: 0x0112,
+};
+const tags = [...Object.keys(tagIds), 'ISOSpeedRatings', 'PhotographicSensitivity'];
+
+/**
+ * The tags of EXIF blocks cut out of a RAW container (TIFF blocks, or a JPEG's head), read by
+ * number: a block holding the EXIF IFD as its first IFD names its tags as IFD0's would.
+ */
+async function tagsOfBlocks(blocks: readonly Uint8Array[]): Promise<Record<string, unknown>> {
+  const out: Record<string, unknown> = {};
+  for (const block of blocks) {
+    let got: Record<string, unknown>;
+    try {
+      got = (await exifr.parse(Buffer.from(block), { translateKeys: false, reviveValues: false, translateValues: false, mergeOutput: true })) ?? {};
+    } catch {
+      continue;
+    }
+    for (const [name, id] of Object.entries(tagIds)) if (got[id] !== undefined && out[name] === undefined) out[name] = got[id];
+  }
+  return out;
+}
 
 /** A positive finite number from whatever EXIF holds (numbers, numeric strings, one-element arrays), else null. */
 function positive(v: unknown, max = Infinity): number | null {
@@ -51,7 +72,8 @@ export function parseExifDate(value: unknown, subSec: unknown): { ms: number; is
 export async function readFrameExif(path: string): Promise<FrameExif> {
   let raw: Record<string, unknown>;
   try {
-    raw = (await exifr.parse(path, { pick: tags, reviveValues: false, translateValues: false })) ?? {};
+    const blocks = await readRawExifBlocks(path);
+    raw = blocks ? await tagsOfBlocks(blocks) : (await exifr.parse(path, { pick: tags, reviveValues: false, translateValues: false })) ?? {};
   } catch {
     raw = {};
   }

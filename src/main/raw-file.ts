@@ -2,8 +2,11 @@ import { closeSync, fstatSync, openSync, readSync } from 'node:fs';
 import { readFile } from 'node:fs/promises';
 import { extname } from 'node:path';
 import type { Sharp } from 'sharp';
-import type { ByteSource, EmbeddedJpeg } from '../core/raw-preview.js';
-import { largestPreview, rafPreview, rawLayout, scanForJpegs } from '../core/raw-preview.js';
+import type { ByteRange } from '../core/cr3-layout.js';
+import { cr3Layout } from '../core/cr3-layout.js';
+import { rafLayout } from '../core/raf-layout.js';
+import type { ByteSource } from '../core/raw-preview.js';
+import { largestPreview, rawLayout, scanForJpegs } from '../core/raw-preview.js';
 
 /**
  * Endings of the camera RAW formats whose embedded JPEG preview is read: DNG and the makers'
@@ -20,8 +23,8 @@ export interface RawPreview {
   /** The embedded JPEG stream, as stored. */
   readonly jpeg: Buffer;
   /**
-   * TIFF Orientation of a TIFF-based RAW file (its preview usually carries none); null for the
-   * containers whose preview carries its own EXIF orientation (CR3, RAF).
+   * TIFF Orientation of the RAW file (TIFF-based files and CR3, whose previews carry none); null
+   * where the preview carries its own EXIF orientation (RAF).
    */
   readonly orientation: number | null;
   /** The sensor's image size as stored (before orientation), or null when the file does not say. */
@@ -33,23 +36,90 @@ export interface RawPreview {
 export async function readRawPreview(path: string): Promise<RawPreview> {
   const ending = extname(path).toLowerCase();
   if (unreadRawExtensions.has(ending)) throw new Error(`no usable preview: the ${ending} container is not read yet`);
-  if (ending !== '.raf' && ending !== '.cr3') return tiffBasedPreview(path);
-  const bytes = await readFile(path);
-  const u8 = new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.length);
-  const cut = (p: EmbeddedJpeg): Buffer => Buffer.from(bytes.subarray(p.offset, p.offset + p.length));
-  if (ending === '.raf') {
-    const p = rafPreview(u8);
-    if (!p) throw new Error(`no usable preview in ${path}`);
-    return { jpeg: cut(p), orientation: null, sensorWidth: null, sensorHeight: null };
-  }
-  // CR3, an ISO base media file ('ftyp', brand 'crx '): its previews are plain JPEG streams in its boxes.
-  if (!(bytes.length > 12 && bytes.toString('latin1', 4, 12) === 'ftypcrx ')) throw new Error(`no usable preview in ${path}: not a CR3 file`);
-  const best = largestPreview({ previews: scanForJpegs(u8), sensorWidth: null, sensorHeight: null, orientation: 1 });
-  if (!best) throw new Error(`no usable preview in ${path}`);
-  return { jpeg: cut(best), orientation: null, sensorWidth: null, sensorHeight: null };
+  if (ending === '.cr3') return cr3Preview(path);
+  if (ending === '.raf') return rafFilePreview(path);
+  return withFile(path, (fd, src) => {
+    const layout = rawLayout(src);
+    const best = largestPreview(layout);
+    if (!best) throw new Error(`no usable preview in ${path}`);
+    return {
+      jpeg: readRange(fd, best),
+      orientation: layout.orientation >= 1 && layout.orientation <= 8 ? layout.orientation : 1,
+      sensorWidth: layout.sensorWidth,
+      sensorHeight: layout.sensorHeight,
+    };
+  });
 }
 
-/** Bytes of a file read a page at a time as they are asked for (IFDs are small and scattered). */
+/**
+ * The blocks of a RAW container that hold its EXIF, for a reader that cannot open the container
+ * itself: CR3's IFD0 and EXIF IFD (TIFF blocks), the head of RAF's embedded JPEG (which carries
+ * the EXIF). Null for the TIFF-based files, which EXIF readers open as they are.
+ */
+export async function readRawExifBlocks(path: string): Promise<Uint8Array[] | null> {
+  const ending = extname(path).toLowerCase();
+  if (ending !== '.cr3' && ending !== '.raf') return null;
+  return withFile(path, (fd, src) => {
+    if (ending === '.cr3') {
+      const layout = cr3Layout(src);
+      return layout ? [layout.ifd0, layout.exifIfd].filter((r): r is ByteRange => r !== null).map((r) => readRange(fd, r)) : [];
+    }
+    const layout = rafLayout(src);
+    // EXIF sits in the JPEG's first segment (APP1, at most 64 KiB).
+    return layout && layout.jpeg.offset + 4 <= src.length ? [readRange(fd, { offset: layout.jpeg.offset, length: Math.min(layout.jpeg.length, 128 * 1024, src.length - layout.jpeg.offset) })] : [];
+  });
+}
+
+/** Runs `work` on an open file and a paged view of its bytes, closing it after. */
+async function withFile<T>(path: string, work: (fd: number, src: ByteSource) => T): Promise<T> {
+  const fd = openSync(path, 'r');
+  try {
+    return work(fd, pagedSource(fd, fstatSync(fd).size));
+  } finally {
+    closeSync(fd);
+  }
+}
+
+function readRange(fd: number, r: ByteRange): Buffer {
+  const out = Buffer.alloc(r.length);
+  readSync(fd, out, 0, r.length, r.offset);
+  return out;
+}
+
+/**
+ * A CR3 file's largest preview from its boxes, upright by CMT1's orientation; where the boxes
+ * name none (a layout not described yet), the JPEG streams found by scanning the whole file.
+ */
+async function cr3Preview(path: string): Promise<RawPreview> {
+  const found = await withFile(path, (fd, src) => {
+    const layout = cr3Layout(src);
+    if (!layout) throw new Error(`no usable preview in ${path}: not a CR3 file`);
+    const best = largestPreview({ previews: layout.previews, sensorWidth: null, sensorHeight: null, orientation: 1 });
+    return best ? { jpeg: readRange(fd, best), orientation: layout.orientation, sensorWidth: layout.width, sensorHeight: layout.height } : null;
+  });
+  if (found) return found;
+  const bytes = await readFile(path);
+  const best = largestPreview({ previews: scanForJpegs(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.length)), sensorWidth: null, sensorHeight: null, orientation: 1 });
+  if (!best) throw new Error(`no usable preview in ${path}`);
+  // A stream found so carries its own EXIF orientation, if any.
+  return { jpeg: Buffer.from(bytes.subarray(best.offset, best.offset + best.length)), orientation: null, sensorWidth: null, sensorHeight: null };
+}
+
+/**
+ * A RAF file's embedded JPEG, upright by its own EXIF orientation; the sensor's size from the
+ * metadata block where it has the preview's shape (within 3 %), else the preview's.
+ */
+async function rafFilePreview(path: string): Promise<RawPreview> {
+  return withFile(path, (fd, src) => {
+    const layout = rafLayout(src);
+    if (!layout?.preview) throw new Error(`no usable preview in ${path}`);
+    const p = layout.preview, w = layout.sensorWidth, h = layout.sensorHeight;
+    const sameShape = w !== null && h !== null && Math.abs((w / h) / (p.width / p.height) - 1) < 0.03;
+    return { jpeg: readRange(fd, p), orientation: null, sensorWidth: sameShape ? w : null, sensorHeight: sameShape ? h : null };
+  });
+}
+
+/** Bytes of a file read a page at a time as they are asked for (IFDs and boxes are small and scattered). */
 function pagedSource(fd: number, size: number): ByteSource {
   const pageSize = 64 * 1024;
   const pages = new Map<number, Buffer>();
@@ -66,26 +136,6 @@ function pagedSource(fd: number, size: number): ByteSource {
       return page[offset - k * pageSize];
     },
   };
-}
-
-/** A TIFF-based RAW file's largest preview, reading its IFDs and the preview's bytes, not the sensor data. */
-async function tiffBasedPreview(path: string): Promise<RawPreview> {
-  const fd = openSync(path, 'r');
-  try {
-    const layout = rawLayout(pagedSource(fd, fstatSync(fd).size));
-    const best = largestPreview(layout);
-    if (!best) throw new Error(`no usable preview in ${path}`);
-    const jpeg = Buffer.alloc(best.length);
-    readSync(fd, jpeg, 0, best.length, best.offset);
-    return {
-      jpeg,
-      orientation: layout.orientation >= 1 && layout.orientation <= 8 ? layout.orientation : 1,
-      sensorWidth: layout.sensorWidth,
-      sensorHeight: layout.sensorHeight,
-    };
-  } finally {
-    closeSync(fd);
-  }
 }
 
 /**

@@ -4,9 +4,9 @@
 
 export interface TiffEntry {
   readonly tag: number;
-  /** 3 SHORT, 4 LONG, 5 RATIONAL (pairs), 13 IFD. */
-  readonly type: 3 | 4 | 5 | 13;
-  /** Numbers, or the name of a blob / IFD whose offset goes here. */
+  /** 2 ASCII, 3 SHORT, 4 LONG, 5 RATIONAL (pairs), 13 IFD. */
+  readonly type: 2 | 3 | 4 | 5 | 13;
+  /** Numbers, or the name of a blob / IFD whose offset goes here; for ASCII, the text. */
   readonly values: readonly (number | string)[];
 }
 
@@ -17,7 +17,10 @@ export interface TiffIfd {
   readonly next?: string;
 }
 
-const size = { 3: 2, 4: 4, 5: 8, 13: 4 } as const;
+const size = { 2: 1, 3: 2, 4: 4, 5: 8, 13: 4 } as const;
+/** How many values an entry holds: ASCII counts its bytes and the closing NUL. */
+const countOf = (e: TiffEntry): number => (e.type === 2 ? String(e.values[0]).length + 1 : e.type === 5 ? e.values.length / 2 : e.values.length);
+const byteLength = (e: TiffEntry): number => size[e.type] * countOf(e);
 
 /** Lays out the IFDs and blobs (named byte strings, e.g. JPEG streams) and returns the file. */
 export function writeTiff(littleEndian: boolean, ifds: readonly TiffIfd[], blobs: Record<string, Uint8Array>, magic = 42): Uint8Array {
@@ -27,7 +30,7 @@ export function writeTiff(littleEndian: boolean, ifds: readonly TiffIfd[], blobs
   for (const ifd of ifds) {
     at.set(ifd.name, p);
     p += 2 + 12 * ifd.entries.length + 4;
-    for (const e of ifd.entries) if (size[e.type] * e.values.length > 4) p += size[e.type] * e.values.length;
+    for (const e of ifd.entries) if (byteLength(e) > 4) p += byteLength(e);
     p += p % 2;
   }
   for (const [name, b] of Object.entries(blobs)) {
@@ -49,14 +52,15 @@ export function writeTiff(littleEndian: boolean, ifds: readonly TiffIfd[], blobs
     for (const e of sorted) {
       v.setUint16(o, e.tag, littleEndian);
       v.setUint16(o + 2, e.type, littleEndian);
-      v.setUint32(o + 4, e.type === 5 ? e.values.length / 2 : e.values.length, littleEndian);
-      const bytes = size[e.type] * (e.type === 5 ? e.values.length / 2 : e.values.length);
+      v.setUint32(o + 4, countOf(e), littleEndian);
+      const bytes = byteLength(e);
       let w = bytes > 4 ? extra : o + 8;
       if (bytes > 4) {
         v.setUint32(o + 8, extra, littleEndian);
         extra += bytes;
       }
-      for (const x of e.values) {
+      if (e.type === 2) out.set(new TextEncoder().encode(String(e.values[0])), w);
+      else for (const x of e.values) {
         if (e.type === 3) v.setUint16(w, num(x), littleEndian);
         else v.setUint32(w, num(x), littleEndian);
         w += e.type === 3 ? 2 : 4;
