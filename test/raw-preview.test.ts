@@ -46,7 +46,7 @@ describe('previews in TIFF-based RAW files', () => {
     ], { pixels: new Uint8Array(16), thumb, rawdata: lossless, jpeg: preview });
     const layout = rawLayout(file);
     expect(layout.previews.map((p) => [p.width, p.height]).sort()).toEqual([[1024, 683], [160, 107]].sort());
-    const best = largestPreview(layout)!;
+    const best = largestPreview(layout.previews)!;
     expect([best.width, best.height]).toEqual([1024, 683]);
     const meta = await sharp(Buffer.from(file.subarray(best.offset, best.offset + best.length))).metadata();
     expect([meta.format, meta.width, meta.height]).toEqual(['jpeg', 1024, 683]);
@@ -60,7 +60,7 @@ describe('previews in TIFF-based RAW files', () => {
       { name: 'raw', entries: [{ tag: 254, type: 4, values: [0] }, { tag: 256, type: 4, values: [6016] }, { tag: 257, type: 4, values: [4016] }, { tag: 259, type: 3, values: [34713] }] },
     ], { jpeg: preview });
     const layout = rawLayout(file);
-    expect(largestPreview(layout)).toMatchObject({ width: 1024, height: 683 });
+    expect(largestPreview(layout.previews)).toMatchObject({ width: 1024, height: 683 });
     expect([layout.sensorWidth, layout.sensorHeight]).toEqual([6016, 4016]);
     expect(layout.orientation).toBe(1);
   });
@@ -71,7 +71,7 @@ describe('previews in TIFF-based RAW files', () => {
     ], { raw: lossless });
     const layout = rawLayout(file);
     expect(layout.previews).toEqual([]);
-    expect(largestPreview(layout)).toBeNull();
+    expect(largestPreview(layout.previews)).toBeNull();
     expect([layout.sensorWidth, layout.sensorHeight]).toEqual([4000, 3000]);
   });
 

@@ -131,9 +131,9 @@ export function rawLayout(input: Uint8Array | ByteSource): RawLayout {
 }
 
 /** The embedded JPEG with the most pixels (on a tie, the most bytes), or null. */
-export function largestPreview(layout: RawLayout): EmbeddedJpeg | null {
+export function largestPreview(previews: readonly EmbeddedJpeg[]): EmbeddedJpeg | null {
   const area = (p: EmbeddedJpeg): number => p.width * p.height;
-  return layout.previews.reduce<EmbeddedJpeg | null>((best, p) => (!best || area(p) > area(best) || (area(p) === area(best) && p.length > best.length) ? p : best), null);
+  return previews.reduce<EmbeddedJpeg | null>((best, p) => (!best || area(p) > area(best) || (area(p) === area(best) && p.length > best.length) ? p : best), null);
 }
 
 /**

@@ -40,7 +40,7 @@ export async function readRawPreview(path: string): Promise<RawPreview> {
   if (ending === '.raf') return rafFilePreview(path);
   return withFile(path, (fd, src) => {
     const layout = rawLayout(src);
-    const best = largestPreview(layout);
+    const best = largestPreview(layout.previews);
     if (!best) throw new Error(`no usable preview in ${path}`);
     return {
       jpeg: readRange(fd, best),
@@ -94,12 +94,12 @@ async function cr3Preview(path: string): Promise<RawPreview> {
   const found = await withFile(path, (fd, src) => {
     const layout = cr3Layout(src);
     if (!layout) throw new Error(`no usable preview in ${path}: not a CR3 file`);
-    const best = largestPreview({ previews: layout.previews, sensorWidth: null, sensorHeight: null, orientation: 1 });
+    const best = largestPreview(layout.previews);
     return best ? { jpeg: readRange(fd, best), orientation: layout.orientation, sensorWidth: layout.width, sensorHeight: layout.height } : null;
   });
   if (found) return found;
   const bytes = await readFile(path);
-  const best = largestPreview({ previews: scanForJpegs(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.length)), sensorWidth: null, sensorHeight: null, orientation: 1 });
+  const best = largestPreview(scanForJpegs(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.length)));
   if (!best) throw new Error(`no usable preview in ${path}`);
   // A stream found so carries its own EXIF orientation, if any.
   return { jpeg: Buffer.from(bytes.subarray(best.offset, best.offset + best.length)), orientation: null, sensorWidth: null, sensorHeight: null };
