@@ -51,6 +51,27 @@ describe('stations from EXIF', () => {
     expect(g.map((s) => s.reference)).toEqual([0, 3]);
   });
 
+  // A hand-held pan with auto exposure: every frame metered, one came out 1.3 EV brighter, with no
+  // exposure bias recorded and no repeat of that change (the case of issue 15).
+  const pan = (modes: (number | null)[] = []): { settings: FrameSettings; captureMs: number; exposureMode: number | null }[] =>
+    [0, 0, 0, 1.3, 0, 0].map((ev, k) => ({ settings: { ...base, exposureTime: base.exposureTime! * 2 ** ev }, captureMs: 2000 * k, exposureMode: modes[k] ?? null }));
+
+  it('takes a lone exposure change without bias and without a repeat for auto exposure, not a bracket', () => {
+    expect(members(groupStations(pan()))).toEqual([[0], [1], [2], [3], [4], [5]]);
+    // ExposureMode 0 (auto exposure, CIPA DC-008) says so outright.
+    expect(members(groupStations(pan([0, 0, 0, 0, 0, 0])))).toEqual([[0], [1], [2], [3], [4], [5]]);
+  });
+
+  it('keeps a bracket the camera says it fired (ExposureMode 2) or that repeats', () => {
+    expect(members(groupStations(pan([null, null, 2, 2, null, null])))).toEqual([[0], [1], [2, 3], [4], [5]]);
+    // Manual brackets by shutter time, one station short of a frame: the pattern recurs, so all stay brackets.
+    const manual = aeb([[0, -1, 1], [0, -1], [0, -1, 1]]).map((f) => ({ ...f, settings: { ...f.settings, evBias: null }, exposureMode: 1 }));
+    expect(members(groupStations(manual))).toEqual([[0, 1, 2], [3, 4], [5, 6, 7]]);
+    // Every frame metered automatically: exposure changes are the scene's, not brackets.
+    const metered = aeb([[0, -1, 1], [0, -1, 1]]).map((f) => ({ ...f, settings: { ...f.settings, evBias: null }, exposureMode: 0 }));
+    expect(members(groupStations(metered))).toEqual([[0], [1], [2], [3], [4], [5]]);
+  });
+
   it('makes every frame its own station when nothing is bracketed', () => {
     const frames = aeb([[0], [0], [0], [0]]);
     expect(members(groupStations(frames))).toEqual([[0], [1], [2], [3]]);

@@ -22,7 +22,8 @@ export type FlagCode =
   | 'parallax'
   | 'size-mismatch';
 
-export type SkipCode = 'unreadable' | 'too-large' | 'not-an-image' | 'duplicate' | 'no-preview' | 'same-shot';
+/** Why a file was left out; 'not-in-sequence': another camera, size or shape than most of the card (a stray file). */
+export type SkipCode = 'unreadable' | 'too-large' | 'not-an-image' | 'duplicate' | 'no-preview' | 'same-shot' | 'not-in-sequence';
 
 /**
  * Shots written twice by the camera, as a RAW file and a JPEG of one shutter press: how many the

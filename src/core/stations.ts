@@ -6,6 +6,8 @@ export interface StationInput {
   readonly settings: FrameSettings;
   /** Capture time in ms, or null. */
   readonly captureMs: number | null;
+  /** EXIF ExposureMode (CIPA DC-008: 0 auto exposure, 1 manual, 2 auto bracket), null or absent when unknown. */
+  readonly exposureMode?: number | null;
 }
 
 export interface StationGroup {
@@ -57,6 +59,7 @@ export function groupStations(frames: readonly StationInput[], contentLinks: rea
     const byRepeat = splitOnRepeat([...frames.keys()], keys);
     // Then split at long pauses first and on repeats inside each stretch between pauses.
     groups = splitByTime([[...frames.keys()]], frames, innerGaps(byRepeat, frames)).flatMap((run) => splitOnRepeat(run, keys));
+    if (source === 'settings') groups = groups.flatMap((g) => (isBracket(g, groups, frames, keys) ? [g] : g.map((i) => [i])));
   } else if (contentLinks) {
     groupedBy = 'content';
     let current: number[] = [0];
@@ -77,6 +80,40 @@ export function groupStations(frames: readonly StationInput[], contentLinks: rea
     const offsets = members.map((i) => (keys[i] !== null && refKey !== null ? (keys[i] as number) - refKey : null));
     return { members, reference, offsets, groupedBy: members.length === 1 ? 'single' : groupedBy };
   });
+}
+
+/**
+ * Whether a group found from exposure settings alone (no exposure bias recorded) is a bracket. The
+ * camera says so (ExposureMode 2, auto bracket), or denies it (every member metered automatically,
+ * ExposureMode 0: the exposure followed the scene). Otherwise a bracket repeats: its pattern of
+ * exposures recurs in another station, or is part of one that does. A lone exposure change without
+ * bias and without a repeat is auto exposure between two stations, not a bracket.
+ */
+function isBracket(group: number[], groups: readonly number[][], frames: readonly StationInput[], keys: (number | null)[]): boolean {
+  if (group.length < 2) return true;
+  const modes = group.map((i) => frames[i].exposureMode ?? null);
+  if (modes.includes(2)) return true;
+  if (modes.every((m) => m === 0)) return false;
+  const steps = (g: number[]): number[] | null => {
+    const ks = g.map((i) => keys[i]);
+    if (ks.some((k) => k === null)) return null;
+    const lo = Math.min(...(ks as number[]));
+    return (ks as number[]).map((k) => Math.round((k - lo) * 3) / 3).sort((a, b) => a - b);
+  };
+  const mine = steps(group);
+  if (mine === null) return true;
+  const within = (small: number[], big: number[]): boolean => {
+    // Whether `small` fits into `big` at some shift (an incomplete bracket of the same pattern).
+    for (const base of big) {
+      const shift = base - small[0];
+      if (small.every((s) => big.some((b) => Math.abs(b - (s + shift)) < 0.2))) return true;
+    }
+    return false;
+  };
+  return groups.some((other) => other !== group && other.length >= 2 && other.length >= group.length && (() => {
+    const theirs = steps(other);
+    return theirs !== null && within(mine, theirs);
+  })());
 }
 
 /** Splits a run of frames wherever a bracket exposure repeats one already in the current station. */

@@ -16,7 +16,8 @@ import type { AnalysisPool } from './analysis-pool.js';
 import { createAnalysisPool } from './analysis-pool.js';
 import type { FrameExif } from './exif.js';
 import type { FeatureCache } from './feature-cache.js';
-import { readFrameExif } from './exif.js';
+import { readFrameExif, readHeaderSize } from './exif.js';
+import { sequenceLook, strayReason } from '../core/strays.js';
 import type { FrameAnalysis, PairAnalysis } from './frame-analysis.js';
 import type { ScannedFile } from './scan.js';
 import { scanFolder } from './scan.js';
@@ -75,6 +76,12 @@ const nearFullTurnDeg = 300;
 /** Frames covering this much were a full turn for certain: a closure pair without a model is reported. */
 const closingTurnDeg = 330;
 
+
+/**
+ * A bracket frame sees its reference's view, moved at most by a hand-held wobble; a frame of a
+ * station overlapping its would-be reference by less than this shows another view (common practice).
+ */
+const bracketMinOverlap = 0.8;
 
 /** Frames in flight when the analysis runs in the calling thread. */
 const inThreadLanes = 6;
@@ -203,12 +210,21 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
     const scan = await scanFolder(folder, options.recursive ?? false);
     const shots = oneFilePerShot(scan.files, options.prefer ?? 'jpeg');
     const skipped: SkippedFile[] = [...scan.problems.map((p) => ({ file: p.name, code: 'unreadable' as const, reason: `cannot be read: ${p.reason}` })), ...shots.skipped];
-    const exifs = await inOrder(shots.files, 8, (f) => readFrameExif(f.path), signal);
-    const ordered = shootingOrder(shots.files.map((file, i) => ({ file: file.name, captureMs: exifs[i].captureMs, scanned: file, exif: exifs[i] })));
+    const heads = await inOrder(shots.files, 8, (f) => Promise.all([readFrameExif(f.path), readHeaderSize(f.path)]), signal);
+    // Files that are not part of the sequence (another camera, size or shape than most of the card)
+    // are left out before stations are grouped, so they cannot split a station or break a turn.
+    const memberOf = (exif: FrameExif, size: { width: number; height: number } | null) => ({ width: size?.width ?? null, height: size?.height ?? null, make: exif.settings.make, model: exif.settings.model });
+    const look = sequenceLook(heads.map(([exif, size]) => memberOf(exif, size)));
+    const members = shots.files.map((file, i) => ({ file: file.name, captureMs: heads[i][0].captureMs, scanned: file, exif: heads[i][0], stray: strayReason(memberOf(...heads[i]), look) }));
+    for (const m of members) if (m.stray !== null) skipped.push({ file: m.file, code: 'not-in-sequence', reason: m.stray });
+    const ordered = shootingOrder(members.filter((m) => m.stray === null));
     const n = ordered.length;
+    // Skips found while decoding, by shooting order once all are known, so that the report does not
+    // depend on which decode finished first.
+    const decodeSkips: { k: number; skip: SkippedFile }[] = [];
 
     const byExif = ordered.some((o) => o.exif.settings.exposureTime !== null || o.exif.settings.evBias !== null);
-    const planGroups = byExif ? groupStations(ordered.map((o) => ({ settings: o.exif.settings, captureMs: o.exif.captureMs }))) : null;
+    const planGroups = byExif ? groupStations(ordered.map((o) => ({ settings: o.exif.settings, captureMs: o.exif.captureMs, exposureMode: o.exif.exposureMode }))) : null;
     const largest = planGroups ? Math.max(1, ...planGroups.map((g) => g.members.length)) : 1;
     // Frames in flight. In this thread, sharp decodes them on its own threads while one is analysed
     // here; six keep both cores of a 2-core laptop busy (docs/performance.md).
@@ -221,10 +237,11 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
     const stationOf = new Int32Array(n).fill(-1);
     const planned: PlannedPair[] = [];
     const pairResults = new Map<string, PairAnalysis>();
+    const pairsInFlight = new Map<string, Promise<void>>();
     const need = new Int32Array(n);
     const pairTasks: Promise<void>[] = [];
     const pairSlot = slots(Math.max(2, pool.threads));
-    let framesDone = 0, pairsDone = 0;
+    let framesDone = 0, pairsDone = 0, pairsAsked = 0;
     let held = 0, peakHeld = 0;
     const roomWaiters: (() => void)[] = [];
     let partialHook: (() => void) | null = null;
@@ -245,31 +262,62 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
       roomWaiters.shift()?.();
     };
 
+    // A pair asked for after its frames were let go (the closure pair of a row, known only once the
+    // geometry shows rows) decodes them again: rare, and memory still follows the frames in flight.
+    const reloads = new Map<number, Promise<FrameAnalysis>>();
+    const dataOf = (k: number): Promise<FrameAnalysis> => {
+      const f = frames[k];
+      if (!f) return Promise.reject(new Error(`internal: frame ${k} of a pair was left out`));
+      if (f.data) return Promise.resolve(f.data);
+      let again = reloads.get(k);
+      if (!again) {
+        const o = ordered[k];
+        again = (async () => {
+          const data = (await options.cache?.get(o.scanned, maxSide)) ?? (await pool.analyseFrame(o.scanned.path, maxSide, signal));
+          if (!f.data) {
+            f.data = data;
+            held++;
+            peakHeld = Math.max(peakHeld, held);
+          }
+          return f.data;
+        })().finally(() => reloads.delete(k));
+        reloads.set(k, again);
+      }
+      return again;
+    };
+
     // Planned pairs are retried on full-size corners when they find no model; pairs screened in by
     // --all-pairs are not (most of them do not overlap, and a retry would double their cost).
     // Brackets (one pose) are not compared block by block: movement and parallax are for pairs
-    // between stations.
-    const analysePair = (i: number, j: number, retryAtFullSize = true, overlapBlocks = stationOf[i] !== stationOf[j] || stationOf[i] < 0): Promise<void> =>
-      pairSlot(async () => {
-        const key = `${i}:${j}`;
-        if (pairResults.has(key)) return;
-        const a = frames[i]!.data, b = frames[j]!.data;
-        if (!a || !b) throw new Error(`internal: frames of pair ${i}:${j} were let go too early`);
-        pairResults.set(key, await pool.analysePair(a, b, { retryAtFullSize, overlapBlocks }, signal));
-        options.onProgress?.({ phase: 'pairs', done: ++pairsDone, total: planned.length, file: frames[j]!.file.name });
-      });
-
-    const plan = (i: number, j: number, kind: PairKind): void => {
-      planned.push({ i, j, kind });
+    // between stations. A pair's frames are held from the moment it is asked for until it is done.
+    const analysePair = (i: number, j: number, retryAtFullSize = true, overlapBlocks = stationOf[i] !== stationOf[j] || stationOf[i] < 0): Promise<void> => {
+      const key = `${i}:${j}`;
+      if (pairResults.has(key)) return Promise.resolve();
+      const running = pairsInFlight.get(key);
+      if (running) return running;
       need[i]++;
       need[j]++;
-      const task = analysePair(i, j).finally(() => {
+      // The pair total grows as pairs are asked for (a closure pair, a station split on its content).
+      pairsAsked++;
+      const task = pairSlot(async () => {
+        const [a, b] = await Promise.all([dataOf(i), dataOf(j)]);
+        pairResults.set(key, await pool.analysePair(a, b, { retryAtFullSize, overlapBlocks }, signal));
+        options.onProgress?.({ phase: 'pairs', done: ++pairsDone, total: pairsAsked, file: frames[j]?.file.name });
+      }).finally(() => {
+        pairsInFlight.delete(key);
         need[i]--;
         need[j]--;
         release(i);
         release(j);
         partialHook?.();
       });
+      pairsInFlight.set(key, task);
+      return task;
+    };
+
+    const plan = (i: number, j: number, kind: PairKind): void => {
+      planned.push({ i, j, kind });
+      const task = analysePair(i, j);
       // Awaited all together later; a failure must not count as unhandled before that.
       task.catch(() => undefined);
       pairTasks.push(task);
@@ -286,30 +334,87 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
       for (const m of members) release(m);
     };
 
-    // EXIF stations, finalised in order as soon as all their frames are decoded (or failed).
-    let nextGroup = 0;
-    const finaliseReady = (): void => {
-      if (!planGroups) return;
-      while (nextGroup < planGroups.length && planGroups[nextGroup].members.every((m) => frames[m] !== undefined)) {
-        const g = planGroups[nextGroup++];
-        const members = g.members.filter((m) => frames[m]);
-        if (members.length === 0) continue;
-        let reference = g.reference;
-        if (!frames[reference]) {
-          // The reference failed: the member nearest 0 EV takes its place.
-          const off = (m: number): number => Math.abs(g.offsets[g.members.indexOf(m)] ?? 0);
-          reference = members.reduce((best, m) => (off(m) < off(best) ? m : best), members[0]);
-        }
-        const base = g.offsets[g.members.indexOf(reference)];
-        const offsets = members.map((m) => {
-          const o = g.offsets[g.members.indexOf(m)];
-          return o === null || base === null ? null : o - base;
-        });
-        finalise(members, reference, offsets, members.length === 1 ? 'single' : g.groupedBy);
+    /** The frames of an EXIF group still in play, its reference (the member nearest 0 EV when it failed) and their offsets. */
+    const settle = (g: StationGroup): { members: number[]; reference: number; offsetOf: (m: number) => number | null } => {
+      const members = g.members.filter((m) => frames[m]);
+      let reference = g.reference;
+      if (!frames[reference] && members.length > 0) {
+        const off = (m: number): number => Math.abs(g.offsets[g.members.indexOf(m)] ?? 0);
+        reference = members.reduce((best, m) => (off(m) < off(best) ? m : best), members[0]);
       }
+      const base = g.offsets[g.members.indexOf(reference)];
+      const offsetOf = (m: number): number | null => {
+        const o = g.offsets[g.members.indexOf(m)];
+        return o === null || base === null ? null : o - base;
+      };
+      return { members, reference, offsetOf };
+    };
+    const decoded = (g: StationGroup): boolean => g.members.every((m) => frames[m] !== undefined);
+    /** A bracket frame's content check: its pair with the reference, compared at once (no blocks: one pose). */
+    const checkMembers = (members: number[], reference: number): Promise<unknown> =>
+      Promise.all(members.filter((m) => m !== reference).map((m) => analysePair(reference, m, true, false)));
+
+    /**
+     * EXIF suggests, content decides: a bracket frame sees its reference's view. A member that
+     * matches its reference with far less overlap shows another view (an auto-exposure jump or a
+     * quick frame taken for a bracket) and becomes a station of its own, in shooting order; its pair
+     * with the reference is measured again as a neighbour pair. A member that does not match at all
+     * stays (the content cannot tell; its bracket pair says so).
+     */
+    const finaliseGroup = async (g: StationGroup): Promise<void> => {
+      const { members, reference, offsetOf } = settle(g);
+      if (members.length === 0) return;
+      await checkMembers(members, reference);
+      const apart = members.filter((m) => {
+        const r = m === reference ? undefined : pairResults.get(`${reference}:${m}`);
+        return r !== undefined && r.homography !== null && r.overlap !== null && r.overlap < bracketMinOverlap;
+      });
+      for (const m of apart) pairResults.delete(`${reference}:${m}`);
+      const kept = members.filter((m) => !apart.includes(m));
+      const parts = [
+        { members: kept, reference, offsets: kept.map(offsetOf), groupedBy: kept.length === 1 ? 'single' as const : g.groupedBy },
+        ...apart.map((m) => ({ members: [m], reference: m, offsets: [offsetOf(m) === null ? null : 0], groupedBy: 'single' as const })),
+      ].sort((p, q) => p.members[0] - q.members[0]);
+      for (const p of parts) finalise(p.members, p.reference, p.offsets, p.groupedBy);
     };
 
-    const seenPixels = new Map<string, string>();
+    // EXIF stations, finalised in order once all their frames are decoded (or failed) and checked
+    // against their content; the checks of later stations start as soon as their frames are in.
+    let nextGroup = 0;
+    const checking = new Set<number>();
+    let pump: Promise<void> = Promise.resolve();
+    let pumping = false;
+    const finaliseReady = (): void => {
+      if (!planGroups) return;
+      for (let x = nextGroup; x < planGroups.length; x++) {
+        if (checking.has(x) || !decoded(planGroups[x])) continue;
+        checking.add(x);
+        const { members, reference } = settle(planGroups[x]);
+        // A copy found later may still take a member out: the group is settled again when finalised.
+        checkMembers(members, reference).catch(() => undefined);
+      }
+      if (pumping) return;
+      pumping = true;
+      pump = (async () => {
+        try {
+          while (nextGroup < planGroups.length && decoded(planGroups[nextGroup])) await finaliseGroup(planGroups[nextGroup++]);
+        } finally {
+          pumping = false;
+        }
+      })();
+      pump.catch(() => undefined);
+    };
+
+    // Which copy of one picture stays does not depend on which decode finished first: the first in
+    // shooting order (then by name) stays, whichever came in first.
+    const seenPixels = new Map<string, number>();
+    const leaveOut = (k: number, skip: SkippedFile): void => {
+      const f = frames[k];
+      if (f?.data) held--;
+      if (f) f.data = null;
+      frames[k] = null;
+      decodeSkips.push({ k, skip });
+    };
     const loadFrame = async (k: number): Promise<void> => {
       const o = ordered[k];
       while (held >= maxHeld) await new Promise<void>((r) => roomWaiters.push(r));
@@ -322,24 +427,26 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
           data = await pool.analyseFrame(o.scanned.path, maxSide, signal);
           await options.cache?.put(o.scanned, maxSide, data);
         }
-        const first = seenPixels.get(data.fingerprint);
-        if (first !== undefined) {
+        const summary: FrameSummary = {
+          fullWidth: data.fullWidth, fullHeight: data.fullHeight, anWidth: data.features.width, anHeight: data.features.height,
+          keypoints: data.features.keypoints.count, sharpness: data.sharpness, fingerprint: data.fingerprint,
+        };
+        frames[k] = { file: o.scanned, exif: o.exif, summary, data };
+        // The decoded size is the one that counts (a header may say another, a RAW file says none).
+        const stray = strayReason({ width: data.fullWidth, height: data.fullHeight, make: o.exif.settings.make, model: o.exif.settings.model }, look);
+        const copyOf = seenPixels.get(data.fingerprint);
+        if (stray !== null) leaveOut(k, { file: o.file, code: 'not-in-sequence', reason: stray });
+        else if (copyOf !== undefined && copyOf < k) {
           // Copies of one picture (a card copied twice into one folder): the first one counts.
-          skipped.push({ file: o.file, code: 'duplicate', reason: `the same picture as ${first}: left out` });
-          frames[k] = null;
-          held--;
+          leaveOut(k, { file: o.file, code: 'duplicate', reason: `the same picture as ${ordered[copyOf].file}: left out` });
         } else {
-          seenPixels.set(data.fingerprint, o.file);
-          const summary: FrameSummary = {
-            fullWidth: data.fullWidth, fullHeight: data.fullHeight, anWidth: data.features.width, anHeight: data.features.height,
-            keypoints: data.features.keypoints.count, sharpness: data.sharpness, fingerprint: data.fingerprint,
-          };
-          frames[k] = { file: o.scanned, exif: o.exif, summary, data };
+          if (copyOf !== undefined) leaveOut(copyOf, { file: ordered[copyOf].file, code: 'duplicate', reason: `the same picture as ${o.file}: left out` });
+          seenPixels.set(data.fingerprint, k);
         }
       } catch (err) {
         held--;
         if (signal?.aborted) throw err;
-        skipped.push(skipOf(o.file, err, o.scanned.size));
+        decodeSkips.push({ k, skip: skipOf(o.file, err, o.scanned.size) });
         frames[k] = null;
       } finally {
         roomWaiters.shift()?.();
@@ -361,6 +468,7 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
     }
 
     await inOrder(ordered, lanes, (_o, k) => loadFrame(k), signal);
+    await pump;
 
     if (!byExif) {
       // Stations from content: consecutive frames showing one view at different brightness.
@@ -526,7 +634,7 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
         evOffsets: st.offsets,
         groupedBy: st.groupedBy,
       }));
-      return { analysis: { folder, frames: frameMeasures, stations: stationMeasures, pairs, skipped: [...skipped], rawPlusJpeg: shots.rawPlusJpeg, sweepDeg: geometry?.horizontalDeg ?? null, geometry }, tiePoints, peakFramesHeld: peakHeld };
+      return { analysis: { folder, frames: frameMeasures, stations: stationMeasures, pairs, skipped: [...skipped, ...[...decodeSkips].sort((p, q) => p.k - q.k).map((d) => d.skip)], rawPlusJpeg: shots.rawPlusJpeg, sweepDeg: geometry?.horizontalDeg ?? null, geometry }, tiePoints, peakFramesHeld: peakHeld };
     }
   } finally {
     if (!options.pool) await pool.destroy();

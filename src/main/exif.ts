@@ -1,6 +1,7 @@
 import exifr from 'exifr';
+import sharp from 'sharp';
 import type { FrameSettings } from '../core/report.js';
-import { readRawExifBlocks } from './raw-file.js';
+import { isRawFile, readRawExifBlocks } from './raw-file.js';
 
 export interface FrameExif {
   readonly settings: FrameSettings;
@@ -9,13 +10,15 @@ export interface FrameExif {
   /** Local ISO 8601 with milliseconds, no zone, or null. */
   readonly captureTime: string | null;
   readonly orientation: number | null;
+  /** ExposureMode (CIPA DC-008: 0 auto exposure, 1 manual, 2 auto bracket), or null. */
+  readonly exposureMode: number | null;
 }
 
 /** The tags a check reads, by name and by number (EXIF 2.32, CIPA DC-008, section 4.6; TIFF 6.0). */
 const tagIds: Record<string, number> = {
   ExposureTime: 0x829a, FNumber: 0x829d, ISO: 0x8827, ExposureCompensation: 0x9204, FocalLength: 0x920a,
   FocalLengthIn35mmFormat: 0xa405, WhiteBalance: 0xa403, Make: 0x010f, Model: 0x0110, DateTimeOriginal: 0x9003,
-  SubSecTimeOriginal: 0x9291, Orientation: 0x0112,
+  SubSecTimeOriginal: 0x9291, Orientation: 0x0112, ExposureMode: 0xa402,
 };
 const tags = [...Object.keys(tagIds), 'ISOSpeedRatings', 'PhotographicSensitivity'];
 
@@ -79,6 +82,7 @@ export async function readFrameExif(path: string): Promise<FrameExif> {
   }
   const date = parseExifDate(raw.DateTimeOriginal, raw.SubSecTimeOriginal);
   const orientation = positive(raw.Orientation, 8);
+  const mode = finite(raw.ExposureMode, 2);
   return {
     settings: {
       exposureTime: positive(raw.ExposureTime, 3600),
@@ -94,5 +98,23 @@ export async function readFrameExif(path: string): Promise<FrameExif> {
     captureMs: date?.ms ?? null,
     captureTime: date?.iso ?? null,
     orientation: orientation !== null && Number.isInteger(orientation) ? orientation : null,
+    exposureMode: mode !== null && Number.isInteger(mode) && mode >= 0 ? mode : null,
   };
+}
+
+/**
+ * The upright pixel size an image's header states, read without decoding it; null for RAW files
+ * (whose headers describe a thumbnail or the sensor, not the frame checked) and for anything sharp
+ * cannot read. Only a hint for telling stray files apart: the decoded size stays the one measured.
+ */
+export async function readHeaderSize(path: string): Promise<{ width: number; height: number } | null> {
+  if (isRawFile(path)) return null;
+  try {
+    const meta = await sharp(path, { failOn: 'none' }).metadata();
+    if (!meta.width || !meta.height) return null;
+    const swap = (meta.orientation ?? 1) >= 5;
+    return { width: swap ? meta.height : meta.width, height: swap ? meta.width : meta.height };
+  } catch {
+    return null;
+  }
 }

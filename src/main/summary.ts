@@ -68,9 +68,9 @@ export function rawPlusJpegLine(r: NonNullable<Report['rawPlusJpeg']>): string {
     : `${shots}: the JPEG of each was checked (--prefer raw checks the RAW files).`;
 }
 
-/** A one-line progress bar for a terminal. */
+/** A one-line progress bar for a terminal; a total that grew late (a pair planned last) never overfills it. */
 export function progressLine(label: string, done: number, total: number, width = 30): string {
-  const f = total > 0 ? done / total : 0;
+  const f = total > 0 ? Math.max(0, Math.min(1, done / total)) : 0;
   const n = Math.round(f * width);
   return `\r${label.padEnd(7)} [${'#'.repeat(n)}${'.'.repeat(width - n)}] ${done}/${total}`;
 }
