@@ -20,7 +20,7 @@ import { readFrameExif, readHeaderSize } from './exif.js';
 import { sequenceLook, strayReason } from '../core/strays.js';
 import type { FrameAnalysis, PairAnalysis } from './frame-analysis.js';
 import type { ScannedFile } from './scan.js';
-import { scanFolder } from './scan.js';
+import { byteCopies, scanFolder } from './scan.js';
 import type { ShotPreference } from './app-api.js';
 import { oneFilePerShot } from './shot-pairs.js';
 import { median } from '../core/median.js';
@@ -214,10 +214,20 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
     // Files that are not part of the sequence (another camera, size or shape than most of the card)
     // are left out before stations are grouped, so they cannot split a station or break a turn.
     const memberOf = (exif: FrameExif, size: { width: number; height: number } | null) => ({ width: size?.width ?? null, height: size?.height ?? null, make: exif.settings.make, model: exif.settings.model });
-    const look = sequenceLook(heads.map(([exif, size]) => memberOf(exif, size)));
-    const members = shots.files.map((file, i) => ({ file: file.name, captureMs: heads[i][0].captureMs, scanned: file, exif: heads[i][0], stray: strayReason(memberOf(...heads[i]), look) }));
-    for (const m of members) if (m.stray !== null) skipped.push({ file: m.file, code: 'not-in-sequence', reason: m.stray });
-    const ordered = shootingOrder(members.filter((m) => m.stray === null));
+    // Byte-identical copies are left out before stations are grouped (a copy's repeated exposure
+    // would split its station): the first in shooting order, then by name, stays.
+    const copyOf = new Map<number, number>();
+    for (const set of await byteCopies(shots.files)) {
+      const [first, ...rest] = shootingOrder(set.map((i) => ({ i, file: shots.files[i].name, captureMs: heads[i][0].captureMs })));
+      for (const r of rest) copyOf.set(r.i, first.i);
+    }
+    const look = sequenceLook(heads.filter((_, i) => !copyOf.has(i)).map(([exif, size]) => memberOf(exif, size)));
+    const members = shots.files.map((file, i) => ({ file: file.name, captureMs: heads[i][0].captureMs, scanned: file, exif: heads[i][0], copyOf: copyOf.get(i), stray: strayReason(memberOf(...heads[i]), look) }));
+    for (const m of members) {
+      if (m.copyOf !== undefined) skipped.push({ file: m.file, code: 'duplicate', reason: `the same picture as ${shots.files[m.copyOf].name}: left out` });
+      else if (m.stray !== null) skipped.push({ file: m.file, code: 'not-in-sequence', reason: m.stray });
+    }
+    const ordered = shootingOrder(members.filter((m) => m.copyOf === undefined && m.stray === null));
     const n = ordered.length;
     // Skips found while decoding, by shooting order once all are known, so that the report does not
     // depend on which decode finished first.

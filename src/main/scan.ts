@@ -1,4 +1,5 @@
-import { readdir, realpath, stat } from 'node:fs/promises';
+import { createHash } from 'node:crypto';
+import { open, readdir, realpath, stat } from 'node:fs/promises';
 import { extname, join, relative } from 'node:path';
 import { rawExtensions, unreadRawExtensions } from './raw-file.js';
 
@@ -54,4 +55,60 @@ export async function scanFolder(folder: string, recursive: boolean): Promise<Sc
   };
   await walk(folder);
   return { files, problems };
+}
+
+/** Bytes compared first, from the start of each file: a camera's files differ there (EXIF capture time, counters). */
+const headBytes = 64 * 1024;
+
+async function digestOf(path: string, limit: number): Promise<string> {
+  const hash = createHash('sha256');
+  const handle = await open(path, 'r');
+  try {
+    const chunk = Buffer.alloc(Math.min(limit, 1 << 20));
+    let at = 0;
+    while (at < limit) {
+      const { bytesRead } = await handle.read(chunk, 0, Math.min(chunk.length, limit - at), at);
+      if (bytesRead === 0) break;
+      hash.update(chunk.subarray(0, bytesRead));
+      at += bytesRead;
+    }
+  } finally {
+    await handle.close();
+  }
+  return hash.digest('hex');
+}
+
+/**
+ * Sets of byte-identical files (a card copied twice into one folder), as indices into `files`:
+ * files of one size and one first 64 KiB are compared whole. Reads only; a file that cannot be read
+ * is in no set. Copies must be known before stations are grouped, where a copy's repeated exposure
+ * would split its station.
+ */
+export async function byteCopies(files: readonly ScannedFile[]): Promise<number[][]> {
+  const bySize = new Map<number, number[]>();
+  files.forEach((f, i) => {
+    if (f.size > 0) bySize.set(f.size, [...(bySize.get(f.size) ?? []), i]);
+  });
+  const sets: number[][] = [];
+  // Groups of indices whose `limit` first bytes hash alike; files that cannot be read are left out.
+  const alike = async (indices: number[], limit: (i: number) => number): Promise<number[][]> => {
+    const groups = new Map<string, number[]>();
+    for (const i of indices) {
+      try {
+        const key = await digestOf(files[i].path, limit(i));
+        groups.set(key, [...(groups.get(key) ?? []), i]);
+      } catch {
+        continue;
+      }
+    }
+    return [...groups.values()].filter((g) => g.length > 1);
+  };
+  for (const same of bySize.values()) {
+    if (same.length < 2) continue;
+    for (const head of await alike(same, () => headBytes)) {
+      if (files[head[0]].size <= headBytes) sets.push(head);
+      else sets.push(...(await alike(head, (i) => files[i].size)));
+    }
+  }
+  return sets;
 }
