@@ -48,8 +48,10 @@ describe('cancelling', () => {
 describe('a worker that dies', () => {
   it('is replaced, its file reported, and the check completes', async () => {
     const folder = tempDir();
-    for (const f of readdirSync(demo.folder).filter((n) => n.endsWith('.JPG')).slice(0, 9)) copyFileSync(join(demo.folder, f), join(folder, f));
-    copyFileSync(externalFixture('leuvenA.jpg'), join(folder, 'SSC_0005-crash.jpg'));
+    const jpegs = readdirSync(demo.folder).filter((n) => n.endsWith('.JPG')).sort();
+    for (const f of jpegs.slice(0, 9)) copyFileSync(join(demo.folder, f), join(folder, f));
+    // A frame of the same shoot (a file of another camera or size would be left out before decoding).
+    copyFileSync(join(demo.folder, jpegs[9]), join(folder, 'SSC_0005-crash.jpg'));
     const pool = createAnalysisPool(2, { filename: new URL('./helpers/crashing-worker.ts', import.meta.url).href });
     try {
       const r = judge((await runCheck(folder, { pool })).analysis, defaultBudget);
