@@ -4,8 +4,9 @@
 // files made here from its frames; what a frame "is" follows CIPA DC-008 (ExposureTime,
 // ExposureBiasValue, ExposureMode, DateTimeOriginal, Make, Model).
 import { execFile } from 'node:child_process';
-import { copyFileSync, mkdirSync, readdirSync } from 'node:fs';
+import { copyFileSync, mkdirSync, readdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
+import Ajv2020 from 'ajv/dist/2020.js';
 import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { DemoTruth } from '../src/core/demo-truth.js';
@@ -16,6 +17,7 @@ import { judge } from '../src/core/verdicts.js';
 import { createAnalysisPool } from '../src/main/analysis-pool.js';
 import { runCheck } from '../src/main/check.js';
 import { demoExif, writeDemoShoot } from '../src/main/demo-writer.js';
+import { progressLine } from '../src/main/summary.js';
 import { projectRoot, tempDir } from './helpers/cli.js';
 
 const pool = createAnalysisPool(2);
@@ -49,6 +51,12 @@ const flagsOf = (r: Report): string[] => [
 ];
 
 describe('from a terminal', () => {
+  it('draws the progress bar whatever the counts (a total may be passed by pairs planned late)', () => {
+    expect(progressLine('pairs', 37, 36, 10)).toBe('\rpairs   [##########] 37/36');
+    expect(progressLine('pairs', 0, 0, 10)).toBe('\rpairs   [..........] 0/0');
+    expect(progressLine('frames', 3, 12, 8)).toBe('\rframes  [##......] 3/12');
+  });
+
   it('checks a closing turn and a two-row set with default options and answers (exit 0 or 1, never 2)', async () => {
     const rows = await writeDemoShoot(join(tempDir(), 'rows'), { clean: true, width: 900, height: 600, seed: 9, stations: 12, rows: [-12, 8] });
     for (const folder of [turn.folder, rows.folder]) {
@@ -160,6 +168,9 @@ describe('stray and duplicate files on the card', () => {
     expect(r.geometry?.closure?.closes).toBe(true);
     expect(r.pairs.filter((p) => p.kind === 'closure')).toHaveLength(1);
     expect(flagsOf(r)).toEqual([]);
+    // The new skip code is part of the published report contract (JSON Schema 2020-12, via ajv).
+    const validate = new Ajv2020.default({ allErrors: true, strict: false }).compile(JSON.parse(readFileSync(join(projectRoot, 'schema/report.schema.json'), 'utf8')));
+    expect(validate(JSON.parse(JSON.stringify(r))), JSON.stringify(validate.errors)).toBe(true);
   });
 
   it('keeps the first copy in shooting order, then by name, and gives the same report twice', () => {
