@@ -138,14 +138,37 @@ const fullSphereOf = (source: MapSource): boolean => source.budget?.fullSphere =
 function openCells(cams: readonly PlacedCamera[], f: number, c: number): Uint8Array {
   const cols = Math.round(360 / c), rowsN = Math.round(180 / c);
   const open = new Uint8Array(cols * rowsN);
+  const ranges = cams.map((cam) => pitchRange(cam, f));
   for (let r = 0; r < rowsN; r++) {
     const pm = -90 + (r + 0.5) * c;
+    // Only the frames whose pitch range holds this row of cells can see it.
+    const here = cams.filter((_, k) => ranges[k][0] <= pm && pm <= ranges[k][1]);
     for (let q = 0; q < cols; q++) {
       const d = directionOf(-180 + (q + 0.5) * c, pm);
-      open[r * cols + q] = cams.some((cam) => sees(cam, f, d)) ? 0 : 1;
+      open[r * cols + q] = here.some((cam) => sees(cam, f, d)) ? 0 : 1;
     }
   }
   return open;
+}
+
+/**
+ * The pitch a frame spans: its extremes lie on its border unless it sees a pole (pitch has no other
+ * extreme inside the frame), sampled along the border and widened by a degree for the samples' spacing.
+ */
+function pitchRange(cam: PlacedCamera, f: number): [number, number] {
+  let lo = Infinity, hi = -Infinity;
+  const W = cam.width - 0.5, H = cam.height - 0.5, steps = 32;
+  for (let k = 0; k <= steps; k++) {
+    const t = k / steps;
+    for (const [u, v] of [[-0.5 + t * (W + 0.5), -0.5], [-0.5 + t * (W + 0.5), H], [-0.5, -0.5 + t * (H + 0.5)], [W, -0.5 + t * (H + 0.5)]]) {
+      const p = angles(direction(cam, f, u, v))[1];
+      lo = Math.min(lo, p);
+      hi = Math.max(hi, p);
+    }
+  }
+  if (sees(cam, f, [0, -1, 0])) hi = 90;
+  if (sees(cam, f, [0, 1, 0])) lo = -90;
+  return [lo - 1, hi + 1];
 }
 
 // Open cells already found, by geometry and cell size (re-judging with another budget keeps the geometry).
@@ -369,7 +392,7 @@ export function holeRegions(map: CoverageMap): HoleRegion[] {
 
 const round = (v: number): number => Math.round(v);
 const wrapYaw = (d: number): number => ((((d + 180) % 360) + 360) % 360) - 180;
-const signedDeg = (v: number): string => `${v > 0 ? '+' : ''}${round(v)}°`;
+const signedDeg = (v: number): string => `${round(v) > 0 ? '+' : ''}${round(v) || 0}°`;
 
 /** Samples of yaw along a row's pitch: 0.5 degrees apart, sample k at yaw -180 + (k + 0.5) / 2. */
 const sampleDeg = 0.5;
