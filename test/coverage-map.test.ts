@@ -8,6 +8,7 @@ import type { Analysis, Report } from '../src/core/report.js';
 import { defaultBudget } from '../src/core/report.js';
 import { judge, rejudge } from '../src/core/verdicts.js';
 import { resolveBudget } from '../src/core/budget.js';
+import { createRandom } from '../src/core/random.js';
 
 const W = 3000, H = 2000, f = (35 / 36) * W;
 
@@ -251,6 +252,53 @@ describe('holes in every row, and the poles only when asked or approached', () =
     const report = judge(analysisOf(poses, { focalPx: wide }), defaultBudget);
     expect(report.holes).toEqual([]);
     expect(report.verdict).toBe('ok');
+  });
+
+  it('finds nothing in complete two-row sets shot by hand, whose frames scatter in yaw, pitch and roll', () => {
+    // Hand-held rows scatter by a few degrees (common practice): yaw +-4, pitch +-3, roll +-2, seeded.
+    for (let seed = 1; seed <= 8; seed++) {
+      const random = createRandom(seed);
+      const u = (): number => 2 * random.next() - 1;
+      const poses = twoRows().map((p) => ({ yawDeg: wrap(p.yawDeg + 4 * u()), pitchDeg: p.pitchDeg + 3 * u(), rollDeg: 2 * u() }));
+      const analysis = analysisOf(poses, { focalPx: wide });
+      // Rows as sequence-geometry.ts groups them: by pitch, each row's mean.
+      const rows = [poses.slice(0, 8), poses.slice(8)].map((r, k) => ({ pitchDeg: r.reduce((t, p) => t + p.pitchDeg, 0) / 8, stations: r.map((_, i) => 8 * k + i) }));
+      const report = judge({ ...analysis, geometry: { ...analysis.geometry!, rows } }, defaultBudget);
+      expect(report.holes, `seed ${seed}`).toEqual([]);
+      expect(report.verdict).toBe('ok');
+    }
+  });
+
+  it('says a station that could not be placed may be the frame for a gap, and only weakly flags it', () => {
+    const all = twoRows();
+    const poses = all.filter((p) => !(p.pitchDeg === 20 && p.yawDeg === 135));
+    const analysis = analysisOf(all, { focalPx: wide });
+    const g = analysis.geometry!;
+    // Station 11 (from 0: the upper frame at yaw 135) was shot but matched nothing, so it has no pose.
+    const placed = { ...g, poses: g.poses.filter((p) => p.station !== 11), unplaced: [11], rows: g.rows.map((r) => ({ ...r, stations: r.stations.filter((s) => s !== 11) })) };
+    const report = judge({ ...analysis, geometry: placed }, defaultBudget);
+    expect(poses).toHaveLength(15);
+    expect(report.holes).toHaveLength(1);
+    expect(report.holes![0].verdict).toBe('weak');
+    expect(report.holes![0].between).toEqual([10, 12]);
+    expect(report.holes![0].advice).toMatch(/station 12 was shot between them and could not be placed/);
+  });
+
+  it('calls an upper row a frame short of the lower one weak, with where to aim, in a set that turns only part of the way', () => {
+    const poses = [
+      ...Array.from({ length: 5 }, (_, k) => ({ yawDeg: 45 * k, pitchDeg: -20, rollDeg: 0 })),
+      ...Array.from({ length: 4 }, (_, k) => ({ yawDeg: 45 * k, pitchDeg: 20, rollDeg: 0 })),
+    ];
+    const report = judge(analysisOf(poses, { focalPx: wide }), defaultBudget);
+    expect(report.holes).toHaveLength(1);
+    const h = report.holes![0];
+    expect(h.verdict).toBe('weak');
+    expect(h.between).toBeNull();
+    expect(h.pitchDeg).toBe(20);
+    // The missing frame would be aimed at yaw 180: the piece runs from where the frame at 135 ends
+    // (about 175) to where the lower row's frame at 180 does (about 220).
+    expect(Math.abs(wrap(h.yawDeg - 180))).toBeLessThan(25);
+    expect(h.advice).toMatch(/stops about \d+° short of the others .* add a frame aimed at yaw -?\d+°, pitch \+20°, or crop/);
   });
 
   it('takes fullSphere as a declaration in the budget, and says what it expected', () => {

@@ -525,9 +525,10 @@ function findHoles(source: MapSource, g: SequenceGeometry, fullSphere: boolean):
     for (const piece of pieces) {
       const widthDeg = (piece.to - piece.from) * sampleDeg;
       const midYaw = wrapYaw(sampleYaw(piece.from) - sampleDeg / 2 + widthDeg / 2);
-      // Frames to add at 30 % overlap with the neighbours and each other (common practice: 30-50 %).
+      // Frames to add at 30 % overlap with the neighbours and each other (common practice: 30-50 %):
+      // a gap has a neighbour on both sides, a row's end on one.
       const F = row.frameDeg;
-      const n = Math.max(1, Math.ceil((widthDeg - 0.4 * F) / (0.7 * F)) + 1);
+      const n = piece.end ? Math.max(1, Math.ceil(widthDeg / (0.7 * F))) : Math.max(1, Math.ceil((widthDeg - 0.4 * F) / (0.7 * F)) + 1);
       const aims = Array.from({ length: n }, (_, k) => wrapYaw(sampleYaw(piece.from) - sampleDeg / 2 + ((k + 0.5) * widthDeg) / n));
       const fills = aims.map((y) => aimedCamera(y, row.pitchDeg, row.cams[0].width, row.cams[0].height));
       let pLo = Infinity, pHi = -Infinity, cells = 0;
@@ -578,9 +579,11 @@ function findHoles(source: MapSource, g: SequenceGeometry, fullSphere: boolean):
     }
   }
 
-  // What is left inside the band: bands between rows, a counted pole, notches. In a set that does
-  // not go round, only the yaw all its rows share, less a quarter frame at each end (the corners of
-  // the last frames of a row curve away there; a panorama is cropped to what its rows share).
+  // What is left between the rows' own pitches: bands between rows, notches; and beyond them up to
+  // a counted pole. Above the highest row and below the lowest, the frames' edges are jagged
+  // (hand-held rows scatter in pitch and roll) and a panorama is cropped there: no hole. In a set
+  // that does not go round, only the yaw all its rows share, less a quarter frame at each end (the
+  // corners of the last frames of a row curve away there; a panorama is cropped to what its rows share).
   const shared = new Uint8Array(samples).fill(1);
   if (!goesRound) {
     for (const r of rows) for (let k = 0; k < samples; k++) shared[k] &= r.cover[k];
@@ -591,11 +594,13 @@ function findHoles(source: MapSource, g: SequenceGeometry, fullSphere: boolean):
     }
     shared.set(kept);
   }
+  const holeFrom = band.nadir ? -90 : Math.min(...rows.map((r) => r.pitchDeg));
+  const holeTo = band.zenith ? 90 : Math.max(...rows.map((r) => r.pitchDeg));
   const rest = new Uint8Array(open.length);
   for (let cell = 0; cell < open.length; cell++) {
     if (!open[cell] || explained[cell]) continue;
     const r = Math.floor(cell / cols), pm = -90 + (r + 0.5) * c;
-    if (pm < band.fromDeg || pm > band.toDeg) continue;
+    if (pm < holeFrom || pm > holeTo) continue;
     const yaw = -180 + ((cell % cols) + 0.5) * c;
     if (!shared[Math.min(samples - 1, Math.floor((yaw + 180) / sampleDeg))]) continue;
     rest[cell] = 1;
