@@ -212,6 +212,24 @@ describe('holes in every row, and the poles only when asked or approached', () =
     expect(report.counts.reshoot).toBe(1);
   });
 
+  it('reshoots a gap too narrow to trust on the geometry alone when the frames either side failed to match', () => {
+    // The upper row's frame at 90 and the next one set 1 degree further apart than they reach
+    // along pitch 20 (half a frame's yaw there from the pinhole camera model of src/core/camera.ts).
+    const half = edgeYawAt({ yawDeg: 0, pitchDeg: 20, rollDeg: 0 }, W - 0.5, 20);
+    const next = 90 + 2 * half + 1;
+    const upper = [0, 45, 90, ...Array.from({ length: 5 }, (_, k) => next + ((360 - next) / 5) * k)].map((y) => ({ yawDeg: wrap(y), pitchDeg: 20, rollDeg: 0 }));
+    const poses = [...twoRows().slice(0, 8), ...upper];
+    const across = (a: Placed): boolean => a.pitchDeg === 20 && a.yawDeg === 90;
+    const geometryOnly = judge(analysisOf(poses, { focalPx: wide }), defaultBudget);
+    expect(geometryOnly.holes).toHaveLength(1);
+    expect(geometryOnly.holes![0].widthDeg).toBeLessThan(2);
+    expect(geometryOnly.holes![0].verdict).toBe('weak');
+    const failed = judge(analysisOf(poses, { focalPx: wide, pairs: rowPairs(poses, across) }), defaultBudget);
+    expect(failed.holes![0].verdict).toBe('reshoot');
+    const pair = failed.pairs.find((p) => p.homography === null)!;
+    expect([pair.verdict, pair.reasons]).toEqual(['reshoot', ['coverage-hole']]);
+  });
+
   it('flags the zenith of a set reaching up to frames at pitch 65, and only notes its nadir', () => {
     // 35 mm lens: rows at 0 and 30 of 12 frames, and 6 frames at 65 degrees, whose tops reach 84.
     const poses = [

@@ -170,13 +170,21 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
   }
 
   // Holes first: a failed pair between the stations either side of a located gap is that hole.
-  const { holes, notes } = coverageFindings({ ...analysis, budget });
+  const found = coverageFindings({ ...analysis, budget });
+  const notes = found.notes;
+  const stationKey = (p: PairMeasure): string | null => {
+    const i = stationOf.get(p.a)?.index, j = stationOf.get(p.b)?.index;
+    return i === undefined || j === undefined ? null : `${Math.min(i, j)}:${Math.max(i, j)}`;
+  };
+  const failedBetween = new Set(analysis.pairs.filter((p) => (p.kind === 'neighbour' || p.kind === 'closure') && p.homography === null).map(stationKey));
+  // A gap the geometry calls narrow (under 2 degrees, within its error) is no narrower when the
+  // frames either side failed to match: both say they do not meet, so it is to reshoot.
+  const holes: CoverageHole[] = found.holes.map((h) => (h.between && h.verdict !== 'reshoot' && failedBetween.has(`${h.between[0]}:${h.between[1]}`) ? { ...h, verdict: 'reshoot' } : h));
   const gapBetween = new Map<string, CoverageHole>();
   for (const h of holes) if (h.between) gapBetween.set(`${h.between[0]}:${h.between[1]}`, h);
   const holeOf = (p: PairMeasure): CoverageHole | null => {
-    const i = stationOf.get(p.a)?.index, j = stationOf.get(p.b)?.index;
-    if (i === undefined || j === undefined) return null;
-    return gapBetween.get(`${Math.min(i, j)}:${Math.max(i, j)}`) ?? null;
+    const key = stationKey(p);
+    return key === null ? null : gapBetween.get(key) ?? null;
   };
 
   // Pairs.
