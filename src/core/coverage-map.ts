@@ -378,18 +378,6 @@ function regionsOf(mask: Uint8Array, c: number): HoleRegion[] {
   return regions;
 }
 
-/** The holes of a map (its hatched runs) as connected regions. */
-export function holeRegions(map: CoverageMap): HoleRegion[] {
-  const c = map.cellDeg;
-  const cols = Math.round(360 / c);
-  const open = new Uint8Array(cols * Math.round(180 / c));
-  for (const h of map.holes) {
-    const r = Math.round((h.pitchFromDeg + 90) / c);
-    for (let y = h.yawFromDeg; y < h.yawToDeg; y += c) open[r * cols + Math.round((y + 180) / c)] = 1;
-  }
-  return regionsOf(open, c).map((r) => ({ ...r, pole: r.pole === 'zenith' && !map.poles.zenith ? null : r.pole === 'nadir' && !map.poles.nadir ? null : r.pole }));
-}
-
 const round = (v: number): number => Math.round(v);
 const wrapYaw = (d: number): number => ((((d + 180) % 360) + 360) % 360) - 180;
 const signedDeg = (v: number): string => `${round(v) > 0 ? '+' : ''}${round(v) || 0}°`;
