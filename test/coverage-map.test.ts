@@ -299,7 +299,14 @@ describe('holes in every row, and the poles only when asked or approached', () =
     expect(report.holes).toHaveLength(1);
     expect(report.holes![0].verdict).toBe('weak');
     expect(report.holes![0].between).toEqual([10, 12]);
-    expect(report.holes![0].advice).toMatch(/station 12 was shot between them and could not be placed/);
+    expect(report.holes![0].advice).toMatch(/station 12, shot next to station 11, could not be placed/);
+    // The chain broken at the gap: the four upper stations after it (from 0: 11 to 14, the yaw 135
+    // frame being gone) not placed either. Their stretch is not called missing frames.
+    const rest = analysisOf(poses, { focalPx: wide });
+    const broken = { ...rest.geometry!, poses: rest.geometry!.poses.filter((p) => p.station < 11), unplaced: [11, 12, 13, 14], rows: rest.geometry!.rows.map((r) => ({ ...r, stations: r.stations.filter((s) => s < 11) })) };
+    const chain = judge({ ...rest, geometry: broken }, defaultBudget);
+    expect(chain.holes!.length).toBeGreaterThan(0);
+    expect(chain.holes!.every((h) => h.verdict === 'weak' && /could not be placed/.test(h.advice))).toBe(true);
   });
 
   it('calls an upper row a frame short of the lower one weak, with where to aim, in a set that turns only part of the way', () => {

@@ -487,7 +487,6 @@ function findHoles(source: MapSource, g: SequenceGeometry, fullSphere: boolean):
   const holes: CoverageHole[] = [];
   // Cells a suggested frame would fill: they belong to that hole, not to another.
   const explained = new Uint8Array(open.length);
-  const placedStations = new Set(g.poses.map((p) => p.station));
   const unplaced = new Set(g.unplaced);
 
   for (const row of rows) {
@@ -540,12 +539,17 @@ function findHoles(source: MapSource, g: SequenceGeometry, fullSphere: boolean):
       const pair = [left?.s, right?.s].filter((x): x is number => x !== undefined).sort((a, b) => a - b);
       const between: [number, number] | null = !piece.end && pair.length === 2 && pair[0] !== pair[1] ? [pair[0], pair[1]] : null;
       const where = between ? `between stations ${between[0] + 1} and ${between[1] + 1}` : `next to station ${(left ?? right).s + 1}`;
-      // A station shot between the two that could not be placed may be the very frame aimed there.
-      let maybe: number | null = null;
-      if (between) {
-        const rowStations = new Set(row.cams.map((cam) => cam.station));
-        const inBetween = Array.from({ length: between[1] - between[0] - 1 }, (_, k) => between[0] + 1 + k);
-        if (!inBetween.some((s) => rowStations.has(s) && placedStations.has(s))) maybe = inBetween.find((s) => unplaced.has(s)) ?? null;
+      // A station shot just before or after one either side that could not be placed (no pose, so
+      // no footprint) may be the very frame aimed there: the gap may be a failed match, not a
+      // missing frame.
+      const sideStations = between ?? [(left ?? right).s];
+      let maybe: { station: number; next: number } | null = null;
+      for (const u of [...unplaced].sort((a, b) => a - b)) {
+        const next = sideStations.find((st) => Math.abs(u - st) === 1);
+        if (next !== undefined) {
+          maybe = { station: u, next };
+          break;
+        }
       }
       const aim = n === 1
         ? `add a frame aimed at yaw ${round(aims[0])}°, pitch ${signedDeg(row.pitchDeg)}`
@@ -558,10 +562,10 @@ function findHoles(source: MapSource, g: SequenceGeometry, fullSphere: boolean):
       } else {
         advice = `nothing covers about ${round(widthDeg)}° x ${round(heightDeg)}° at yaw ${round(midYaw)}°, pitch ${signedDeg(row.pitchDeg)} (${where}): ${aim}`;
         verdict = Math.min(widthDeg, heightDeg) >= 2 ? 'reshoot' : 'weak';
-        if (maybe !== null) {
-          advice += `; but station ${maybe + 1} was shot between them and could not be placed: if it is aimed there, it needs matching, not reshooting`;
-          verdict = 'weak';
-        }
+      }
+      if (maybe !== null) {
+        advice += `; but station ${maybe.station + 1}, shot next to station ${maybe.next + 1}, could not be placed: if it is aimed there, it needs matching, not reshooting`;
+        verdict = 'weak';
       }
       holes.push({ code: 'coverage-hole', verdict, yawDeg: midYaw, pitchDeg: row.pitchDeg, widthDeg, heightDeg, pole: null, advice, between });
     }
