@@ -620,9 +620,9 @@ function findHoles(source: MapSource, g: SequenceGeometry, fullSphere: boolean):
       const cap = poleCap(open, explained, c, pole, beyond);
       if (cap === null) continue;
       const text = pole === 'zenith'
-        ? `nothing covers the view above about pitch ${signedDeg(cap)} (the zenith): no frame is aimed above ${poleReachDeg}°, so the set is taken as not meant to cover it; declare a full sphere (--full-sphere) to have it checked`
-        : `nothing covers the view below about pitch ${signedDeg(cap)} (the nadir): no frame is aimed below -${poleReachDeg}°, so the set is taken as not meant to cover it; declare a full sphere (--full-sphere) to have it checked`;
-      notes.push({ pole, pitchDeg: cap, text });
+        ? `nothing covers the view above about pitch ${signedDeg(cap)} (the zenith): no frame is aimed above ${poleReachDeg}°, so the set is taken as not meant to cover it; declare a full sphere (the budget's full-sphere setting, or --full-sphere) to have it checked`
+        : `nothing covers the view below about pitch ${signedDeg(cap)} (the nadir): no frame is aimed below -${poleReachDeg}°, so the set is taken as not meant to cover it; declare a full sphere (the budget's full-sphere setting, or --full-sphere) to have it checked`;
+      notes.push({ pole, pitchDeg: Math.round(10 * cap) / 10, text });
     }
   }
   return { holes, notes };
