@@ -1,6 +1,12 @@
 // The coverage map: footprints checked against the demo generator's pinhole camera (an independent
 // implementation of the same model, src/core/camera.ts: pixelDirection), holes where a turn lacks a
-// frame and nowhere else, and the SVG's structure.
+// frame and nowhere else, and the SVG's structure. Holes in every row with where to aim (the gap's
+// width checked against the same pinhole model), and the poles only when a frame reaches toward
+// them or a full sphere is declared, on hand-made geometry (cheap; the demo generator's two-row
+// sets are in test/sequence-geometry.test.ts).
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import Ajv2020 from 'ajv/dist/2020.js';
 import { describe, expect, it } from 'vitest';
 import { cameraModel, directionAngles, pixelDirection } from '../src/core/camera.js';
 import { coverageHoles, coverageMap, coverageMapSvg, holeShare } from '../src/core/coverage-map.js';
@@ -9,6 +15,7 @@ import { defaultBudget } from '../src/core/report.js';
 import { judge, rejudge } from '../src/core/verdicts.js';
 import { resolveBudget } from '../src/core/budget.js';
 import { createRandom } from '../src/core/random.js';
+import { projectRoot } from './helpers/cli.js';
 
 const W = 3000, H = 2000, f = (35 / 36) * W;
 
@@ -210,6 +217,11 @@ describe('holes in every row, and the poles only when asked or approached', () =
     expect(failed[0].advice).toEqual([h.advice]);
     expect(report.verdict).toBe('reshoot');
     expect(report.counts.reshoot).toBe(1);
+    // The new fields (between, coverageNotes, budget.fullSphere) as the published schema says (JSON Schema 2020-12 via ajv).
+    const validate = new Ajv2020.default({ allErrors: true, strict: false }).compile(JSON.parse(readFileSync(join(projectRoot, 'schema/report.schema.json'), 'utf8')));
+    const written = JSON.parse(JSON.stringify(report));
+    expect(written.coverageNotes).toHaveLength(2);
+    expect(validate(written), JSON.stringify(validate.errors)).toBe(true);
   });
 
   it('reshoots a gap too narrow to trust on the geometry alone when the frames either side failed to match', () => {
