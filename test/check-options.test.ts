@@ -102,6 +102,23 @@ describe('the command line', () => {
     expect(prefer.stderr).toMatch(/Expected "jpeg" or "raw" for prefer/);
   }, 120_000);
 
+  it('declares a full sphere from the command line or the settings file, and says how in its help', async () => {
+    const json = join(tempDir(), 'sphere.json');
+    const r = await runCli(['check', demo.folder, '--full-sphere', '--json', json, '--threads', '0']);
+    const report = JSON.parse(readFileSync(json, 'utf8'));
+    expect(report.budget.fullSphere).toBe(true);
+    // A single sweep declared a full sphere: its open zenith and nadir are holes to reshoot.
+    expect(report.holes.filter((h: { pole: string | null }) => h.pole).map((h: { pole: string }) => h.pole).sort()).toEqual(['nadir', 'zenith']);
+    expect(r.code).toBe(1);
+    expect(r.stdout).toMatch(/add a frame aimed straight up/);
+    const settings = join(tempDir(), 'settings.json');
+    writeFileSync(settings, JSON.stringify({ budget: { fullSphere: 'maybe' } }));
+    const bad = await runCli(['check', demo.folder, '--settings', settings]);
+    expect(bad.code).toBe(2);
+    expect(bad.stderr).toMatch(/Expected true or false for fullSphere but received "maybe"/);
+    expect((await runCli(['help'])).stdout).toMatch(/--full-sphere +the set is meant to cover the whole sphere/);
+  }, 120_000);
+
   it('writes the inlier tie points at full resolution', async () => {
     const out = join(tempDir(), 'tie.csv');
     const r = await runCli(['check', demo.folder, '--tie-points', out, '--threads', '0', '--no-cache']);

@@ -378,6 +378,25 @@ describe('results and the budget panel', () => {
     expect(f.calls.filter((c) => c.name === 'saveBudget').at(-1)?.args[0]).toEqual(defaultBudget);
   });
 
+  it('declares a full sphere with its checkbox, saved with the budget, kept through other edits, shown when loaded', async () => {
+    const f = fakeApi();
+    await withResults(f);
+    const box = $<HTMLInputElement>('input[name="fullSphere"]')!;
+    expect(box.checked).toBe(false);
+    box.checked = true;
+    box.dispatchEvent(new Event('change', { bubbles: true }));
+    type('minInliers', '25');
+    await tick(5);
+    expect(f.calls.filter((c) => c.name === 'saveBudget').at(-1)?.args[0]).toEqual({ ...defaultBudget, minInliers: 25, fullSphere: true });
+    buttonNamed('Defaults').click();
+    expect(box.checked).toBe(false);
+    app?.destroy();
+    app = null;
+    document.body.replaceChildren(root);
+    await withResults(fakeApi({ budget: { ...defaultBudget, fullSphere: true } }));
+    expect($<HTMLInputElement>('input[name="fullSphere"]')?.checked).toBe(true);
+  });
+
   it('loads the stored budget at start and judges the report by it', async () => {
     const f = fakeApi({ budget: { ...defaultBudget, reshootOverlap: 0.1, weakOverlap: 0.14 } });
     await withResults(f);

@@ -371,4 +371,19 @@ describe('the coverage map', () => {
   it('is left out when the frames could not be placed', () => {
     expect(renderCoverage(report)).toBeNull();
   });
+
+  it('says in words that the poles are open when a set in rows does not reach toward them', () => {
+    // The three stations in two rows at -15 and +15 degrees, 3000 x 2000 frames at a 2000 px focal length.
+    const rows = judge({
+      ...analysis,
+      geometry: {
+        focalPx: 2000, focalFrom: 'exif', unplaced: [], horizontalDeg: 150, verticalDeg: 80, gaps: [], closure: null, rmsPx: 0.3,
+        poses: [{ station: 0, yawDeg: 0, pitchDeg: -15, rollDeg: 0 }, { station: 1, yawDeg: 50, pitchDeg: -15, rollDeg: 0 }, { station: 2, yawDeg: 25, pitchDeg: 15, rollDeg: 0 }],
+        rows: [{ pitchDeg: -15, stations: [0, 1] }, { pitchDeg: 15, stations: [2] }],
+      },
+    }, defaultBudget);
+    const s = renderCoverage(rows)!;
+    expect([...s.querySelectorAll('[data-note]')].map((n) => n.getAttribute('data-note'))).toEqual(['zenith', 'nadir']);
+    expect(s.textContent).toMatch(/Note: nothing covers the view above about pitch \+\d+° \(the zenith\)/);
+  });
 });

@@ -2,11 +2,14 @@
  * The coverage map: every placed frame's footprint on an equirectangular view of the sphere around
  * the camera (yaw across, pitch up), and the directions inside the shot band no frame sees.
  */
-import type { Analysis, CoverageHole, SequenceGeometry, Verdict } from './report.js';
+import type { Analysis, CoverageHole, CoverageNote, MatchBudget, SequenceGeometry, Verdict } from './report.js';
 import { cross } from './rotations.js';
 
-/** What the map is drawn from: the frames' sizes, the stations' reference frames, the geometry. */
-export type MapSource = Pick<Analysis, 'frames' | 'stations' | 'geometry'>;
+/**
+ * What the map is drawn from: the frames' sizes, the stations' reference frames, the geometry, and
+ * (from a report or a budget) whether the set is declared a full sphere.
+ */
+export type MapSource = Pick<Analysis, 'frames' | 'stations' | 'geometry'> & { readonly budget?: Pick<MatchBudget, 'fullSphere'> | null };
 
 type Vec = [number, number, number];
 
@@ -50,6 +53,8 @@ export interface CoverageMap {
   readonly holes: HoleRun[];
   /** The band of pitch the frames were aimed over, where an uncovered direction is a hole. */
   readonly band: { readonly fromDeg: number; readonly toDeg: number };
+  /** Whether an open zenith or nadir counts as a hole (the set reaches toward it, or a full sphere is declared). */
+  readonly poles: { readonly zenith: boolean; readonly nadir: boolean };
   readonly cellDeg: number;
 }
 
@@ -88,40 +93,119 @@ function sees(c: PlacedCamera, f: number, d: Vec): boolean {
 }
 
 /**
- * Footprints and holes of a report's geometry, on a grid of `cellDeg`. The band where holes count
- * runs from the lowest to the highest frame centre, widened by 80 % of half a frame's height, so the
- * notches where frames of one row meet at their corners do not count; a set reaching within a
- * frame of a pole counts up to the pole (a missing zenith or nadir).
+ * A frame aimed above this pitch reaches toward the zenith (below its negative, toward the nadir).
+ * Common practice: a set meant to cover the sphere has a row at about 60 degrees or more before the
+ * pole frame; a set whose frames all stay lower is not meant to cover the pole, unless it says so.
  */
+export const poleReachDeg = 60;
+/** Hand-held, a row aimed at a pitch comes out a degree or two either side of it (common practice). */
+const poleReachSlackDeg = 2;
+
+interface Band {
+  readonly fromDeg: number;
+  readonly toDeg: number;
+  /** Whether an open zenith or nadir counts as a hole: the set reaches toward it, or a full sphere is declared. */
+  readonly zenith: boolean;
+  readonly nadir: boolean;
+}
+
 /**
- * The band of pitch the frames were aimed over: from the lowest to the highest frame centre,
- * widened by 80 % of half a frame's height; up to a pole when it comes within a frame of it.
+ * The band of pitch the frames were aimed over, where an uncovered direction is a hole: from the
+ * lowest to the highest frame centre, widened by 80 % of half a frame's height, so the notches where
+ * frames of one row meet at their corners do not count; up to a pole when a frame reaches toward it
+ * (a centre beyond `poleReachDeg`) or the set is declared a full sphere.
  */
-function shotBand(cams: readonly PlacedCamera[], f: number): { fromDeg: number; toDeg: number } {
+function shotBand(cams: readonly PlacedCamera[], f: number, fullSphere: boolean): Band {
   const halfV = Math.max(...cams.map((c) => (Math.atan(c.height / (2 * f)) * 180) / Math.PI));
   const pitches = cams.map((c) => angles(c.axes.z)[1]);
-  let from = Math.min(...pitches) - 0.8 * halfV, to = Math.max(...pitches) + 0.8 * halfV;
-  if (to > 90 - 2 * halfV) to = 90;
-  if (from < -90 + 2 * halfV) from = -90;
-  return { fromDeg: from, toDeg: to };
+  const top = Math.max(...pitches), bottom = Math.min(...pitches);
+  const zenith = fullSphere || top >= poleReachDeg - poleReachSlackDeg;
+  const nadir = fullSphere || bottom <= -(poleReachDeg - poleReachSlackDeg);
+  return {
+    fromDeg: nadir ? -90 : Math.max(-90, bottom - 0.8 * halfV),
+    toDeg: zenith ? 90 : Math.min(90, top + 0.8 * halfV),
+    zenith,
+    nadir,
+  };
+}
+
+const fullSphereOf = (source: MapSource): boolean => source.budget?.fullSphere === true;
+
+/**
+ * Which cells of the whole sphere no frame sees: row r spans pitch -90 + r c to -90 + (r + 1) c,
+ * column q yaw -180 + q c to -180 + (q + 1) c, judged at the cell's middle.
+ */
+function openCells(cams: readonly PlacedCamera[], f: number, c: number): Uint8Array {
+  const cols = Math.round(360 / c), rowsN = Math.round(180 / c);
+  const open = new Uint8Array(cols * rowsN);
+  const ranges = cams.map((cam) => pitchRange(cam, f));
+  for (let r = 0; r < rowsN; r++) {
+    const pm = -90 + (r + 0.5) * c;
+    // Only the frames whose pitch range holds this row of cells can see it.
+    const here = cams.filter((_, k) => ranges[k][0] <= pm && pm <= ranges[k][1]);
+    for (let q = 0; q < cols; q++) {
+      const d = directionOf(-180 + (q + 0.5) * c, pm);
+      open[r * cols + q] = here.some((cam) => sees(cam, f, d)) ? 0 : 1;
+    }
+  }
+  return open;
+}
+
+/**
+ * The pitch a frame spans: its extremes lie on its border unless it sees a pole (pitch has no other
+ * extreme inside the frame), sampled along the border and widened by a degree for the samples' spacing.
+ */
+function pitchRange(cam: PlacedCamera, f: number): [number, number] {
+  let lo = Infinity, hi = -Infinity;
+  const W = cam.width - 0.5, H = cam.height - 0.5, steps = 32;
+  for (let k = 0; k <= steps; k++) {
+    const t = k / steps;
+    for (const [u, v] of [[-0.5 + t * (W + 0.5), -0.5], [-0.5 + t * (W + 0.5), H], [-0.5, -0.5 + t * (H + 0.5)], [W, -0.5 + t * (H + 0.5)]]) {
+      const p = angles(direction(cam, f, u, v))[1];
+      lo = Math.min(lo, p);
+      hi = Math.max(hi, p);
+    }
+  }
+  if (sees(cam, f, [0, -1, 0])) hi = 90;
+  if (sees(cam, f, [0, 1, 0])) lo = -90;
+  return [lo - 1, hi + 1];
+}
+
+// Open cells already found, by geometry and cell size (re-judging with another budget keeps the geometry).
+const opened = new WeakMap<SequenceGeometry, Map<number, Uint8Array>>();
+
+function openCellsOf(report: MapSource, g: SequenceGeometry, cams: readonly PlacedCamera[], c: number): Uint8Array {
+  const cached = opened.get(g)?.get(c);
+  if (cached) return cached;
+  const open = openCells(cams, g.focalPx, c);
+  if (!opened.has(g)) opened.set(g, new Map());
+  opened.get(g)!.set(c, open);
+  return open;
 }
 
 // Maps already drawn, by geometry (re-judging with another budget keeps the geometry).
-const drawn = new WeakMap<SequenceGeometry, Map<number, CoverageMap | null>>();
+const drawn = new WeakMap<SequenceGeometry, Map<string, CoverageMap | null>>();
 
+/**
+ * Footprints and holes of a report's geometry, on a grid of `cellDeg`. Holes count inside the shot
+ * band (see shotBand); the poles only when the set reaches toward them or its budget declares a
+ * full sphere.
+ */
 export function coverageMap(report: MapSource, cellDeg = 1): CoverageMap | null {
   const g = report.geometry;
   if (!g || g.poses.length === 0) return null;
-  const cached = drawn.get(g)?.get(cellDeg);
+  const key = `${cellDeg}:${fullSphereOf(report)}`;
+  const cached = drawn.get(g)?.get(key);
   if (cached !== undefined) return cached;
   const map = drawMap(report, g, cellDeg);
   if (!drawn.has(g)) drawn.set(g, new Map());
-  drawn.get(g)!.set(cellDeg, map);
+  drawn.get(g)!.set(key, map);
   return map;
 }
 
 function drawMap(report: MapSource, g: SequenceGeometry, cellDeg: number): CoverageMap | null {
   const cams = placedCameras(report, g);
+  if (cams.length === 0) return null;
   const f = g.focalPx;
   const footprints: Footprint[] = cams.map((c) => {
     const border: [number, number][] = [];
@@ -148,23 +232,24 @@ function drawMap(report: MapSource, g: SequenceGeometry, cellDeg: number): Cover
     return { station: c.station, outline, centre: angles(c.axes.z) };
   });
 
-  const { fromDeg: from, toDeg: to } = shotBand(cams, f);
+  const band = shotBand(cams, f, fullSphereOf(report));
+  const open = openCellsOf(report, g, cams, cellDeg);
+  const cols = Math.round(360 / cellDeg), rowsN = Math.round(180 / cellDeg);
   const holes: HoleRun[] = [];
-  for (let pc = -90; pc < 90; pc += cellDeg) {
-    const pm = pc + cellDeg / 2;
-    if (pm < from || pm > to) continue;
+  for (let r = 0; r < rowsN; r++) {
+    const pc = -90 + r * cellDeg, pm = pc + cellDeg / 2;
+    if (pm < band.fromDeg || pm > band.toDeg) continue;
     let runStart: number | null = null;
-    for (let yc = -180; yc <= 180; yc += cellDeg) {
-      const d = directionOf(yc + cellDeg / 2, pm);
-      const open = yc < 180 && !cams.some((c) => sees(c, f, d));
-      if (open && runStart === null) runStart = yc;
-      if (!open && runStart !== null) {
-        holes.push({ pitchFromDeg: pc, pitchToDeg: pc + cellDeg, yawFromDeg: runStart, yawToDeg: yc });
+    for (let q = 0; q <= cols; q++) {
+      const isOpen = q < cols && open[r * cols + q] === 1;
+      if (isOpen && runStart === null) runStart = q;
+      if (!isOpen && runStart !== null) {
+        holes.push({ pitchFromDeg: pc, pitchToDeg: pc + cellDeg, yawFromDeg: -180 + runStart * cellDeg, yawToDeg: -180 + q * cellDeg });
         runStart = null;
       }
     }
   }
-  return { footprints, holes, band: { fromDeg: from, toDeg: to }, cellDeg };
+  return { footprints, holes, band: { fromDeg: band.fromDeg, toDeg: band.toDeg }, poles: { zenith: band.zenith, nadir: band.nadir }, cellDeg };
 }
 
 /** Degrees of the band left uncovered (area-weighted by cos pitch, so a pole cap is not overstated), as a share of the band. */
@@ -230,25 +315,23 @@ interface HoleRegion {
   readonly pitchDeg: number;
   readonly widthDeg: number;
   readonly heightDeg: number;
+  /** The region reaches the top (zenith) or bottom (nadir) row of cells. */
   readonly pole: 'zenith' | 'nadir' | null;
 }
 
-/** The holes of a map as connected regions. */
-export function holeRegions(map: CoverageMap): HoleRegion[] {
-  const c = map.cellDeg;
+/** The set cells of a grid (`cellDeg`, as openCells) as connected regions. */
+function regionsOf(mask: Uint8Array, c: number): HoleRegion[] {
   const cols = Math.round(360 / c), rowsN = Math.round(180 / c);
-  const open = new Uint8Array(cols * rowsN);
-  for (const h of map.holes) {
-    const r = Math.round((h.pitchFromDeg + 90) / c);
-    for (let y = h.yawFromDeg; y < h.yawToDeg; y += c) open[r * cols + Math.round((y + 180) / c)] = 1;
-  }
-  const seen = new Uint8Array(open.length);
+  const seen = new Uint8Array(mask.length);
   const regions: HoleRegion[] = [];
-  for (let start = 0; start < open.length; start++) {
-    if (!open[start] || seen[start]) continue;
-    const stack = [start];
+  const stack: number[] = [];
+  const cells: number[] = [];
+  for (let start = 0; start < mask.length; start++) {
+    if (!mask[start] || seen[start]) continue;
+    stack.length = 0;
+    cells.length = 0;
+    stack.push(start);
     seen[start] = 1;
-    const cells: number[] = [];
     while (stack.length) {
       const k = stack.pop()!;
       cells.push(k);
@@ -258,7 +341,7 @@ export function holeRegions(map: CoverageMap): HoleRegion[] {
           const rr = r + dr;
           if (rr < 0 || rr >= rowsN) continue;
           const nk = rr * cols + ((q + dq + cols) % cols);
-          if (open[nk] && !seen[nk]) {
+          if (mask[nk] && !seen[nk]) {
             seen[nk] = 1;
             stack.push(nk);
           }
@@ -281,7 +364,7 @@ export function holeRegions(map: CoverageMap): HoleRegion[] {
       yLo = Math.min(yLo, d - c / 2);
       yHi = Math.max(yHi, d + c / 2);
     }
-    const pole = pHi >= 90 && map.band.toDeg >= 90 ? 'zenith' : pLo <= -90 && map.band.fromDeg <= -90 ? 'nadir' : null;
+    const pole = pHi >= 90 ? 'zenith' : pLo <= -90 ? 'nadir' : null;
     const wraps = yHi - yLo >= 359;
     regions.push({
       cells: cells.length,
@@ -297,42 +380,293 @@ export function holeRegions(map: CoverageMap): HoleRegion[] {
 
 const round = (v: number): number => Math.round(v);
 const wrapYaw = (d: number): number => ((((d + 180) % 360) + 360) % 360) - 180;
+const signedDeg = (v: number): string => `${round(v) > 0 ? '+' : ''}${round(v) || 0}°`;
+
+/** Samples of yaw along a row's pitch: 0.5 degrees apart, sample k at yaw -180 + (k + 0.5) / 2. */
+const sampleDeg = 0.5;
+const samples = Math.round(360 / sampleDeg);
+const sampleYaw = (k: number): number => -180 + (k + 0.5) * sampleDeg;
+
+/** Which yaws at `pitchDeg` the given frames see. */
+function lineCover(cams: readonly PlacedCamera[], f: number, pitchDeg: number): Uint8Array {
+  const cover = new Uint8Array(samples);
+  for (let k = 0; k < samples; k++) {
+    const d = directionOf(sampleYaw(k), pitchDeg);
+    cover[k] = cams.some((c) => sees(c, f, d)) ? 1 : 0;
+  }
+  return cover;
+}
+
+/** Runs of unset samples around the circle: [from, to) with to > from, indices taken modulo the samples. */
+function openRuns(cover: Uint8Array): [number, number][] {
+  const k0 = cover.indexOf(1);
+  if (k0 < 0) return [[0, samples]];
+  const runs: [number, number][] = [];
+  let start = -1;
+  for (let k = k0; k <= k0 + samples; k++) {
+    const set = k === k0 + samples || cover[k % samples] === 1;
+    if (!set && start < 0) start = k;
+    if (set && start >= 0) {
+      runs.push([start, k]);
+      start = -1;
+    }
+  }
+  return runs;
+}
+
+/** A camera aimed at a yaw and pitch, level, of a given size: where a frame to fill a hole would go. */
+const aimedCamera = (yawDeg: number, pitchDeg: number, width: number, height: number): PlacedCamera => ({ station: -1, width, height, axes: axesOf(yawDeg, pitchDeg, 0) });
+
+interface Row {
+  readonly pitchDeg: number;
+  readonly cams: PlacedCamera[];
+  readonly cover: Uint8Array;
+  /** Degrees of yaw one of its frames spans along the row's pitch. */
+  readonly frameDeg: number;
+}
+
+/** Holes worth a reshoot and notes worth knowing, as judge puts them in the report. */
+export interface CoverageFindings {
+  readonly holes: CoverageHole[];
+  readonly notes: CoverageNote[];
+}
+
+// Findings already made, by geometry and declaration (re-judging with another budget keeps the geometry).
+const found = new WeakMap<SequenceGeometry, Map<boolean, CoverageFindings>>();
 
 /**
- * Holes worth a reshoot in a set shot in rows or up to a pole, with where to aim: gaps inside a
- * row, bands between rows, and a missing zenith or nadir. A single sweep gets none (its gaps are
- * the pairs' own flags, low-overlap, no-match and no-closure). Holes under 2 degrees across are weak
- * (within the error of the poses and the footprint model); larger ones reshoot.
+ * Holes worth a reshoot, with where to aim, and notes. Each row's own frames, along the row's
+ * pitch, find its gaps; a gap is a hole where no other frame covers it either, located at the
+ * row's pitch and the gap's middle (whether or not the frames either side matched each other).
+ * The rest of what no frame sees inside the shot band (bands between rows, a zenith or nadir the
+ * set reaches toward or declares) are holes of their own. A single sweep gets no holes unless it
+ * is declared a full sphere (its gaps are the pairs' own flags: low-overlap, no-match, no-closure).
+ * In a set that does not go all the way round, only what lies within the yaw its rows span counts.
+ * An open pole the set neither reaches toward nor declares is a note, not a hole.
  */
-export function coverageHoles(source: MapSource): CoverageHole[] {
+export function coverageFindings(source: MapSource): CoverageFindings {
   const g = source.geometry;
-  if (!g || g.poses.length === 0) return [];
-  // A single sweep short of the poles has no holes of its own: decided before drawing the map.
-  if ((g.rows?.length ?? 1) < 2) {
-    const cams = placedCameras(source, g);
-    if (cams.length === 0) return [];
-    const band = shotBand(cams, g.focalPx);
-    if (band.toDeg < 90 && band.fromDeg > -90) return [];
+  if (!g || g.poses.length === 0) return { holes: [], notes: [] };
+  const fullSphere = fullSphereOf(source);
+  const cached = found.get(g)?.get(fullSphere);
+  if (cached) return cached;
+  const result = findHoles(source, g, fullSphere);
+  if (!found.has(g)) found.set(g, new Map());
+  found.get(g)!.set(fullSphere, result);
+  return result;
+}
+
+/** The holes of coverageFindings. */
+export function coverageHoles(source: MapSource): CoverageHole[] {
+  return coverageFindings(source).holes;
+}
+
+function findHoles(source: MapSource, g: SequenceGeometry, fullSphere: boolean): CoverageFindings {
+  const cams = placedCameras(source, g);
+  if (cams.length === 0) return { holes: [], notes: [] };
+  const f = g.focalPx;
+  const band = shotBand(cams, f, fullSphere);
+  const rowList = g.rows?.length ? g.rows : [{ pitchDeg: g.poses.reduce((t, p) => t + p.pitchDeg, 0) / g.poses.length, stations: g.poses.map((p) => p.station) }];
+  const multiRow = rowList.length >= 2;
+  if (!multiRow && !band.zenith && !band.nadir) return { holes: [], notes: [] };
+
+  const c = 1;
+  const cols = Math.round(360 / c);
+  const open = openCellsOf(source, g, cams, c);
+  const rows: Row[] = rowList.flatMap((r) => {
+    const rc = cams.filter((cam) => r.stations.includes(cam.station));
+    if (rc.length === 0) return [];
+    const frameDeg = lineCover([aimedCamera(0, r.pitchDeg, rc[0].width, rc[0].height)], f, r.pitchDeg).reduce((t, v) => t + v, 0) * sampleDeg;
+    return [{ pitchDeg: r.pitchDeg, cams: rc, cover: lineCover(rc, f, r.pitchDeg), frameDeg }];
+  });
+  // The yaw the set spans: what any row covers along its own pitch; all of it when declared a full sphere.
+  const span = new Uint8Array(samples);
+  for (const r of rows) for (let k = 0; k < samples; k++) span[k] |= r.cover[k];
+  const goesRound = fullSphere || span.every((v) => v === 1);
+
+  const holes: CoverageHole[] = [];
+  // Cells a suggested frame would fill: they belong to that hole, not to another.
+  const explained = new Uint8Array(open.length);
+  const unplaced = new Set(g.unplaced);
+
+  for (const row of rows) {
+    const pieces: { from: number; to: number; end: boolean }[] = [];
+    for (const [from, to] of openRuns(row.cover)) {
+      let inside = true;
+      for (let k = from; k < to && inside; k++) if (!goesRound && !span[k % samples]) inside = false;
+      if (inside) {
+        pieces.push({ from, to, end: false });
+        continue;
+      }
+      // Where the row stops short of the other rows: a crop, unless it is a frame's worth.
+      let s0 = -1;
+      for (let k = from; k <= to; k++) {
+        const within = k < to && span[k % samples] === 1;
+        if (within && s0 < 0) s0 = k;
+        if (!within && s0 >= 0) {
+          if ((k - s0) * sampleDeg >= 0.5 * row.frameDeg) pieces.push({ from: s0, to: k, end: true });
+          s0 = -1;
+        }
+      }
+    }
+    for (const piece of pieces) {
+      const widthDeg = (piece.to - piece.from) * sampleDeg;
+      const midYaw = wrapYaw(sampleYaw(piece.from) - sampleDeg / 2 + widthDeg / 2);
+      // Frames to add at 30 % overlap with the neighbours and each other (common practice: 30-50 %):
+      // a gap has a neighbour on both sides, a row's end on one.
+      const F = row.frameDeg;
+      const n = piece.end ? Math.max(1, Math.ceil(widthDeg / (0.7 * F))) : Math.max(1, Math.ceil((widthDeg - 0.4 * F) / (0.7 * F)) + 1);
+      const aims = Array.from({ length: n }, (_, k) => wrapYaw(sampleYaw(piece.from) - sampleDeg / 2 + ((k + 0.5) * widthDeg) / n));
+      const fills = aims.map((y) => aimedCamera(y, row.pitchDeg, row.cams[0].width, row.cams[0].height));
+      let pLo = Infinity, pHi = -Infinity, cells = 0;
+      for (let cell = 0; cell < open.length; cell++) {
+        if (!open[cell] || explained[cell]) continue;
+        const r = Math.floor(cell / cols);
+        const d = directionOf(-180 + ((cell % cols) + 0.5) * c, -90 + (r + 0.5) * c);
+        if (!fills.some((cam) => sees(cam, f, d))) continue;
+        explained[cell] = 1;
+        cells++;
+        pLo = Math.min(pLo, -90 + r * c);
+        pHi = Math.max(pHi, -90 + (r + 1) * c);
+      }
+      // Other frames see all of it: no hole on the sphere.
+      if (cells === 0) continue;
+      const heightDeg = pHi - pLo;
+      // The row's stations either side of the gap.
+      const sides = row.cams.map((cam) => ({ s: cam.station, d: wrapYaw(angles(cam.axes.z)[0] - midYaw) }));
+      const left = sides.filter((x) => x.d < 0).sort((a, b) => b.d - a.d)[0];
+      const right = sides.filter((x) => x.d >= 0).sort((a, b) => a.d - b.d)[0];
+      const pair = [left?.s, right?.s].filter((x): x is number => x !== undefined).sort((a, b) => a - b);
+      const between: [number, number] | null = !piece.end && pair.length === 2 && pair[0] !== pair[1] ? [pair[0], pair[1]] : null;
+      const where = between ? `between stations ${between[0] + 1} and ${between[1] + 1}` : `next to station ${(left ?? right).s + 1}`;
+      // A station shot just before or after one either side that could not be placed (no pose, so
+      // no footprint) may be the very frame aimed there: the gap may be a failed match, not a
+      // missing frame.
+      const sideStations = between ?? [(left ?? right).s];
+      let maybe: { station: number; next: number } | null = null;
+      for (const u of [...unplaced].sort((a, b) => a - b)) {
+        const next = sideStations.find((st) => Math.abs(u - st) === 1);
+        if (next !== undefined) {
+          maybe = { station: u, next };
+          break;
+        }
+      }
+      const aim = n === 1
+        ? `add a frame aimed at yaw ${round(aims[0])}°, pitch ${signedDeg(row.pitchDeg)}`
+        : `add ${n} frames aimed from yaw ${round(aims[0])}° to ${round(aims[n - 1])}°, at pitch ${signedDeg(row.pitchDeg)}`;
+      let advice: string;
+      let verdict: Verdict;
+      if (piece.end) {
+        advice = `the row at pitch ${signedDeg(row.pitchDeg)} stops about ${round(widthDeg)}° short of the others at yaw ${round(midYaw)}° (${where}): ${aim}, or crop the panorama there`;
+        verdict = 'weak';
+      } else {
+        advice = `nothing covers about ${round(widthDeg)}° x ${round(heightDeg)}° at yaw ${round(midYaw)}°, pitch ${signedDeg(row.pitchDeg)} (${where}): ${aim}`;
+        verdict = Math.min(widthDeg, heightDeg) >= 2 ? 'reshoot' : 'weak';
+      }
+      if (maybe !== null) {
+        advice += `; but station ${maybe.station + 1}, shot next to station ${maybe.next + 1}, could not be placed: if it is aimed there, it needs matching, not reshooting`;
+        verdict = 'weak';
+      }
+      holes.push({ code: 'coverage-hole', verdict, yawDeg: midYaw, pitchDeg: row.pitchDeg, widthDeg, heightDeg, pole: null, advice, between });
+    }
   }
-  const map = coverageMap(source);
-  if (!map) return [];
-  // The hole's neighbours: in the row nearest its pitch, the stations either side of it in yaw.
-  const near = (yaw: number, pitch: number): string => {
-    const rows = g.rows?.length ? g.rows : [{ pitchDeg: 0, stations: g.poses.map((p) => p.station) }];
-    const row = rows.reduce((a, b) => (Math.abs(b.pitchDeg - pitch) < Math.abs(a.pitchDeg - pitch) ? b : a));
-    const inRow = g.poses.filter((p) => row.stations.includes(p.station)).map((p) => ({ s: p.station + 1, d: wrapYaw(p.yawDeg - yaw) }));
-    const left = inRow.filter((x) => x.d < 0).sort((a, b) => b.d - a.d)[0];
-    const right = inRow.filter((x) => x.d >= 0).sort((a, b) => a.d - b.d)[0];
-    const pair = [left?.s, right?.s].filter((x): x is number => x !== undefined).sort((a, b) => a - b);
-    return pair.length === 2 && pair[0] !== pair[1] ? `between stations ${pair[0]} and ${pair[1]}` : `next to station ${pair[0]}`;
-  };
-  return holeRegions(map).map((r) => {
+
+  // What is left between the rows' own pitches: bands between rows, notches; and beyond them up to
+  // a counted pole. Above the highest row and below the lowest, the frames' edges are jagged
+  // (hand-held rows scatter in pitch and roll) and a panorama is cropped there: no hole. In a set
+  // that does not go round, only the yaw all its rows share, less a quarter frame at each end (the
+  // corners of the last frames of a row curve away there; a panorama is cropped to what its rows share).
+  const shared = new Uint8Array(samples).fill(1);
+  if (!goesRound) {
+    for (const r of rows) for (let k = 0; k < samples; k++) shared[k] &= r.cover[k];
+    const trim = Math.round((0.25 * Math.max(...rows.map((r) => r.frameDeg))) / sampleDeg);
+    const kept = shared.slice();
+    for (const [from, to] of openRuns(shared)) {
+      for (let k = from - trim; k < to + trim; k++) kept[((k % samples) + samples) % samples] = 0;
+    }
+    shared.set(kept);
+  }
+  const holeFrom = band.nadir ? -90 : Math.min(...rows.map((r) => r.pitchDeg));
+  const holeTo = band.zenith ? 90 : Math.max(...rows.map((r) => r.pitchDeg));
+  const rest = new Uint8Array(open.length);
+  for (let cell = 0; cell < open.length; cell++) {
+    if (!open[cell] || explained[cell]) continue;
+    const r = Math.floor(cell / cols), pm = -90 + (r + 0.5) * c;
+    if (pm < holeFrom || pm > holeTo) continue;
+    const yaw = -180 + ((cell % cols) + 0.5) * c;
+    if (!shared[Math.min(samples - 1, Math.floor((yaw + 180) / sampleDeg))]) continue;
+    rest[cell] = 1;
+  }
+  for (const r of regionsOf(rest, c)) {
+    // A pole not counted is the notes' business.
+    if ((r.pole === 'zenith' && !band.zenith) || (r.pole === 'nadir' && !band.nadir)) continue;
     const verdict: Verdict = Math.min(r.widthDeg, r.heightDeg) >= 2 || r.pole ? 'reshoot' : 'weak';
     let advice: string;
-    if (r.pole === 'zenith') advice = `the sky straight up is not covered above pitch ${round(90 - r.heightDeg)}°: add a frame aimed straight up`;
-    else if (r.pole === 'nadir') advice = `the ground straight down is not covered below pitch ${round(-90 + r.heightDeg)}°: add a frame aimed straight down (common practice: hand-held, with the tripod moved aside)`;
-    else if (r.widthDeg >= 359) advice = `nothing covers pitch ${round(r.pitchDeg - r.heightDeg / 2)}° to ${round(r.pitchDeg + r.heightDeg / 2)}° all the way round: the rows are too far apart; add a row at pitch ${round(r.pitchDeg)}°, or tilt the rows closer together`;
-    else advice = `nothing covers about ${round(r.widthDeg)}° x ${round(r.heightDeg)}° at yaw ${round(wrapYaw(r.yawDeg))}°, pitch ${round(r.pitchDeg)}° (${near(r.yawDeg, r.pitchDeg)}): add a frame aimed there`;
-    return { code: 'coverage-hole', verdict, yawDeg: wrapYaw(r.yawDeg), pitchDeg: r.pitchDeg, widthDeg: r.widthDeg, heightDeg: r.heightDeg, pole: r.pole, advice };
-  });
+    if (r.pole === 'zenith') advice = `the sky straight up is not covered above pitch ${signedDeg(90 - r.heightDeg)}: add a frame aimed straight up`;
+    else if (r.pole === 'nadir') advice = `the ground straight down is not covered below pitch ${signedDeg(-90 + r.heightDeg)}: add a frame aimed straight down (common practice: hand-held, with the tripod moved aside)`;
+    else if (r.widthDeg >= 359) advice = `nothing covers pitch ${signedDeg(r.pitchDeg - r.heightDeg / 2)} to ${signedDeg(r.pitchDeg + r.heightDeg / 2)} all the way round: the rows are too far apart; add a row at pitch ${signedDeg(r.pitchDeg)}, or tilt the rows closer together`;
+    else advice = `nothing covers about ${round(r.widthDeg)}° x ${round(r.heightDeg)}° at yaw ${round(wrapYaw(r.yawDeg))}°, pitch ${signedDeg(r.pitchDeg)} (${nearStations(rows, r.yawDeg, r.pitchDeg)}): add a frame aimed there`;
+    holes.push({ code: 'coverage-hole', verdict, yawDeg: wrapYaw(r.yawDeg), pitchDeg: r.pitchDeg, widthDeg: r.widthDeg, heightDeg: r.heightDeg, pole: r.pole, advice, between: null });
+  }
+
+  // An open pole the set does not reach toward: said once, asking for nothing (sets in rows only;
+  // a single sweep plainly leaves both poles).
+  const notes: CoverageNote[] = [];
+  if (multiRow) {
+    const centres = cams.map((cam) => angles(cam.axes.z)[1]);
+    for (const pole of ['zenith', 'nadir'] as const) {
+      if (pole === 'zenith' ? band.zenith : band.nadir) continue;
+      const beyond = pole === 'zenith' ? Math.max(...centres) : Math.min(...centres);
+      const cap = poleCap(open, explained, c, pole, beyond);
+      if (cap === null) continue;
+      const text = pole === 'zenith'
+        ? `nothing covers the view above about pitch ${signedDeg(cap)} (the zenith): no frame is aimed above ${poleReachDeg}°, so the set is taken as not meant to cover it; declare a full sphere (the budget's full-sphere setting, or --full-sphere) to have it checked`
+        : `nothing covers the view below about pitch ${signedDeg(cap)} (the nadir): no frame is aimed below -${poleReachDeg}°, so the set is taken as not meant to cover it; declare a full sphere (the budget's full-sphere setting, or --full-sphere) to have it checked`;
+      notes.push({ pole, pitchDeg: Math.round(10 * cap) / 10, text });
+    }
+  }
+  return { holes, notes };
+}
+
+/**
+ * Where the open cap around a pole begins: the mean over yaw of its lowest (zenith) or highest
+ * (nadir) open pitch, over the open cells joined to the pole beyond the frames' centres; null when
+ * the pole is seen.
+ */
+function poleCap(open: Uint8Array, explained: Uint8Array, c: number, pole: 'zenith' | 'nadir', beyondDeg: number): number | null {
+  const cols = Math.round(360 / c), rowsN = Math.round(180 / c);
+  const first = pole === 'zenith' ? rowsN - 1 : 0, step = pole === 'zenith' ? -1 : 1;
+  const reach = new Float64Array(cols).fill(NaN);
+  let reached = new Uint8Array(cols);
+  for (let q = 0; q < cols; q++) reached[q] = open[first * cols + q] && !explained[first * cols + q] ? 1 : 0;
+  if (!reached.some((v) => v === 1)) return null;
+  for (let r = first; r >= 0 && r < rowsN; r += step) {
+    const lo = -90 + r * c, hi = lo + c;
+    if (pole === 'zenith' ? lo < beyondDeg : hi > beyondDeg) break;
+    const next = new Uint8Array(cols);
+    let any = false;
+    for (let q = 0; q < cols; q++) {
+      const cell = r * cols + q;
+      if (!open[cell] || explained[cell]) continue;
+      // Joined to the cap: open in the row nearer the pole at this yaw or beside it.
+      if (r !== first && !(reached[q] || reached[(q + 1) % cols] || reached[(q + cols - 1) % cols])) continue;
+      next[q] = 1;
+      any = true;
+      reach[q] = pole === 'zenith' ? lo : hi;
+    }
+    if (!any) break;
+    reached = next;
+  }
+  const edge = [...reach].filter((v) => !Number.isNaN(v));
+  return edge.length ? edge.reduce((t, v) => t + v, 0) / edge.length : null;
+}
+
+/** "between stations 3 and 4": the stations either side of a direction, in the row nearest its pitch. */
+function nearStations(rows: readonly Row[], yaw: number, pitch: number): string {
+  const row = rows.reduce((a, b) => (Math.abs(b.pitchDeg - pitch) < Math.abs(a.pitchDeg - pitch) ? b : a));
+  const inRow = row.cams.map((cam) => ({ s: cam.station + 1, d: wrapYaw(angles(cam.axes.z)[0] - yaw) }));
+  const left = inRow.filter((x) => x.d < 0).sort((a, b) => b.d - a.d)[0];
+  const right = inRow.filter((x) => x.d >= 0).sort((a, b) => a.d - b.d)[0];
+  const pair = [left?.s, right?.s].filter((x): x is number => x !== undefined).sort((a, b) => a - b);
+  return pair.length === 2 && pair[0] !== pair[1] ? `between stations ${pair[0]} and ${pair[1]}` : `next to station ${pair[0]}`;
 }

@@ -175,6 +175,22 @@ export interface CoverageHole {
   /** The cap above or below the frames when the set reaches up or down to it. */
   readonly pole: 'zenith' | 'nadir' | null;
   readonly advice: string;
+  /**
+   * For a gap in a row: the stations either side of it in that row (counting from 0), lower index
+   * first; null for other holes. A failed pair between exactly these stations is this hole.
+   */
+  readonly between?: readonly [number, number] | null;
+}
+
+/**
+ * Something the coverage shows that asks for nothing: the zenith or nadir left open by a set that
+ * does not reach toward it, while no full sphere was declared. Not a flag; the verdict stays ok.
+ */
+export interface CoverageNote {
+  readonly pole: 'zenith' | 'nadir';
+  /** About where the open cap begins, pitch in degrees (its edge follows the frames' outlines). */
+  readonly pitchDeg: number;
+  readonly text: string;
 }
 
 export interface FolderProblem {
@@ -218,6 +234,8 @@ export interface Report {
   readonly folderProblems: readonly FolderProblem[];
   /** Holes in the coverage of sets shot in rows or up to a pole; empty for a single sweep. */
   readonly holes?: readonly CoverageHole[];
+  /** Open zenith or nadir of a set shot in rows that neither reaches toward it nor declares a full sphere. */
+  readonly coverageNotes?: readonly CoverageNote[];
 }
 
 /** The minimum evidence a pair needs, and the other thresholds verdicts are judged by. */
@@ -234,6 +252,11 @@ export interface MatchBudget {
   readonly minSharpnessRatio: number;
   /** Largest shift of a bracket frame against its reference, full-resolution px. */
   readonly maxBracketShiftPx: number;
+  /**
+   * The set is meant to cover the whole sphere: an open zenith or nadir is a hole to reshoot even
+   * when no frame reaches toward it. Absent in reports written before it existed (read as false).
+   */
+  readonly fullSphere?: boolean;
 }
 
 /**
@@ -248,4 +271,5 @@ export const defaultBudget: MatchBudget = {
   maxEvDiff: 0.5,
   minSharpnessRatio: 0.65,
   maxBracketShiftPx: 4,
+  fullSphere: false,
 };

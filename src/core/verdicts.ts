@@ -1,5 +1,5 @@
-import type { Analysis, FlagCode, SkippedFile, Finding, FolderProblem, FrameSettings, MatchBudget, PairMeasure, Report, ReportFrame, ReportPair, ReportStation, SequenceGeometry, StationMeasure, Verdict } from './report.js';
-import { coverageHoles } from './coverage-map.js';
+import type { Analysis, CoverageHole, FlagCode, SkippedFile, Finding, FolderProblem, FrameSettings, MatchBudget, PairMeasure, Report, ReportFrame, ReportPair, ReportStation, SequenceGeometry, StationMeasure, Verdict } from './report.js';
+import { coverageFindings } from './coverage-map.js';
 import { reportSchema } from './report.js';
 import { modalPattern, patternOf } from './stations.js';
 import { median } from './median.js';
@@ -169,10 +169,38 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
     });
   }
 
+  // Holes first: a failed pair between the stations either side of a located gap is that hole.
+  const found = coverageFindings({ ...analysis, budget });
+  const notes = found.notes;
+  const stationKey = (p: PairMeasure): string | null => {
+    const i = stationOf.get(p.a)?.index, j = stationOf.get(p.b)?.index;
+    return i === undefined || j === undefined ? null : `${Math.min(i, j)}:${Math.max(i, j)}`;
+  };
+  const failedBetween = new Set(analysis.pairs.filter((p) => (p.kind === 'neighbour' || p.kind === 'closure') && p.homography === null).map(stationKey));
+  // A gap the geometry calls narrow (under 2 degrees, within its error) is no narrower when the
+  // frames either side failed to match: both say they do not meet, so it is to reshoot.
+  const holes: CoverageHole[] = found.holes.map((h) => (h.between && h.verdict !== 'reshoot' && failedBetween.has(`${h.between[0]}:${h.between[1]}`) ? { ...h, verdict: 'reshoot' } : h));
+  const gapBetween = new Map<string, CoverageHole>();
+  for (const h of holes) if (h.between) gapBetween.set(`${h.between[0]}:${h.between[1]}`, h);
+  const holeOf = (p: PairMeasure): CoverageHole | null => {
+    const key = stationKey(p);
+    return key === null ? null : gapBetween.get(key) ?? null;
+  };
+
   // Pairs.
   const sizes = new Map(analysis.frames.map((f) => [f.file, { width: f.width, height: f.height }]));
   const frameSize = (file: string): { width: number; height: number } | null => sizes.get(file) ?? null;
   const pairs: ReportPair[] = analysis.pairs.map((p) => {
+    if ((p.kind === 'neighbour' || p.kind === 'closure') && p.homography === null) {
+      // One cause, one flag: the pair failed because nothing lies between its frames; its card
+      // says so with the hole's own words (a listed advice appears once), not a vaguer no-match.
+      const hole = holeOf(p);
+      if (hole) {
+        const f = new Findings();
+        f.add('coverage-hole', hole.verdict, hole.advice);
+        return { ...p, ...f.done() };
+      }
+    }
     if (p.kind === 'neighbour' || p.kind === 'closure') return { ...p, ...judgeStationPair(p, budget, analysis.sweepDeg, analysis.geometry, frameSize) };
     if (p.kind === 'bracket') {
       const f = new Findings();
@@ -216,7 +244,6 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
     const found = stationFindings[i].done();
     return { ...s, flags: found.reasons, ...found };
   });
-  const holes = coverageHoles(analysis);
   const verdicts = [...pairs.map((p) => p.verdict), ...frames.map((f) => f.verdict), ...stations.map((s) => s.verdict), ...holes.map((h) => h.verdict)];
   const problems = [...pairs.map((p) => p.verdict), ...frames.map((f) => f.verdict)];
   return {
@@ -241,6 +268,7 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
     rawPlusJpeg: analysis.rawPlusJpeg ?? null,
     folderProblems,
     holes,
+    coverageNotes: notes,
   };
 }
 

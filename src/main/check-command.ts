@@ -43,6 +43,10 @@ Match budget (also in the settings file under "budget"):
   --max-ev EV              largest exposure difference between neighbours (default 0.5)
   --min-sharpness R        blurred below this share of the typical sharpness (default 0.65)
   --max-bracket-shift PX   largest bracket frame shift, full-resolution px (default 4)
+  --full-sphere            the set is meant to cover the whole sphere: an open zenith or nadir is
+                           a hole to reshoot ("fullSphere": true in the settings file). Without it
+                           an open pole is only a note, unless a frame is aimed above 60 degrees
+                           of pitch (zenith) or below -60 (nadir)
 
 Exit status: 0 all ok, 1 something flagged, 2 usage error or unreadable folder.
 `;
@@ -65,7 +69,7 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
         json: { type: 'string' }, graphml: { type: 'string' }, csv: { type: 'string' }, dot: { type: 'string' }, 'tie-points': { type: 'string' }, 'coverage-map': { type: 'string' }, prefer: { type: 'string' },
         force: { type: 'boolean' }, 'no-cache': { type: 'boolean' }, settings: { type: 'string' }, 'no-progress': { type: 'boolean' }, help: { type: 'boolean' },
         'min-inliers': { type: 'string' }, 'reshoot-overlap': { type: 'string' }, 'weak-overlap': { type: 'string' }, 'max-ev': { type: 'string' },
-        'min-sharpness': { type: 'string' }, 'max-bracket-shift': { type: 'string' },
+        'min-sharpness': { type: 'string' }, 'max-bracket-shift': { type: 'string' }, 'full-sphere': { type: 'boolean' },
       },
     });
   } catch (err) {
@@ -102,6 +106,8 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
       maxEvDiff: v['max-ev'],
       minSharpnessRatio: v['min-sharpness'],
       maxBracketShiftPx: v['max-bracket-shift'],
+      // Only a flag given says so: its absence leaves the settings file's declaration standing.
+      fullSphere: v['full-sphere'] ? true : undefined,
     });
   } catch (err) {
     process.stderr.write(`seamscout: ${(err as Error).message}\n`);

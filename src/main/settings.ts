@@ -3,8 +3,8 @@ import { join } from 'node:path';
 import { configDir } from './user-dirs.js';
 
 /**
- * The settings file: `{ "budget": { "minInliers": 30, ... }, "prefer": "raw" }`; more sections may
- * follow. `prefer` names the file of a RAW+JPEG pair to check ("jpeg", the default, or "raw").
+ * The settings file: `{ "budget": { "minInliers": 30, "fullSphere": true, ... }, "prefer": "raw" }`;
+ * more sections may follow. `prefer` names the file of a RAW+JPEG pair to check ("jpeg", the default, or "raw").
  */
 export interface SettingsFile {
   readonly budget?: Record<string, unknown>;

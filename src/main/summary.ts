@@ -50,11 +50,18 @@ export function formatSummary(report: Report): string {
   }
   if (report.rawPlusJpeg) out.push('', rawPlusJpegLine(report.rawPlusJpeg));
   const advice = [...new Set([...report.pairs.flatMap((p) => p.advice), ...report.frames.flatMap((f) => f.advice), ...(report.holes ?? []).map((h) => h.advice)])];
+  // Worth knowing, asking for nothing (an open zenith or nadir the set does not reach toward).
+  const notes = report.coverageNotes ?? [];
+  if (notes.length) out.push('', 'Notes:', ...notes.map((n) => `  - ${n.text}`));
   out.push('');
   if (report.verdict === 'ok') out.push('Verdict: ok. Every pair and frame is within the match budget.');
   else {
     const leftOut = left.length ? `, ${left.length} file${left.length === 1 ? '' : 's'} not checked` : '';
-    out.push(`Verdict: ${word[report.verdict]}. ${report.counts.reshoot} to reshoot, ${report.counts.weak} weak${leftOut}.`);
+    // Holes no pair carries are counted apart: the counts are of pairs and frames.
+    const pairAdvice = new Set(report.pairs.flatMap((p) => p.advice));
+    const holes = (report.holes ?? []).filter((h) => h.verdict !== 'ok' && !pairAdvice.has(h.advice)).length;
+    const holesOut = holes ? `, ${holes} hole${holes === 1 ? '' : 's'} in the coverage` : '';
+    out.push(`Verdict: ${word[report.verdict]}. ${report.counts.reshoot} to reshoot, ${report.counts.weak} weak${holesOut}${leftOut}.`);
     if (advice.length) out.push('', 'What to do:', ...advice.map((a) => `  - ${a}`));
   }
   return out.join('\n') + '\n';

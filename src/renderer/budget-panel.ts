@@ -1,13 +1,14 @@
 // The budget panel: one input per match budget field, in the units a photographer thinks in
 // (overlap in percent). A good edit calls onChange at once (the caller re-judges, no re-analysis);
 // a bad one shows resolveBudget's message beside the field and keeps the last good budget.
+import type { NumericBudgetKey } from '../core/budget.js';
 import { resolveBudget } from '../core/budget.js';
 import type { MatchBudget } from '../core/report.js';
 import { defaultBudget } from '../core/report.js';
 import { button, el } from './dom.js';
 
 export interface BudgetField {
-  readonly name: keyof MatchBudget;
+  readonly name: NumericBudgetKey;
   readonly label: string;
   readonly help: string;
   /** Shown as percent (0..100) while the budget holds 0..1. */
@@ -58,11 +59,11 @@ export interface BudgetPanel {
 
 export function createBudgetPanel(initial: MatchBudget, onChange: (b: MatchBudget) => void): BudgetPanel {
   let good = initial;
-  const inputs = new Map<keyof MatchBudget, HTMLInputElement>();
-  const errors = new Map<keyof MatchBudget, HTMLElement>();
+  const inputs = new Map<NumericBudgetKey, HTMLInputElement>();
+  const errors = new Map<NumericBudgetKey, HTMLElement>();
 
   const typed = (): Record<string, string> => Object.fromEntries([...inputs].map(([k, i]) => [k, i.value]));
-  const showError = (name: keyof MatchBudget, message: string | null): void => {
+  const showError = (name: NumericBudgetKey, message: string | null): void => {
     const e = errors.get(name)!;
     e.textContent = message ?? '';
     e.hidden = message === null;
@@ -86,7 +87,7 @@ export function createBudgetPanel(initial: MatchBudget, onChange: (b: MatchBudge
       }
     }
     if (bad) return;
-    const layer = Object.fromEntries(budgetFields.map((f) => [f.name, parsed(f, text[f.name])]));
+    const layer = { ...Object.fromEntries(budgetFields.map((f) => [f.name, parsed(f, text[f.name])])), fullSphere: sphere.checked };
     try {
       const next = resolveBudget(layer);
       good = next;
@@ -108,12 +109,24 @@ export function createBudgetPanel(initial: MatchBudget, onChange: (b: MatchBudge
     return el('div', { class: 'field' }, el('label', { for: id }, f.label), input, el('p', { class: 'help', id: `${id}-help` }, f.help), error);
   });
 
+  // A declaration, not a threshold: the set is meant to cover straight up and down.
+  const sphere = el('input', { id: 'budget-fullSphere', name: 'fullSphere', type: 'checkbox', 'aria-describedby': 'budget-fullSphere-help' });
+  sphere.checked = initial.fullSphere === true;
+  sphere.addEventListener('change', () => edited(budgetFields[0]));
+  const sphereRow = el(
+    'div',
+    { class: 'field field-check' },
+    el('label', { for: 'budget-fullSphere' }, sphere, ' Full sphere'),
+    el('p', { class: 'help', id: 'budget-fullSphere-help' }, 'the set is meant to cover straight up and down: an open zenith or nadir is a hole to reshoot (otherwise only a note unless frames reach toward it)'),
+  );
+
   const set = (b: MatchBudget): void => {
     good = b;
     for (const f of budgetFields) {
       inputs.get(f.name)!.value = shown(f, b);
       showError(f.name, null);
     }
+    sphere.checked = b.fullSphere === true;
   };
 
   const element = el(
@@ -121,7 +134,7 @@ export function createBudgetPanel(initial: MatchBudget, onChange: (b: MatchBudge
     { class: 'budget', 'data-budget': '', 'aria-label': 'Match budget' },
     el('h2', {}, 'Match budget'),
     el('p', { class: 'help' }, 'Verdicts follow these limits at once; nothing is analysed again.'),
-    el('div', { class: 'fields' }, rows),
+    el('div', { class: 'fields' }, rows, sphereRow),
     button({ class: 'small', 'data-budget-defaults': '' }, () => {
       set(defaultBudget);
       onChange(defaultBudget);

@@ -18,5 +18,6 @@ export function renderCoverage(report: Report): HTMLElement | null {
   const share = holeShare(map);
   const words = map.holes.length === 0 ? 'every direction in the shot band is covered' : `about ${Math.max(1, Math.round(100 * share))} % of the shot band is not covered (hatched)`;
   image.setAttribute('aria-label', `Coverage map: ${words}`);
-  return el('section', { class: 'coverage', 'aria-label': 'Coverage', 'data-holes': map.holes.length }, el('h2', {}, 'Coverage'), el('p', { class: 'coverage-words' }, `On the sphere around the camera, ${words}.`), image);
+  const notes = (report.coverageNotes ?? []).map((n) => el('p', { class: 'coverage-note', 'data-note': n.pole }, `Note: ${n.text}.`));
+  return el('section', { class: 'coverage', 'aria-label': 'Coverage', 'data-holes': map.holes.length }, el('h2', {}, 'Coverage'), el('p', { class: 'coverage-words' }, `On the sphere around the camera, ${words}.`), image, notes);
 }
