@@ -95,17 +95,19 @@ function gridOf(f: Features, cell: number): Grid {
   return { cell, cols, rows, head, next };
 }
 
-/** Calls visit(j) for every keypoint of b within `radius` of (x, y). */
-function near(g: Grid, f: Features, x: number, y: number, radius: number, visit: (j: number) => void): void {
+/** Writes into `out` the keypoints of b within `radius` of (x, y); returns how many. */
+function near(g: Grid, f: Features, x: number, y: number, radius: number, out: Int32Array): number {
   const x0 = Math.max(0, Math.floor((x + 0.5 - radius) / g.cell)), x1 = Math.min(g.cols - 1, Math.floor((x + 0.5 + radius) / g.cell));
   const y0 = Math.max(0, Math.floor((y + 0.5 - radius) / g.cell)), y1 = Math.min(g.rows - 1, Math.floor((y + 0.5 + radius) / g.cell));
   const r2 = radius * radius;
+  let n = 0;
   for (let cy = y0; cy <= y1; cy++)
     for (let cx = x0; cx <= x1; cx++)
       for (let j = g.head[cy * g.cols + cx]; j >= 0; j = g.next[j]) {
         const dx = f.keypoints.x[j] - x, dy = f.keypoints.y[j] - y;
-        if (dx * dx + dy * dy <= r2) visit(j);
+        if (dx * dx + dy * dy <= r2) out[n++] = j;
       }
+  return n;
 }
 
 export interface GuidedMatches {
@@ -135,32 +137,37 @@ export function guidedMatches(fa: Features, fb: Features, predicted: ArrayLike<n
     inFront[i] = w > 0 && u > -search && v > -search && u < fb.width + search && v < fb.height + search ? 1 : 0;
   }
 
-  // Pass 1: votes for the shift, on a grid of window-sized cells.
+  // Pass 1: votes for the shift.
+  const candidates = new Int32Array(nb);
   const grid = gridOf(fb, Math.max(window, search / 4));
-  const vx: number[] = [], vy: number[] = [];
+  const vx = new Float64Array(na), vy = new Float64Array(na);
+  let votes = 0;
   for (let i = 0; i < na; i++) {
     if (!inFront[i]) continue;
     let b1 = Infinity, b2 = Infinity, bj = -1;
-    near(grid, fb, px[i], py[i], search, (j) => {
+    const found = near(grid, fb, px[i], py[i], search, candidates);
+    for (let c = 0; c < found; c++) {
+      const j = candidates[c];
       const d = hamming(fa.descriptors, i, fb.descriptors, j);
       if (d < b1) {
         b2 = b1;
         b1 = d;
         bj = j;
       } else if (d < b2) b2 = d;
-    });
+    }
     if (bj >= 0 && b1 <= p.maxDistance && b1 < p.ratio * b2) {
-      vx.push(fb.keypoints.x[bj] - px[i]);
-      vy.push(fb.keypoints.y[bj] - py[i]);
+      vx[votes] = fb.keypoints.x[bj] - px[i];
+      vy[votes] = fb.keypoints.y[bj] - py[i];
+      votes++;
     }
   }
   let sx = 0, sy = 0;
-  if (vx.length >= p.minVotes) {
+  if (votes >= p.minVotes) {
     // The densest window-sized neighbourhood of votes, then their mean.
     let bestCount = 0;
-    for (let k = 0; k < vx.length; k++) {
+    for (let k = 0; k < votes; k++) {
       let c = 0, mx = 0, my = 0;
-      for (let q = 0; q < vx.length; q++) {
+      for (let q = 0; q < votes; q++) {
         if (Math.abs(vx[q] - vx[k]) <= window && Math.abs(vy[q] - vy[k]) <= window) {
           c++;
           mx += vx[q];
@@ -186,7 +193,9 @@ export function guidedMatches(fa: Features, fb: Features, predicted: ArrayLike<n
   for (let i = 0; i < na; i++) {
     if (!inFront[i]) continue;
     let b1 = Infinity, b2 = Infinity, bj = -1;
-    near(tight, fb, px[i] + sx, py[i] + sy, window, (j) => {
+    const found = near(tight, fb, px[i] + sx, py[i] + sy, window, candidates);
+    for (let c = 0; c < found; c++) {
+      const j = candidates[c];
       const d = hamming(fa.descriptors, i, fb.descriptors, j);
       if (d < b1) {
         b2 = b1;
@@ -197,7 +206,7 @@ export function guidedMatches(fa: Features, fb: Features, predicted: ArrayLike<n
         bestDOfB[j] = d;
         bestOfB[j] = i;
       }
-    });
+    }
     best[i] = bj;
     bestD[i] = b1;
     passes[i] = bj >= 0 && b1 <= p.maxDistance && b1 < p.ratio * b2 ? 1 : 0;
