@@ -10,7 +10,7 @@ import { estimateGuidedPairGeometry, guidedMatches, predictedRegions, predictPai
 import { project } from '../src/core/homography.js';
 import type { GrayImage } from '../src/core/image.js';
 import { imageFingerprint } from '../src/core/image.js';
-import { overlapRegions } from '../src/core/overlap.js';
+import { insideConvex, overlapRegions } from '../src/core/overlap.js';
 import { createRandom } from '../src/core/random.js';
 import type { Analysis, PairMeasure } from '../src/core/report.js';
 import { defaultBudget } from '../src/core/report.js';
@@ -161,6 +161,22 @@ describe('guided matching', () => {
   it('rejects a prediction that is not a homography', () => {
     const f = detectAndDescribe(pairs.get(key('leuvenA.jpg', 0.08))!.a, checkFeatureParams);
     expect(() => guidedMatches(f, f, [1, 0, 0, 0, 1, 0])).toThrow('Expected 9 finite numbers for predicted but received 6 values');
+  });
+});
+
+describe('detection restricted to a part of the frame', () => {
+  it('keeps the border band or the region and gives them the whole keypoint budget', () => {
+    const img = pairs.get(key('graf1.png', 0.12))!.a;
+    const band = detectAndDescribe(img, { ...checkFeatureParams, halvings: 0, borderBand: 0.15, maxKeypoints: 800 });
+    const region = [100, 100, 500, 120, 480, 600, 90, 560];
+    const inside = detectAndDescribe(img, { ...checkFeatureParams, halvings: 0, region, maxKeypoints: 800 });
+    for (const f of [band, inside]) expect(f.keypoints.count).toBe(800);
+    for (let i = 0; i < band.keypoints.count; i++) {
+      const x = band.keypoints.x[i], y = band.keypoints.y[i];
+      const inBand = x < 0.15 * img.width + 1 || x > 0.85 * img.width - 2 || y < 0.15 * img.height + 1 || y > 0.85 * img.height - 2;
+      expect(inBand, `${x}, ${y}`).toBe(true);
+    }
+    for (let i = 0; i < inside.keypoints.count; i++) expect(insideConvex(region, inside.keypoints.x[i], inside.keypoints.y[i])).toBe(true);
   });
 });
 

@@ -114,7 +114,8 @@ export const refinedTiePoints = 300;
 export interface PairOptions {
   /**
    * When the frames' own (halved) features find no model, detect again on the full analysis
-   * images and try once more: a narrow overlap may hold too few corners at half size.
+   * images, first along their edges and then over the whole frames, and try again: a narrow
+   * overlap may hold too few corners at half size.
    */
   readonly retryAtFullSize: boolean;
   /** Compare the aligned overlap block by block for movement and parallax (pairs between stations). */
