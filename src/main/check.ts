@@ -10,6 +10,7 @@ import { analysisToFull } from '../core/resolution.js';
 import type { StationGroup } from '../core/stations.js';
 import { groupStations } from '../core/stations.js';
 import type { RotationLink } from '../core/rotations.js';
+import { relativeRotation, rotationAngleOf } from '../core/rotations.js';
 import { bracketShift } from '../core/bracket-shift.js';
 import { circleCoverage, fieldOfViewDeg } from '../core/coverage.js';
 import { sequenceGeometry } from '../core/sequence-geometry.js';
@@ -426,17 +427,25 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
         const o = ordered[k];
         return frames[k]!.data ?? (await options.cache?.get(o.scanned, maxSide)) ?? (await pool.analyseFrame(o.scanned.path, maxSide, signal));
       };
-      const closure = { i: stations[stations.length - 1].reference, j: stations[0].reference };
-      if (!pairResults.has(`${closure.i}:${closure.j}`)) {
-        pairResults.set(`${closure.i}:${closure.j}`, await pool.analysePair(await dataOf(closure.i), await dataOf(closure.j), undefined, signal));
-      }
       const chain = geometryOf(planned.filter((p) => p.kind === 'neighbour'), null);
       if (!chain) return;
+      const sizes = stations.map((st) => ({ width: frames[st.reference]!.summary.fullWidth, height: frames[st.reference]!.summary.fullHeight }));
+      // The closure pair is worth a try when the turns measured, with the typical turn for each
+      // failed pair, and a frame's width come to most of a full turn.
+      const turns = planned.filter((p) => p.kind === 'neighbour').flatMap((p) => {
+        const m = fullPair(p.i, p.j);
+        const r = m && relativeRotation(m.h, chain.focalPx, sizes[stationOf[p.i]], sizes[stationOf[p.j]]);
+        return r ? [rotationAngleOf(r)] : [];
+      });
+      const turned = turns.reduce((t, x) => t + x, 0) + failed.length * (turns.length ? median(turns) : 0) + fieldOfViewDeg(sizes[0].width, chain.focalPx);
+      const closure = { i: stations[stations.length - 1].reference, j: stations[0].reference };
+      if (turned >= nearFullTurnDeg && !pairResults.has(`${closure.i}:${closure.j}`)) {
+        pairResults.set(`${closure.i}:${closure.j}`, await pool.analysePair(await dataOf(closure.i), await dataOf(closure.j), undefined, signal));
+      }
       const links = [...planned.filter((p) => p.kind !== 'bracket'), { ...closure, kind: 'closure' as const }].flatMap((p) => {
         const m = fullPair(p.i, p.j);
         return m ? [{ i: stationOf[p.i], j: stationOf[p.j], homography: m.h, points: m.points }] : [];
       });
-      const sizes = stations.map((st) => ({ width: frames[st.reference]!.summary.fullWidth, height: frames[st.reference]!.summary.fullHeight }));
       for (const p of failed) {
         const si = stationOf[p.i], sj = stationOf[p.j];
         const h = predictPairHomography(links, chain.focalPx, sizes, si, sj);
