@@ -6,8 +6,9 @@
 // length rounded to the millimetre). One sequence is rendered; it is checked as shot (the narrow
 // pair must be registered) and with the narrow overlap fogged on one frame (no match is possible;
 // its overlap must be reported as predicted from the turn).
-import { mkdirSync, writeFileSync } from 'node:fs';
+import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
+import Ajv2020 from 'ajv/dist/2020.js';
 import sharp from 'sharp';
 import { beforeAll, describe, expect, it } from 'vitest';
 import type { FloatImage, GrayImage } from '../src/core/image.js';
@@ -17,7 +18,7 @@ import type { Report } from '../src/core/report.js';
 import { defaultBudget } from '../src/core/report.js';
 import { judge } from '../src/core/verdicts.js';
 import { runCheck } from '../src/main/check.js';
-import { tempDir } from './helpers/cli.js';
+import { projectRoot, tempDir } from './helpers/cli.js';
 import { externalFixture, loadGray, toCameraFrame } from './helpers/images.js';
 import type { ViewCamera } from './helpers/rotating-views.js';
 import { exactHomography, renderPrismView, rotationOf, vignette, yawForOverlap } from './helpers/rotating-views.js';
@@ -111,5 +112,9 @@ describe('a full turn with one 8 % gap (10 frames of 1200 x 800, box of photogra
     // One cause, one flag: no other pair fails because of it.
     for (const q of fogged.pairs.filter((x) => x !== p && x.kind !== 'bracket')) expect(q.reasons, `${q.a} ${q.b}`).not.toContain('no-match');
     expect(fogged.pairs.some((q) => q.reasons.includes('no-closure'))).toBe(false);
+    // The new field is in the published schema (schema/report.schema.json, JSON Schema 2020-12 via ajv).
+    const schema = JSON.parse(readFileSync(join(projectRoot, 'schema/report.schema.json'), 'utf8'));
+    const validate = new Ajv2020.default({ allErrors: true, strict: false }).compile(schema);
+    expect(validate(JSON.parse(JSON.stringify(fogged))), JSON.stringify(validate.errors)).toBe(true);
   });
 });
