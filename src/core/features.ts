@@ -1,6 +1,6 @@
 import { adaptiveNonMaximalSuppression } from './anms.js';
 import { angleStep, describe, descriptorWords, patchSize, steeredOffsets } from './binary-descriptor.js';
-import type { CandidateParams } from './corners.js';
+import type { CandidateParams, CornerCandidates } from './corners.js';
 import { defaultCandidateParams, findCandidates } from './corners.js';
 import type { HarrisParams } from './harris.js';
 import { defaultHarrisParams, harrisResponse } from './harris.js';
@@ -10,6 +10,9 @@ import { integralImage } from './integral-image.js';
 import type { Keypoints } from './keypoints.js';
 import { createKeypoints } from './keypoints.js';
 import { intensityCentroidAngle } from './orientation.js';
+import { insideConvex } from './overlap.js';
+import type { Polygon } from './polygon.js';
+import type { PyramidLevel } from './pyramid.js';
 import { buildPyramid } from './pyramid.js';
 import type { ScratchPool } from './scratch.js';
 import { createScratchPool } from './scratch.js';
@@ -29,6 +32,14 @@ export interface FeatureParams {
   readonly candidates: CandidateParams;
   /** Brown, Szeliski & Winder's robustness factor c for adaptive non-maximal suppression. */
   readonly anmsRobustness: number;
+  /**
+   * Corners are kept only within this share of the width (left and right) or of the height (top
+   * and bottom) from the frame's edge, where a narrow overlap between neighbours lies; 0.5 or more
+   * keeps the whole frame.
+   */
+  readonly borderBand: number;
+  /** Corners are kept only inside this convex polygon (image pixels), where one is given. */
+  readonly region: Polygon | null;
 }
 
 export const defaultFeatureParams: FeatureParams = {
@@ -39,6 +50,8 @@ export const defaultFeatureParams: FeatureParams = {
   harris: defaultHarrisParams,
   candidates: defaultCandidateParams,
   anmsRobustness: 0.9,
+  borderBand: 0.5,
+  region: null,
 };
 
 /** What a frame contributes to matching: its keypoints and their descriptors (descriptorWords each). */
@@ -60,6 +73,22 @@ function offsetsFor(stride: number): Int32Array {
   return o;
 }
 
+/** Keeps, strongest first, at most `limit` candidates inside the border band and the region. */
+function keepInside(c: CornerCandidates, level: PyramidLevel, band: number, region: Polygon | null, limit: number): void {
+  const bx = band * level.width, by = band * level.height;
+  let k = 0;
+  for (let i = 0; i < c.count && k < limit; i++) {
+    const x = c.x[i], y = c.y[i];
+    if (band < 0.5 && x >= bx && x <= level.width - 1 - bx && y >= by && y <= level.height - 1 - by) continue;
+    if (region && !insideConvex(region, (x + 0.5) * level.scaleX - 0.5, (y + 0.5) * level.scaleY - 0.5)) continue;
+    c.x[k] = x;
+    c.y[k] = y;
+    c.response[k] = c.response[i];
+    k++;
+  }
+  c.count = k;
+}
+
 /**
  * Detects Harris corners on a small pyramid, spreads them with adaptive non-maximal suppression,
  * orients and describes them. Deterministic; `pool` is reused across calls to avoid allocation.
@@ -78,7 +107,11 @@ export function detectAndDescribe(image: GrayImage, params: Partial<FeatureParam
     if (quota <= 0) continue;
     const response = pool.float32('response', area);
     harrisResponse(level, response, pool, p.harris);
-    const candidates = findCandidates(response, level.width, level.height, p.candidates, pool, 10 * quota);
+    // Restricted to a part of the frame, all of the level's corners are candidates, so that the
+    // part gets the whole quota and not only those among the frame's strongest.
+    const restricted = p.borderBand < 0.5 || p.region !== null;
+    const candidates = findCandidates(response, level.width, level.height, p.candidates, pool, restricted ? Infinity : 10 * quota);
+    if (restricted) keepInside(candidates, level, p.borderBand, p.region, 10 * quota);
     const chosen = adaptiveNonMaximalSuppression(candidates, Math.min(quota, p.maxKeypoints - n), level.width, level.height, p.anmsRobustness);
     const stride = level.width + 1;
     const integral = integralImage(level, pool.float64('integral', stride * (level.height + 1)));

@@ -66,7 +66,15 @@ export function correspondencesOf(fa: Features, fb: Features, m: Matches): Corre
 /** Matches two frames' features and estimates and verifies their homography. Deterministic. */
 export function estimatePairGeometry(fa: Features, fb: Features, params: Partial<PairParams> = {}): PairGeometry {
   const p = { ...defaultPairParams, ...params };
-  const matches = matchDescriptors(fa.descriptors, fb.descriptors, p.match);
+  return fitAndVerify(fa, fb, matchDescriptors(fa.descriptors, fb.descriptors, p.match), p);
+}
+
+/**
+ * The homography through tentative matches (RANSAC and refinement), accepted only when it passes
+ * Brown & Lowe's verification; shared by plain and guided matching.
+ */
+export function fitAndVerify(fa: Features, fb: Features, matches: Matches, params: Partial<PairParams> = {}): PairGeometry {
+  const p = { ...defaultPairParams, ...params };
   const none = (reason: NoModelReason, inlierMask = new Uint8Array(matches.count), inOverlap = 0): PairGeometry => ({
     matches, inlierMask, inliers: 0, inlierRatio: 0, homography: null, overlap: null, rmsError: null, matchesInOverlap: inOverlap, noModel: reason,
   });

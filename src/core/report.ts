@@ -105,6 +105,11 @@ export interface PairMeasure {
   readonly misfit?: number | null;
   /** Near and far things do not line up together (parallax): absent or null when not measured. */
   readonly parallax?: boolean | null;
+  /**
+   * For a pair without a model: its overlap (0..1) predicted from the turn between its stations, as
+   * the other matched pairs place them. Absent or null when the pair has a model or cannot be placed.
+   */
+  readonly predictedOverlap?: number | null;
 }
 
 export interface SkippedFile {

@@ -57,6 +57,8 @@ function judgeStationPair(p: PairMeasure, budget: MatchBudget, sweepDeg: number 
       const deg = Math.round(gap);
       const missing = gap >= 0.5 ? `about ${deg} degree${deg === 1 ? ' of the turn is' : 's of the turn are'} not covered; ` : '';
       f.add('no-closure', sweepDeg !== null && sweepDeg >= 330 ? 'reshoot' : 'weak', `the turn does not close between ${between}: ${missing}add a frame between them`);
+    } else if (p.predictedOverlap != null) {
+      f.add('no-match', 'reshoot', `no reliable match between ${between}: overlap about ${pct(p.predictedOverlap)}, predicted from the turn between them; add a frame between them${p.predictedOverlap >= budget.weakOverlap ? ', or aim the overlap at more detail' : ''}`);
     } else f.add('no-match', 'reshoot', `no reliable match between ${between}: add a frame between them, or aim the overlap at more detail`);
     return f.done();
   }

@@ -2,12 +2,15 @@ import { availableParallelism } from 'node:os';
 import type { FrameSample } from '../core/candidate-pairs.js';
 import { sampleFeatures, screenPairs } from '../core/candidate-pairs.js';
 import { invert, multiply, normalise, project } from '../core/homography.js';
+import { predictPairHomography, toAnalysisPixels } from '../core/guided-match.js';
 import { shootingOrder } from '../core/natural-order.js';
+import { overlapRegions } from '../core/overlap.js';
 import type { Analysis, FrameMeasure, PairKind, PairMeasure, SequenceGeometry, SkippedFile, StationMeasure } from '../core/report.js';
 import { analysisToFull } from '../core/resolution.js';
 import type { StationGroup } from '../core/stations.js';
 import { groupStations } from '../core/stations.js';
 import type { RotationLink } from '../core/rotations.js';
+import { relativeRotation, rotationAngleOf } from '../core/rotations.js';
 import { bracketShift } from '../core/bracket-shift.js';
 import { circleCoverage, fieldOfViewDeg } from '../core/coverage.js';
 import { sequenceGeometry } from '../core/sequence-geometry.js';
@@ -248,6 +251,8 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
     const planned: PlannedPair[] = [];
     const pairResults = new Map<string, PairAnalysis>();
     const pairsInFlight = new Map<string, Promise<void>>();
+    /** Overlap predicted from the turn, for neighbour pairs that found no model even when guided. */
+    const predictedOverlaps = new Map<string, number>();
     const need = new Int32Array(n);
     const pairTasks: Promise<void>[] = [];
     const pairSlot = slots(Math.max(2, pool.threads));
@@ -495,6 +500,7 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
       for (const g of groups) finalise(g.members.map((m) => loadedIdx[m]), loadedIdx[g.reference], g.offsets, g.groupedBy);
     }
     await Promise.all(pairTasks);
+    await retryGuided();
 
     // The geometry from the neighbour chain; it says whether the frames may have come round.
     const before = geometryOf(planned.filter((p) => p.kind === 'neighbour'), null);
@@ -523,6 +529,58 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
     let geometry = geometryOf(planned.filter((p) => p.kind === 'neighbour' || p.kind === 'other'), closurePair);
     if (geometry && geometry.rows.length >= 2) geometry = await byRows(geometry);
     return assemble(geometry);
+
+    /**
+     * Neighbour pairs without a model, tried once more where the turn between their stations is
+     * known from the other matched pairs (the closure pair of a full turn included, tried here when
+     * it was not yet): corners are sought where the predicted homography puts the overlap and
+     * matched near where it puts them. A pair that still finds no model keeps its predicted overlap
+     * for the report. Frames already let go are decoded again, two at a time.
+     */
+    async function retryGuided(): Promise<void> {
+      const predicted = predictedOverlaps;
+      const failed = planned.filter((p) => p.kind === 'neighbour' && !pairResults.get(`${p.i}:${p.j}`)?.homography);
+      if (failed.length === 0 || stations.length < 3) return;
+      // Not kept: the retry holds at most the pair it works on.
+      const transientData = async (k: number): Promise<FrameAnalysis> => {
+        const o = ordered[k];
+        return frames[k]!.data ?? (await options.cache?.get(o.scanned, maxSide)) ?? (await pool.analyseFrame(o.scanned.path, maxSide, signal));
+      };
+      const chain = geometryOf(planned.filter((p) => p.kind === 'neighbour'), null);
+      if (!chain) return;
+      const sizes = stations.map((st) => ({ width: frames[st.reference]!.summary.fullWidth, height: frames[st.reference]!.summary.fullHeight }));
+      // The closure pair is worth a try when the turns measured, with the typical turn for each
+      // failed pair, and a frame's width come to most of a full turn.
+      const turns = planned.filter((p) => p.kind === 'neighbour').flatMap((p) => {
+        const m = fullPair(p.i, p.j);
+        const r = m && relativeRotation(m.h, chain.focalPx, sizes[stationOf[p.i]], sizes[stationOf[p.j]]);
+        return r ? [rotationAngleOf(r)] : [];
+      });
+      const turned = turns.reduce((t, x) => t + x, 0) + failed.length * (turns.length ? median(turns) : 0) + fieldOfViewDeg(sizes[0].width, chain.focalPx);
+      const closure = { i: stations[stations.length - 1].reference, j: stations[0].reference };
+      if (turned >= nearFullTurnDeg && !pairResults.has(`${closure.i}:${closure.j}`)) {
+        pairResults.set(`${closure.i}:${closure.j}`, await pool.analysePair(await transientData(closure.i), await transientData(closure.j), undefined, signal));
+      }
+      const links = [...planned.filter((p) => p.kind !== 'bracket'), { ...closure, kind: 'closure' as const }].flatMap((p) => {
+        const m = fullPair(p.i, p.j);
+        return m ? [{ i: stationOf[p.i], j: stationOf[p.j], homography: m.h, points: m.points }] : [];
+      });
+      for (const p of failed) {
+        const si = stationOf[p.i], sj = stationOf[p.j];
+        const h = predictPairHomography(links, chain.focalPx, sizes, si, sj);
+        if (!h) continue;
+        const sa = frames[p.i]!.summary, sb = frames[p.j]!.summary;
+        const inAnalysis = toAnalysisPixels(h, analysisToFull(sa.fullWidth, sa.fullHeight, sa.anWidth, sa.anHeight), analysisToFull(sb.fullWidth, sb.fullHeight, sb.anWidth, sb.anHeight));
+        const overlap = overlapRegions(h, sizes[si].width, sizes[si].height, sizes[sj].width, sizes[sj].height).overlap;
+        if (!inAnalysis || overlap <= 0) {
+          predicted.set(`${p.i}:${p.j}`, overlap);
+          continue;
+        }
+        const r = await pool.analysePair(await transientData(p.i), await transientData(p.j), { retryAtFullSize: false, overlapBlocks: true, predicted: Array.from(normalise(inAnalysis)) }, signal);
+        if (r.homography) pairResults.set(`${p.i}:${p.j}`, r);
+        else predicted.set(`${p.i}:${p.j}`, overlap);
+      }
+    }
 
     /**
      * A set shot in rows: the step from one row to the next is no neighbour pair (it is judged by
@@ -621,6 +679,7 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
           moved: r.moved?.map((m) => ({ x: m.x * scale, y: m.y * scale, width: m.width * scale, height: m.height * scale })) ?? null,
           misfit: r.misfit,
           parallax: r.parallax,
+          ...(r.homography === null && predictedOverlaps.has(`${i}:${j}`) ? { predictedOverlap: predictedOverlaps.get(`${i}:${j}`) } : {}),
         };
       });
       const inStations = stations.flatMap((s) => s.members).sort((p, q) => p - q);

@@ -12,6 +12,8 @@ import type { RefinedPoints } from '../core/tie-point-refine.js';
 import { refineTiePoints } from '../core/tie-point-refine.js';
 import type { GrayImage } from '../core/image.js';
 import { imageFingerprint } from '../core/image.js';
+import { defaultGuidedMatchParams, estimateGuidedPairGeometry, predictedRegions } from '../core/guided-match.js';
+import type { PairGeometry } from '../core/pair-geometry.js';
 import { estimatePairGeometry } from '../core/pair-geometry.js';
 import { sharpness } from '../core/sharpness.js';
 import { createScratchPool } from '../core/scratch.js';
@@ -112,12 +114,31 @@ export const refinedTiePoints = 300;
 export interface PairOptions {
   /**
    * When the frames' own (halved) features find no model, detect again on the full analysis
-   * images and try once more: a narrow overlap may hold too few corners at half size.
+   * images, first along their edges and then over the whole frames, and try again: a narrow
+   * overlap may hold too few corners at half size.
    */
   readonly retryAtFullSize: boolean;
   /** Compare the aligned overlap block by block for movement and parallax (pairs between stations). */
   readonly overlapBlocks: boolean;
+  /**
+   * The pair's homography a -> b in analysis pixels as predicted from the rest of the sequence:
+   * when given, corners are detected where it puts the overlap and matched near where it puts
+   * them (core/guided-match.ts) instead of over the whole frames.
+   */
+  readonly predicted?: readonly number[] | null;
 }
+
+/**
+ * The second try for a pair without a model: corners at full analysis size along the frames'
+ * edges (15 % of the width or height), where a narrow overlap between neighbours lies, three times
+ * as many as a frame's own. At half size, the descriptor's margin on both frames (22 px of the
+ * level each) leaves almost nothing of a strip of 8 %; at full size over the whole frame, a strip
+ * gets too few of the frame's corners to pass the verification.
+ */
+const edgeFeatureParams: FeatureParams = { ...checkFeatureParams, halvings: 0, borderBand: 0.15, maxKeypoints: 3 * checkFeatureParams.maxKeypoints };
+
+/** Guided matching detects at full analysis size inside the predicted overlap, as densely as the edge try. */
+const guidedFeatureParams: FeatureParams = { ...checkFeatureParams, halvings: 0, maxKeypoints: 2 * checkFeatureParams.maxKeypoints };
 
 /**
  * Matches two analysed frames, finds tie points on the pixels (a's keypoints inside b, located in
@@ -126,12 +147,22 @@ export interface PairOptions {
  */
 export function analysePair(a: FrameAnalysis, b: FrameAnalysis, options: PairOptions = { retryAtFullSize: true, overlapBlocks: true }): PairAnalysis {
   let fa = a.features, fb = b.features;
-  let g = estimatePairGeometry(fa, fb);
-  if (!g.homography && options.retryAtFullSize && checkFeatureParams.halvings > 0) {
-    const full = { ...checkFeatureParams, halvings: 0 };
-    fa = detectAndDescribe(a.image, full, scratch);
-    fb = detectAndDescribe(b.image, full, scratch);
+  let g: PairGeometry;
+  if (options.predicted) {
+    const predicted = options.predicted;
+    const reach = defaultGuidedMatchParams.searchShare * Math.max(b.image.width, b.image.height);
+    const regions = predictedRegions(predicted, a.image, b.image, reach);
+    fa = detectAndDescribe(a.image, { ...guidedFeatureParams, region: regions.inA }, scratch);
+    fb = detectAndDescribe(b.image, { ...guidedFeatureParams, region: regions.inB }, scratch);
+    g = estimateGuidedPairGeometry(fa, fb, predicted);
+  } else {
     g = estimatePairGeometry(fa, fb);
+    for (const params of [edgeFeatureParams, { ...checkFeatureParams, halvings: 0 }]) {
+      if (g.homography || !options.retryAtFullSize) break;
+      fa = detectAndDescribe(a.image, params, scratch);
+      fb = detectAndDescribe(b.image, params, scratch);
+      g = estimatePairGeometry(fa, fb);
+    }
   }
   let evDiff: number | null = null;
   let moved: MovedRegion[] | null = null;
