@@ -466,8 +466,9 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
       const sizes = stations.map((st) => ({ width: frames[st.reference]!.summary.fullWidth, height: frames[st.reference]!.summary.fullHeight }));
       // One focal length for the set: the EXIF 35 mm equivalents, where every station has one.
       const f35 = stations.map((st) => frames[st.reference]!.exif.settings.focalLength35);
-      const exifFocalPx = f35.every((f) => f) ? focalPxFrom35mm(median(f35 as number[]), sizes[0].width, sizes[0].height) : null;
-      return sequenceGeometry({ sizes, exifFocalPx, links, closure: closure ? link(closure) : null });
+      const exifFocal35mm = f35.every((f) => f) ? median(f35 as number[]) : null;
+      const exifFocalPx = exifFocal35mm !== null ? focalPxFrom35mm(exifFocal35mm, sizes[0].width, sizes[0].height) : null;
+      return sequenceGeometry({ sizes, exifFocalPx, exifFocal35mm, links, closure: closure ? link(closure) : null });
     }
 
     /** The measurements so far: frames of finalised stations, the stations, the pairs measured yet. */
