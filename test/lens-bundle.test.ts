@@ -13,6 +13,7 @@ import { fitHomographyDLT } from '../src/core/homography.js';
 import type { RadialDistortion } from '../src/core/lens.js';
 import { distortionFactor, lensMisfitLimitPx, monotonicUpTo, undistortRadius } from '../src/core/lens.js';
 import { bundleAdjust, linkRotation } from '../src/core/lens-bundle.js';
+import { coverageMap } from '../src/core/coverage-map.js';
 import { createRandom } from '../src/core/random.js';
 import type { Analysis, FrameSettings } from '../src/core/report.js';
 import { defaultBudget } from '../src/core/report.js';
@@ -144,6 +145,23 @@ describe('the bundle adjustment with a lens term', () => {
     expect(pinholeMiss).toBeGreaterThan(2);
   });
 
+  it('fits two rows tied together in loops through strong barrel distortion', () => {
+    // Two rows of 12 at pitch -12 and +8, each row closed on itself and every station tied to the
+    // one above: a pinhole chain through k1 = -0.15 misses round these loops by tens of degrees.
+    const rnd = createRandom(8);
+    const twoRows: Pose[] = [];
+    for (const pitch of [-12, 8]) for (let k = 0; k < 12; k++) twoRows.push({ yawDeg: 10 + 30 * k + (rnd.next() - 0.5), pitchDeg: pitch + 0.5 * (rnd.next() - 0.5), rollDeg: 0.5 * (rnd.next() - 0.5) });
+    const r = truthRotations(twoRows);
+    const d = { k1: -0.15, k2: 0 };
+    const links: RotationLink[] = [];
+    for (let row = 0; row < 2; row++) for (let k = 0; k < 12; k++) links.push(link(r, 12 * row + k, 12 * row + ((k + 1) % 12), d, 0.3, 7 * k + row)!);
+    for (let k = 0; k < 12; k++) links.push(link(r, k, 12 + k, d, 0.3, 300 + k)!);
+    const solved = solveSequence({ sizes: twoRows.map(() => size), exifFocalPx: exifOff, links })!;
+    expect(Math.abs(solved.fit.focalPx / fTrue - 1)).toBeLessThan(0.005);
+    expect(Math.abs(solved.fit.distortion.k1 - d.k1)).toBeLessThan(0.01);
+    for (let s = 1; s < 24; s++) expect(angleBetween(solved.fit.rotations[s]!, r[s]), `rotation of station ${s}`).toBeLessThan(0.05);
+  });
+
   it('still finds a closure pair that disagrees with the chain, whatever focal length would hide it', () => {
     // The closure pair's tie points as if station 0 stood 3 and 10 degrees further round: a wrong
     // match or a camera that moved. A focal length 0.8 or 2.7 % shorter would close the turn.
@@ -199,5 +217,30 @@ describe('the bundle adjustment with a lens term', () => {
     const clean = judge(analysis(good), defaultBudget);
     expect(clean.pairs.flatMap((p) => p.reasons)).toEqual([]);
     expect(clean.verdict).toBe('ok');
+  });
+});
+
+describe('the coverage map through the refined lens', () => {
+  it('outlines a frame where the distorting lens puts its corners, wider than a pinhole would', () => {
+    const settings: FrameSettings = { exposureTime: null, fNumber: null, iso: null, evBias: null, focalLength: 35, focalLength35: 35, whiteBalance: null, make: null, model: null };
+    const pose = { station: 0, yawDeg: 0, pitchDeg: 0, rollDeg: 0 };
+    const source = (k1: number) => ({
+      frames: [{ file: 'F.JPG', width: W, height: H, captureTime: null, settings, sharpness: 1, keypoints: 1000 }],
+      stations: [{ index: 0, frames: ['F.JPG'], reference: 'F.JPG', evOffsets: [0], groupedBy: 'single' as const }],
+      geometry: {
+        focalPx: fTrue, focalFrom: 'exif' as const, poses: [pose], unplaced: [], horizontalDeg: 0, verticalDeg: 0, gaps: [], closure: null, rmsPx: 0,
+        rows: [{ pitchDeg: 0, stations: [0] }], distortion: { k1, k2: 0, terms: 1 as const },
+      },
+    });
+    const barrel = coverageMap(source(-0.15))!.footprints[0].outline;
+    const pinhole = coverageMap(source(0))!.footprints[0].outline;
+    // The top-left corner (outline point 0), carried forward through Brown's model, lands on the
+    // frame's corner pixel (-0.5, -0.5).
+    const [yaw, pitch] = barrel[0].map((a) => (a * Math.PI) / 180);
+    const xu = Math.tan(yaw), yu = -Math.tan(pitch) / Math.cos(yaw);
+    const g = distortionFactor(xu * xu + yu * yu, -0.15, 0);
+    expect(Math.abs(fTrue * xu * g + (W - 1) / 2 + 0.5)).toBeLessThan(1e-6);
+    expect(Math.abs(fTrue * yu * g + (H - 1) / 2 + 0.5)).toBeLessThan(1e-6);
+    expect(Math.abs(barrel[0][0])).toBeGreaterThan(Math.abs(pinhole[0][0]) + 1);
   });
 });

@@ -14,7 +14,7 @@
  * from EXIF enters as a soft prior, not a constant; k1 and k2 have a weak prior towards zero and a
  * plausible range, and steps that would make the model fold back inside the frames are refused.
  */
-import { CholeskyDecomposition, Matrix, SingularValueDecomposition } from 'ml-matrix';
+import { Matrix, SingularValueDecomposition } from 'ml-matrix';
 import type { RadialDistortion } from './lens.js';
 import { monotonicUpTo, undistortRadius } from './lens.js';
 import type { FrameSize, Rotation, RotationLink } from './rotations.js';
@@ -64,6 +64,39 @@ const huberPx = 2;
 export const maxAbsK = 0.5;
 /** Weak priors: a k of this size costs as much as one tie point one pixel off (our own choice). */
 const kPriorSd = 0.2;
+
+/**
+ * Solves A x = b for a symmetric positive definite A (n x n, row-major; overwritten by its Cholesky
+ * factor), false when A is not positive definite to working precision.
+ */
+export function choleskySolve(a: Float64Array, n: number, b: ArrayLike<number>, x: Float64Array): boolean {
+  for (let j = 0; j < n; j++) {
+    const rj = j * n;
+    let d = a[rj + j];
+    for (let k = 0; k < j; k++) d -= a[rj + k] * a[rj + k];
+    if (!(d > 1e-300)) return false;
+    const l = Math.sqrt(d);
+    a[rj + j] = l;
+    for (let i = j + 1; i < n; i++) {
+      const ri = i * n;
+      let s = a[ri + j];
+      for (let k = 0; k < j; k++) s -= a[ri + k] * a[rj + k];
+      a[ri + j] = s / l;
+    }
+  }
+  // L y = b, then L^T x = y.
+  for (let i = 0; i < n; i++) {
+    let s = b[i];
+    for (let k = 0; k < i; k++) s -= a[i * n + k] * x[k];
+    x[i] = s / a[i * n + i];
+  }
+  for (let i = n - 1; i >= 0; i--) {
+    let s = x[i];
+    for (let k = i + 1; k < n; k++) s -= a[k * n + i] * x[k];
+    x[i] = s / a[i * n + i];
+  }
+  return true;
+}
 
 /** Kabsch: the rotation R minimising sum |b_k - R a_k|^2 over unit rays (rows of 3), via SVD. */
 export function rotationFromRays(a: ArrayLike<number>, b: ArrayLike<number>): Rotation | null {
@@ -129,20 +162,31 @@ export function bundleAdjust(initial: readonly (Rotation | null)[], links: reado
   const priorLogF = o.focalPrior ? Math.log(o.focalPrior.focalPx) : 0;
   const priorW = o.focalPrior ? 1 / Math.max(1e-6, o.focalPrior.relativeSd) : 0;
 
-  // Residuals of one link (2 per sampled point) at the given rotations and lens, into out.
-  const residuals = (li: number, ri: Rotation, rj: Rotation, lf: number, a1: number, a2: number, out: Float64Array): void => {
+  // The ideal (undistorted, focal-normalised) points of side a of one link, into out (2 per point;
+  // NaN where the lens images nothing). They do not depend on the rotations, so the rotations'
+  // derivatives reuse them.
+  const idealA = (li: number, lf: number, a1: number, a2: number, out: Float64Array): void => {
     const l = used[li], f = Math.exp(lf), pts = samples[li];
-    const a = sizes[l.i], b = sizes[l.j];
-    const rel = mul3(rj, transpose3(ri));
-    const cxa = (a.width - 1) / 2, cya = (a.height - 1) / 2, cxb = (b.width - 1) / 2, cyb = (b.height - 1) / 2;
+    const a = sizes[l.i];
+    const cxa = (a.width - 1) / 2, cya = (a.height - 1) / 2;
     for (let k = 0, p = 0; p < pts.length; k += 2, p += 4) {
       const xd = (pts[p] - cxa) / f, yd = (pts[p + 1] - cya) / f;
       const rd = Math.sqrt(xd * xd + yd * yd);
-      const ru = undistortRadius(rd, a1, a2);
-      const s = rd > 0 ? ru / rd : 1;
-      const u = xd * s, v = yd * s;
+      const s = rd > 0 ? undistortRadius(rd, a1, a2) / rd : 1;
+      out[k] = xd * s;
+      out[k + 1] = yd * s;
+    }
+  };
+  // Residuals of one link (2 per sampled point, pixels of j) from its ideal points, into out.
+  const project = (li: number, ri: Rotation, rj: Rotation, lf: number, a1: number, a2: number, ideal: Float64Array, out: Float64Array): void => {
+    const l = used[li], f = Math.exp(lf), pts = samples[li];
+    const b = sizes[l.j];
+    const rel = mul3(rj, transpose3(ri));
+    const cxb = (b.width - 1) / 2, cyb = (b.height - 1) / 2;
+    for (let k = 0, p = 0; p < pts.length; k += 2, p += 4) {
+      const u = ideal[k], v = ideal[k + 1];
       const x = rel[0] * u + rel[1] * v + rel[2], y = rel[3] * u + rel[4] * v + rel[5], z = rel[6] * u + rel[7] * v + rel[8];
-      if (!(z > 1e-9) || !Number.isFinite(s)) {
+      if (!(z > 1e-9)) {
         out[k] = 1e3;
         out[k + 1] = 1e3;
         continue;
@@ -152,6 +196,11 @@ export function bundleAdjust(initial: readonly (Rotation | null)[], links: reado
       out[k] = f * xu * g + cxb - pts[p + 2];
       out[k + 1] = f * yu * g + cyb - pts[p + 3];
     }
+  };
+  const idealScratch = used.map((_, li) => new Float64Array(samples[li].length / 2));
+  const residuals = (li: number, ri: Rotation, rj: Rotation, lf: number, a1: number, a2: number, out: Float64Array): void => {
+    idealA(li, lf, a1, a2, idealScratch[li]);
+    project(li, ri, rj, lf, a1, a2, idealScratch[li], out);
   };
   const huberCost = (r: number): number => (Math.abs(r) <= huberPx ? r * r : 2 * huberPx * Math.abs(r) - huberPx * huberPx);
   const priorCost = (lf: number, a1: number, a2: number): number => (priorW * (lf - priorLogF)) ** 2 + (a1 / kPriorSd) ** 2 + (a2 / kPriorSd) ** 2;
@@ -170,6 +219,7 @@ export function bundleAdjust(initial: readonly (Rotation | null)[], links: reado
     Math.abs(a1) <= maxAbsK && Math.abs(a2) <= maxAbsK && monotonicUpTo(1.1 * cornerRadius(sizes, Math.exp(lf)), a1, a2);
 
   let cost = totalCost(rotations, logF, k1, k2);
+  const damped = new Float64Array(P * P), rhs = new Float64Array(P), delta = new Float64Array(P);
   let lambda = 1e-3;
   const eps = 1e-6;
   for (let it = 0; it < o.maxIterations && P > 0 && used.length > 0; it++) {
@@ -179,7 +229,9 @@ export function bundleAdjust(initial: readonly (Rotation | null)[], links: reado
       const m = samples[li].length / 2;
       const base = new Float64Array(m);
       const ri = rotations[l.i]!, rj = rotations[l.j]!;
-      residuals(li, ri, rj, logF, k1, k2, base);
+      const ideal = new Float64Array(m);
+      idealA(li, logF, k1, k2, ideal);
+      project(li, ri, rj, logF, k1, k2, ideal, base);
       // Forward differences for the parameters this link depends on: its two rotations, the lens.
       const cols: { p: number; d: Float64Array }[] = [];
       const probe = new Float64Array(m);
@@ -194,7 +246,7 @@ export function bundleAdjust(initial: readonly (Rotation | null)[], links: reado
           const w = [0, 0, 0];
           w[axis] = eps;
           const moved = mul3(rotationOfVector(w[0], w[1], w[2]), rotations[s]!);
-          residuals(li, which === 'i' ? moved : ri, which === 'j' ? moved : rj, logF, k1, k2, probe);
+          project(li, which === 'i' ? moved : ri, which === 'j' ? moved : rj, logF, k1, k2, ideal, probe);
           column(index[s] + axis);
         }
       }
@@ -241,14 +293,12 @@ export function bundleAdjust(initial: readonly (Rotation | null)[], links: reado
     }
     let improved = false;
     for (let attempt = 0; attempt < 8 && !improved; attempt++) {
-      const a = new Matrix(P, P);
-      for (let r = 0; r < P; r++) for (let c = 0; c < P; c++) a.set(r, c, jtj[r * P + c] + (r === c ? lambda * (jtj[r * P + r] + 1e-9) : 0));
-      const chol = new CholeskyDecomposition(a);
-      if (!chol.isPositiveDefinite()) {
+      for (let r = 0; r < P; r++) for (let c = 0; c < P; c++) damped[r * P + c] = jtj[r * P + c] + (r === c ? lambda * (jtj[r * P + r] + 1e-9) : 0);
+      for (let r = 0; r < P; r++) rhs[r] = -jtr[r];
+      if (!choleskySolve(damped, P, rhs, delta)) {
         lambda *= 10;
         continue;
       }
-      const delta = chol.solve(Matrix.columnVector(Array.from(jtr, (v) => -v))).to1DArray();
       const next = rotations.map((r, s) => (r && index[s] >= 0 ? mul3(rotationOfVector(delta[index[s]], delta[index[s] + 1], delta[index[s] + 2]), r) : r));
       const nextF = focalIndex >= 0 ? logF + delta[focalIndex] : logF;
       const nextK1 = k1Index >= 0 ? k1 + delta[k1Index] : k1;

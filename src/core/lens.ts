@@ -33,7 +33,10 @@ export function distortionFactor(r2: number, k1: number, k2: number): number {
  */
 export function undistortRadius(rd: number, k1: number, k2: number): number {
   if (k1 === 0 && k2 === 0) return rd;
-  let r = rd;
+  // Start from one fixed-point step, r = rd / (1 + k1 rd^2 + k2 rd^4): close for moderate distortion.
+  const rd2 = rd * rd;
+  const g0 = 1 + rd2 * (k1 + k2 * rd2);
+  let r = g0 > 0.2 ? rd / g0 : rd;
   for (let it = 0; it < 20; it++) {
     const r2 = r * r;
     const g = r * (1 + r2 * (k1 + k2 * r2)) - rd;

@@ -159,8 +159,14 @@ export function focalFromHomography(h: ArrayLike<number>, a: FrameSize, b: Frame
  * stations no chain of matched pairs reaches.
  */
 export function chainRotations(stations: number, links: readonly RotationLink[], f: number, sizes: readonly FrameSize[]): (Rotation | null)[] {
+  return chainTree(stations, links, f, sizes).rotations;
+}
+
+/** chainRotations, with the links of the spanning tree it went along. */
+export function chainTree(stations: number, links: readonly RotationLink[], f: number, sizes: readonly FrameSize[]): { rotations: (Rotation | null)[]; tree: RotationLink[] } {
   const out: (Rotation | null)[] = new Array(stations).fill(null);
-  if (stations === 0) return out;
+  const tree: RotationLink[] = [];
+  if (stations === 0) return { rotations: out, tree };
   out[0] = Float64Array.of(1, 0, 0, 0, 1, 0, 0, 0, 1);
   const queue = [0];
   while (queue.length > 0) {
@@ -171,6 +177,7 @@ export function chainRotations(stations: number, links: readonly RotationLink[],
       if (!forward && !backward) continue;
       const rel = relativeRotation(l.homography, f, sizes[l.i], sizes[l.j]);
       if (!rel) continue;
+      tree.push(l);
       // R_j = R_ij R_i, and R_i = R_ij^T R_j.
       if (forward) {
         out[l.j] = mul3(rel, out[s]!);
@@ -181,7 +188,7 @@ export function chainRotations(stations: number, links: readonly RotationLink[],
       }
     }
   }
-  return out;
+  return { rotations: out, tree };
 }
 
 /** Where each station points, in degrees, against the sequence's own level. */

@@ -10,7 +10,7 @@ import type { BundleResult } from './lens-bundle.js';
 import { bundleAdjust, linkRotation } from './lens-bundle.js';
 import type { SequenceGeometry } from './report.js';
 import type { FrameSize, Rotation, RotationLink } from './rotations.js';
-import { chainRotations, focalFromHomography, mul3, rotationAngleOf, stationPoses, transpose3 } from './rotations.js';
+import { chainTree, focalFromHomography, mul3, rotationAngleOf, stationPoses, transpose3 } from './rotations.js';
 import { median } from './median.js';
 
 export interface GeometryInput {
@@ -63,9 +63,9 @@ const typicalRms = (fit: BundleResult): number => {
  * Rotations, focal length and k1 (and k2, when k1 alone leaves a poor fit) over the links: the
  * bundle adjustment with the EXIF focal length as a prior.
  */
-function fitLens(initial: readonly (Rotation | null)[], links: readonly RotationLink[], f0: number, input: GeometryInput, longSide: number): { fit: BundleResult; terms: 1 | 2 } {
+function fitLens(initial: readonly (Rotation | null)[], links: readonly RotationLink[], f0: number, input: GeometryInput, longSide: number, k1 = 0): { fit: BundleResult; terms: 1 | 2 } {
   const focalPrior = input.exifFocalPx !== null ? { focalPx: input.exifFocalPx, relativeSd: exifFocalRelativeSd } : null;
-  const one = bundleAdjust(initial, links, f0, input.sizes, { refineFocal: true, focalPrior, distortionTerms: 1, maxIterations: bundleIterations });
+  const one = bundleAdjust(initial, links, f0, input.sizes, { refineFocal: true, focalPrior, distortionTerms: 1, distortion: { k1, k2: 0 }, maxIterations: bundleIterations });
   if (typicalRms(one) <= poorK1FitPx(longSide)) return { fit: one, terms: 1 };
   const two = bundleAdjust(one.rotations, links, one.focalPx, input.sizes, { refineFocal: true, focalPrior, distortionTerms: 2, distortion: one.distortion, maxIterations: bundleIterations });
   // Kept only when it does markedly better (a tenth less error on the typical pair).
@@ -98,10 +98,12 @@ export function solveSequence(input: GeometryInput): SequenceSolution | null {
     focal = median(found);
   }
   const longSide = Math.max(...input.sizes.map((s) => Math.max(s.width, s.height)));
-  const chained = chainRotations(n, input.links, focal, input.sizes);
-  // The closure pair stays out of the chain and the first fit: a pinhole chain through a distorting
-  // lens can miss itself by tens of degrees, and the fit would start from that.
-  const first = fitLens(chained, input.links, focal, input, longSide);
+  const { rotations: chained, tree } = chainTree(n, input.links, focal, input.sizes);
+  // A pinhole chain through a distorting lens can miss itself by tens of degrees round a loop (a
+  // full turn, two rows tied together): the lens is first fitted along the spanning tree alone,
+  // which has no loop to miss, and the loops join from there. The closure pair stays out of both.
+  let first = fitLens(chained, tree, focal, input, longSide);
+  if (tree.length < input.links.length) first = fitLens(first.fit.rotations, input.links, first.fit.focalPx, input, longSide, first.fit.distortion.k1);
   const c = input.closure ?? null;
   if (!c || !first.fit.rotations[c.i] || !first.fit.rotations[c.j]) return { fit: first.fit, terms: first.terms, links: input.links, misclosureDeg: null, closes: false };
   // Along an open chain the focal length and the distortion trade against each other, and a focal

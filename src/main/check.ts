@@ -9,8 +9,8 @@ import type { StationGroup } from '../core/stations.js';
 import { groupStations } from '../core/stations.js';
 import type { RotationLink } from '../core/rotations.js';
 import { bracketShift } from '../core/bracket-shift.js';
-import { circleCoverage, fieldOfViewDeg } from '../core/coverage.js';
-import { sequenceGeometry } from '../core/sequence-geometry.js';
+import { circleCoverage } from '../core/coverage.js';
+import { lensFieldOfViewDeg, sequenceGeometry } from '../core/sequence-geometry.js';
 import { focalPxFrom35mm } from '../core/sweep.js';
 import type { AnalysisPool } from './analysis-pool.js';
 import { createAnalysisPool } from './analysis-pool.js';
@@ -418,7 +418,7 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
         const a = rowOf[stationOf[p.i]], b = rowOf[stationOf[p.j]];
         if ((p.kind === 'neighbour' || p.kind === 'closure') && a !== b) p.kind = 'other';
       }
-      const hfov = (s: number): number => fieldOfViewDeg(frames[stations[s].reference]!.summary.fullWidth, g.focalPx);
+      const hfov = (s: number): number => lensFieldOfViewDeg(frames[stations[s].reference]!.summary.fullWidth, g.focalPx, g.distortion ?? { k1: 0, k2: 0 });
       const yawOf = new Map(g.poses.map((p) => [p.station, p.yawDeg]));
       for (const r of g.rows) {
         if (r.stations.length < 3) continue;
