@@ -84,9 +84,10 @@ export interface SequenceSolution {
 
 /**
  * Chains the rotations from a starting focal length (EXIF, else the homographies'), refines them
- * with the lens over the neighbours' tie points, judges the closure pair against that refined chain
- * under the refined lens, and when the turn closes refines once more with the closure taking part.
- * Null when no focal length can be had.
+ * with the lens over the links' tie points, then judges the closure pair: the lens refined with it,
+ * the chain of links refined again under that lens without it, and the two compared. The result is
+ * the fit with the closure pair when the turn closes, else the fit without it. Null when no focal
+ * length can be had.
  */
 export function solveSequence(input: GeometryInput): SequenceSolution | null {
   const n = input.sizes.length;
