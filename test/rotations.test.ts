@@ -8,7 +8,8 @@ import { cameraModel, focalLengthPx, rotationHomography } from '../src/core/came
 import { project } from '../src/core/homography.js';
 import { createRandom } from '../src/core/random.js';
 import type { RotationLink } from '../src/core/rotations.js';
-import { chainRotations, focalFromHomography, mul3, refineRotations, rotationAngleOf, stationPoses, transpose3 } from '../src/core/rotations.js';
+import { chainRotations, focalFromHomography, mul3, rotationAngleOf, stationPoses, transpose3 } from '../src/core/rotations.js';
+import { bundleAdjust } from '../src/core/lens-bundle.js';
 
 const camera = cameraModel(3000, 2000, 35);
 const f = focalLengthPx(camera);
@@ -56,7 +57,7 @@ describe('camera rotations from pair homographies', () => {
 
   it('refines rotations and the focal length jointly from a focal length 15 % off', () => {
     const start = chainRotations(12, links, 1.15 * f, sizes);
-    const refined = refineRotations(start, links, 1.15 * f, sizes, false);
+    const refined = bundleAdjust(start, links, 1.15 * f, sizes, { refineFocal: true });
     expect(Math.abs(refined.focalPx / f - 1)).toBeLessThan(0.003);
     expect(refined.rmsPx).toBeLessThan(0.6);
     const est = stationPoses(refined.rotations);

@@ -82,9 +82,14 @@ describe('a full turn of 12 stations', () => {
     expect([meta.format, meta.width]).toEqual(['png', 1440]);
   });
 
-  it('takes the focal length from EXIF', () => {
-    expect(report.geometry!.focalFrom).toBe('exif');
-    expect(Math.abs(report.geometry!.focalPx / truthFocalPx(truth) - 1)).toBeLessThan(1e-6);
+  it('starts from the EXIF focal length and refines it, with the lens, to the truth', () => {
+    const g = report.geometry!;
+    expect(g.focalFrom).toBe('exif');
+    expect(Math.abs(g.exifFocalPx! / truthFocalPx(truth) - 1)).toBeLessThan(1e-6);
+    // A pinhole: the refined focal length stays within 0.5 %, k1 near zero, one term.
+    expect(Math.abs(g.focalPx / truthFocalPx(truth) - 1)).toBeLessThan(0.005);
+    expect(Math.abs(g.distortion!.k1)).toBeLessThan(0.01);
+    expect(g.distortion!.terms).toBe(1);
   });
 });
 

@@ -4,6 +4,7 @@
  */
 import type { Analysis, CoverageHole, CoverageNote, MatchBudget, SequenceGeometry, Verdict } from './report.js';
 import { cross } from './rotations.js';
+import { distortionFactor, undistortRadius } from './lens.js';
 
 /**
  * What the map is drawn from: the frames' sizes, the stations' reference frames, the geometry, and
@@ -63,6 +64,17 @@ interface PlacedCamera {
   readonly width: number;
   readonly height: number;
   readonly axes: { x: Vec; y: Vec; z: Vec };
+  /** The sequence's radial distortion (lens.ts), zero for a pinhole. */
+  readonly k1: number;
+  readonly k2: number;
+  /** Squared ideal radius of the frame's corner: beyond it the model may fold back, and the frame sees nothing. */
+  readonly cornerIdeal2: number;
+}
+
+function lensOf(frame: { width: number; height: number }, g: SequenceGeometry): { k1: number; k2: number; cornerIdeal2: number } {
+  const k1 = g.distortion?.k1 ?? 0, k2 = g.distortion?.k2 ?? 0;
+  const corner = undistortRadius(Math.hypot(frame.width, frame.height) / (2 * g.focalPx), k1, k2);
+  return { k1, k2, cornerIdeal2: Number.isFinite(corner) ? corner * corner * 1.0001 : Infinity };
 }
 
 /** The placed stations of a report with their reference frame's size. */
@@ -70,12 +82,16 @@ function placedCameras(report: MapSource, g: SequenceGeometry): PlacedCamera[] {
   return g.poses.flatMap((p) => {
     const ref = report.stations[p.station]?.reference;
     const frame = report.frames.find((f) => f.file === ref);
-    return frame ? [{ station: p.station, width: frame.width, height: frame.height, axes: axesOf(p.yawDeg, p.pitchDeg, p.rollDeg) }] : [];
+    return frame ? [{ station: p.station, width: frame.width, height: frame.height, axes: axesOf(p.yawDeg, p.pitchDeg, p.rollDeg), ...lensOf(frame, g) }] : [];
   });
 }
 
 function direction(c: PlacedCamera, f: number, u: number, v: number): Vec {
-  const a = (u - (c.width - 1) / 2) / f, b = (v - (c.height - 1) / 2) / f;
+  const ad = (u - (c.width - 1) / 2) / f, bd = (v - (c.height - 1) / 2) / f;
+  // Through the lens: the pixel's ideal position (a lens that folds back keeps the pixel's own).
+  const rd = Math.hypot(ad, bd), ru = undistortRadius(rd, c.k1, c.k2);
+  const s = rd > 0 && Number.isFinite(ru) ? ru / rd : 1;
+  const a = ad * s, b = bd * s;
   return [0, 1, 2].map((k) => a * c.axes.x[k] + b * c.axes.y[k] + c.axes.z[k]) as Vec;
 }
 
@@ -87,8 +103,12 @@ function angles(d: Vec): [number, number] {
 function sees(c: PlacedCamera, f: number, d: Vec): boolean {
   const z = d[0] * c.axes.z[0] + d[1] * c.axes.z[1] + d[2] * c.axes.z[2];
   if (z <= 0) return false;
-  const u = (f * (d[0] * c.axes.x[0] + d[1] * c.axes.x[1] + d[2] * c.axes.x[2])) / z + (c.width - 1) / 2;
-  const v = (f * (d[0] * c.axes.y[0] + d[1] * c.axes.y[1] + d[2] * c.axes.y[2])) / z + (c.height - 1) / 2;
+  const xu = (d[0] * c.axes.x[0] + d[1] * c.axes.x[1] + d[2] * c.axes.x[2]) / z, yu = (d[0] * c.axes.y[0] + d[1] * c.axes.y[1] + d[2] * c.axes.y[2]) / z;
+  const r2 = xu * xu + yu * yu;
+  if (r2 > c.cornerIdeal2) return false;
+  const g = distortionFactor(r2, c.k1, c.k2);
+  const u = f * xu * g + (c.width - 1) / 2;
+  const v = f * yu * g + (c.height - 1) / 2;
   return u >= -0.5 && u <= c.width - 0.5 && v >= -0.5 && v <= c.height - 0.5;
 }
 
@@ -415,7 +435,7 @@ function openRuns(cover: Uint8Array): [number, number][] {
 }
 
 /** A camera aimed at a yaw and pitch, level, of a given size: where a frame to fill a hole would go. */
-const aimedCamera = (yawDeg: number, pitchDeg: number, width: number, height: number): PlacedCamera => ({ station: -1, width, height, axes: axesOf(yawDeg, pitchDeg, 0) });
+const aimedCamera = (yawDeg: number, pitchDeg: number, width: number, height: number): PlacedCamera => ({ station: -1, width, height, axes: axesOf(yawDeg, pitchDeg, 0), k1: 0, k2: 0, cornerIdeal2: Infinity });
 
 interface Row {
   readonly pitchDeg: number;

@@ -5,6 +5,7 @@
 import type { CameraModel, Pose } from './camera.js';
 import { cameraModel, rotationHomography, worldToCamera } from './camera.js';
 import type { NearPost } from './render.js';
+import type { RadialDistortion } from './lens.js';
 import { overlapRegions } from './overlap.js';
 import { createRandom } from './random.js';
 
@@ -35,6 +36,15 @@ export interface DemoPlanOptions {
    * its centre). Off centre, the posts shift against the distant scene between stations: parallax.
    */
   readonly pivotOffsetM?: number;
+  /** Radial distortion of the lens (lens.ts: Brown's model, focal-normalised radius); none by default. */
+  readonly distortion?: RadialDistortion;
+  /**
+   * The focal length the EXIF tags claim, mm, when it is not the one rendered (cameras round it;
+   * a lens may not report it right); by default the true one.
+   */
+  readonly exifFocalLengthMm?: number;
+  /** Exposure biases of each station's bracket, EV, one of them 0 (clean sets only); default demoBracket. [0]: one frame a station. */
+  readonly bracket?: readonly number[];
 }
 
 /** A figure in the scene, as the directions it covers, degrees (yaw as the poses'). */
@@ -120,6 +130,10 @@ export interface DemoCamera {
   readonly width: number;
   readonly height: number;
   readonly focalLengthMm: number;
+  /** The lens's radial distortion, when it has any. */
+  readonly distortion?: RadialDistortion;
+  /** The focal length written to EXIF, mm, when it differs from the true one. */
+  readonly exifFocalLengthMm?: number;
 }
 
 export interface DemoPlan {
@@ -150,6 +164,10 @@ export function expectDemoPlanOptions(o: DemoPlanOptions): void {
   const rows = o.rows ?? [0];
   if (rows.length === 0 || rows.some((p) => !(Math.abs(p) <= 80))) throw new RangeError(`Expected one or more row pitches between -80 and 80 degrees for rows but received ${JSON.stringify(o.rows)}`);
   if (rows.length > 1 && !o.clean) throw new RangeError('Expected clean: true for a set shot in rows but received clean: false');
+  const d = o.distortion;
+  if (d !== undefined && !(Number.isFinite(d.k1) && Number.isFinite(d.k2) && Math.abs(d.k1) <= 1 && Math.abs(d.k2) <= 1)) throw new RangeError(`Expected k1 and k2 between -1 and 1 for distortion but received ${JSON.stringify(d)}`);
+  if (o.exifFocalLengthMm !== undefined && !(o.exifFocalLengthMm > 0 && o.exifFocalLengthMm < 10_000)) throw new RangeError(`Expected a focal length in mm for exifFocalLengthMm but received ${o.exifFocalLengthMm}`);
+  if (o.bracket !== undefined && (!o.clean || !o.bracket.includes(0) || o.bracket.some((b) => !(Math.abs(b) <= 5)))) throw new RangeError(`Expected EV biases from -5 to 5 including 0, on a clean set, for bracket but received ${JSON.stringify(o.bracket)}${o.clean ? '' : ' (clean: false)'}`);
   if (rows.length * o.stations > demoMaxStations) throw new RangeError(`Expected at most ${demoMaxStations} stations in all rows but received ${rows.length * o.stations}`);
 }
 
@@ -266,7 +284,7 @@ export function planDemoShoot(options: Partial<DemoPlanOptions> = {}): DemoPlan 
     const jump = at['exposure-jump'] === s ? jumpEv : 0;
     const names: string[] = [];
     let reference = '';
-    demoBracket.forEach((bias, b) => {
+    (o.bracket ?? demoBracket).forEach((bias, b) => {
       if (at['incomplete-bracket'] === s && bias === 2) return;
       const drift = at['bracket-drift'] === s && bias === -2;
       const index = frames.length;
@@ -366,6 +384,8 @@ export function planDemoShoot(options: Partial<DemoPlanOptions> = {}): DemoPlan 
     camera: {
       make: demoMake, model: demoModel, sensorWidthMm: camera.sensorWidthMm, sensorHeightMm: camera.sensorHeightMm,
       width: o.width, height: o.height, focalLengthMm: demoFocalLengthMm,
+      ...(o.distortion && (o.distortion.k1 !== 0 || o.distortion.k2 !== 0) ? { distortion: { k1: o.distortion.k1, k2: o.distortion.k2 } } : {}),
+      ...(o.exifFocalLengthMm !== undefined ? { exifFocalLengthMm: o.exifFocalLengthMm } : {}),
     },
     frames,
     stations,

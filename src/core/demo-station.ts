@@ -9,6 +9,7 @@ import type { RgbImage } from './render.js';
 import type { NearPost } from './render.js';
 import { exposeFrame, paintPosts, paintVisitor, renderRadiance } from './render.js';
 import type { SceneView } from './scene-radiance.js';
+import type { RadialDistortion } from './lens.js';
 
 /** One radiance render and the exposures taken from it. */
 export interface RenderJob {
@@ -18,6 +19,8 @@ export interface RenderJob {
   /** Near posts, and where the camera's centre is (the origin unless off its pivot). */
   readonly posts: readonly NearPost[];
   readonly centre: readonly [number, number, number];
+  /** The lens's radial distortion, or null for a pinhole. */
+  readonly distortion?: RadialDistortion | null;
   readonly frames: readonly JobFrame[];
 }
 
@@ -36,7 +39,7 @@ export function renderJobs(plan: DemoPlan, only?: ReadonlySet<string>): RenderJo
     const key = `${f.station}:${f.yawDeg}:${f.pitchDeg}:${f.rollDeg}`;
     let job = jobs.get(key);
     if (!job) {
-      job = { pose: { yawDeg: f.yawDeg, pitchDeg: f.pitchDeg, rollDeg: f.rollDeg }, visitor: f.visitor ?? null, posts: plan.posts, centre: f.centre ?? [0, 0, 0], frames: [] };
+      job = { pose: { yawDeg: f.yawDeg, pitchDeg: f.pitchDeg, rollDeg: f.rollDeg }, visitor: f.visitor ?? null, posts: plan.posts, centre: f.centre ?? [0, 0, 0], distortion: plan.camera.distortion ?? null, frames: [] };
       jobs.set(key, job);
     }
     job.frames.push(jobFrame(f));
@@ -54,8 +57,9 @@ function jobFrame(f: PlannedFrame): JobFrame {
  */
 export function renderJob(view: SceneView, width: number, height: number, job: RenderJob, scratch?: Float32Array): RgbImage[] {
   const camera = demoCameraModel(width, height);
-  const radiance = renderRadiance(view, camera, job.pose, {}, scratch);
-  if (job.posts.length) paintPosts(radiance, camera, job.pose, job.posts, job.centre);
-  if (job.visitor) paintVisitor(radiance, camera, job.pose, job.visitor);
+  const distortion = job.distortion ?? null;
+  const radiance = renderRadiance(view, camera, job.pose, { distortion }, scratch);
+  if (job.posts.length) paintPosts(radiance, camera, job.pose, job.posts, job.centre, distortion);
+  if (job.visitor) paintVisitor(radiance, camera, job.pose, job.visitor, distortion);
   return job.frames.map((f) => exposeFrame(radiance, { ev: f.exposureOffsetEv, blurPx: f.blurPx, noiseSeed: f.noiseSeed }));
 }

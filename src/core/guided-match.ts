@@ -17,7 +17,8 @@ import { fitAndVerify } from './pair-geometry.js';
 import type { Polygon } from './polygon.js';
 import { clipConvex, frameRectangle, projectPolygon } from './polygon.js';
 import type { FrameSize, Rotation, RotationLink } from './rotations.js';
-import { chainRotations, homographyOfRotations, refineRotations } from './rotations.js';
+import { chainRotations, homographyOfRotations } from './rotations.js';
+import { bundleAdjust } from './lens-bundle.js';
 
 export interface GuidedMatchParams {
   /**
@@ -242,7 +243,7 @@ export function predictPairHomography(links: readonly RotationLink[], focalPx: n
   // The focal length is refined too, from focalPx: across a gap the prediction adds up the turns
   // of every pair the long way round, and an EXIF focal length rounded to the millimetre (1 to 3 %
   // off) makes each of them a few tenths of a degree short or long.
-  const refined = refineRotations(chained, links, focalPx, sizes, false);
+  const refined = bundleAdjust(chained, links, focalPx, sizes, { refineFocal: true });
   const ri: Rotation | null = refined.rotations[i], rj: Rotation | null = refined.rotations[j];
   if (!ri || !rj || !(refined.focalPx > 0)) return null;
   return homographyOfRotations(ri, rj, refined.focalPx, sizes[i], sizes[j]);

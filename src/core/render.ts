@@ -9,6 +9,8 @@ import { createRandom } from './random.js';
 import type { SceneView } from './scene-radiance.js';
 import { shadeDirection } from './scene-radiance.js';
 import { linearToSrgb } from './srgb.js';
+import type { RadialDistortion } from './lens.js';
+import { isPinhole, undistortRadius } from './lens.js';
 
 /** Linear-light RGB of one view at 0 EV, interleaved (R, G, B per pixel), row-major. */
 export interface RadianceImage {
@@ -18,19 +20,40 @@ export interface RadianceImage {
 }
 
 /**
+ * The ideal (undistorted) normalised point of pixel (x, y) into out[0], out[1]; false where the lens
+ * images nothing (its model folds back before that radius).
+ */
+function idealPoint(x: number, y: number, cx: number, cy: number, f: number, d: RadialDistortion | null, out: Float64Array): boolean {
+  const xd = (x - cx) / f, yd = (y - cy) / f;
+  if (isPinhole(d)) {
+    out[0] = xd;
+    out[1] = yd;
+    return true;
+  }
+  const rd = Math.sqrt(xd * xd + yd * yd);
+  const ru = undistortRadius(rd, d!.k1, d!.k2);
+  if (!Number.isFinite(ru)) return false;
+  const s = rd > 0 ? ru / rd : 1;
+  out[0] = xd * s;
+  out[1] = yd * s;
+  return true;
+}
+
+/**
  * Paints a figure into a radiance image: the directions within its box get a dark coat with light
  * horizontal bands (texture a matcher can see), over whatever the scene had there.
  */
-export function paintVisitor(radiance: RadianceImage, camera: CameraModel, pose: Pose, v: { yawDeg: number; pitchDeg: number; widthDeg: number; heightDeg: number }): void {
+export function paintVisitor(radiance: RadianceImage, camera: CameraModel, pose: Pose, v: { yawDeg: number; pitchDeg: number; widthDeg: number; heightDeg: number }, distortion: RadialDistortion | null = null): void {
   const { width, height, data } = radiance;
   const r = worldToCamera(pose);
   const f = focalLengthPx(camera);
   const cx = (width - 1) / 2, cy = (height - 1) / 2;
   const deg = 180 / Math.PI;
+  const ideal = new Float64Array(2);
   for (let y = 0; y < height; y++) {
-    const vv = (y - cy) / f;
     for (let x = 0; x < width; x++) {
-      const u = (x - cx) / f;
+      if (!idealPoint(x, y, cx, cy, f, distortion, ideal)) continue;
+      const u = ideal[0], vv = ideal[1];
       const dx = r[0] * u + r[3] * vv + r[6], dy = r[1] * u + r[4] * vv + r[7], dz = r[2] * u + r[5] * vv + r[8];
       const yaw = Math.atan2(dx, dz) * deg;
       const e = Math.atan2(dy, Math.hypot(dx, dz)) * deg;
@@ -60,16 +83,17 @@ export interface NearPost {
  * same cos^4 vignetting as the scene. A camera whose centre is off its pivot sees the posts shift
  * against the distant scene from one station to the next: parallax.
  */
-export function paintPosts(radiance: RadianceImage, camera: CameraModel, pose: Pose, posts: readonly NearPost[], centre: readonly [number, number, number]): void {
+export function paintPosts(radiance: RadianceImage, camera: CameraModel, pose: Pose, posts: readonly NearPost[], centre: readonly [number, number, number], distortion: RadialDistortion | null = null): void {
   const { width, height, data } = radiance;
   const r = worldToCamera(pose);
   const f = focalLengthPx(camera);
   const cx = (width - 1) / 2, cy = (height - 1) / 2;
   const [ox, oy, oz] = centre;
+  const ideal = new Float64Array(2);
   for (let y = 0; y < height; y++) {
-    const v = (y - cy) / f;
     for (let x = 0; x < width; x++) {
-      const u = (x - cx) / f;
+      if (!idealPoint(x, y, cx, cy, f, distortion, ideal)) continue;
+      const u = ideal[0], v = ideal[1];
       const dx = r[0] * u + r[3] * v + r[6], dy = r[1] * u + r[4] * v + r[7], dz = r[2] * u + r[5] * v + r[8];
       let best = Infinity, hitY = 0, hitA = 0;
       for (const p of posts) {
@@ -108,6 +132,11 @@ export interface RgbImage {
 export interface RadianceOptions {
   /** Natural vignetting, cos^4 of the off-axis angle (default on). */
   readonly vignetting: boolean;
+  /**
+   * Radial distortion of the lens (lens.ts: Brown's model on focal-normalised coordinates); none by
+   * default. Each output pixel is a distorted point: it is undistorted before its ray is cast.
+   */
+  readonly distortion: RadialDistortion | null;
 }
 
 /**
@@ -125,6 +154,10 @@ export function renderRadiance(view: SceneView, camera: CameraModel, pose: Pose,
   const f = focalLengthPx(camera);
   const cx = (width - 1) / 2, cy = (height - 1) / 2;
   const twoPi = 2 * Math.PI;
+  if (!isPinhole(options.distortion)) {
+    renderDistorted(view, r, f, width, height, options.distortion!, vignetting, data);
+    return { width, height, data };
+  }
   // World ray of pixel (x, y) = R^T (u, v, 1) with u = (x - cx) / f, v = (y - cy) / f: linear in x
   // along a row, so each row starts from its left end and steps.
   const sx = r[0] / f, sy = r[1] / f, sz = r[2] / f;
@@ -153,6 +186,38 @@ export function renderRadiance(view: SceneView, camera: CameraModel, pose: Pose,
     }
   }
   return { width, height, data };
+}
+
+/** renderRadiance through a distorting lens: every pixel's ideal position by Newton's method, then its ray. */
+function renderDistorted(view: SceneView, r: Float64Array, f: number, width: number, height: number, d: RadialDistortion, vignetting: boolean, data: Float32Array): void {
+  const cx = (width - 1) / 2, cy = (height - 1) / 2;
+  const twoPi = 2 * Math.PI;
+  for (let y = 0, o = 0; y < height; y++) {
+    const yd = (y - cy) / f;
+    for (let x = 0; x < width; x++, o += 3) {
+      const xd = (x - cx) / f;
+      const rd = Math.sqrt(xd * xd + yd * yd);
+      const ru = undistortRadius(rd, d.k1, d.k2);
+      if (!Number.isFinite(ru)) {
+        // The lens folds back before this radius: nothing is imaged here.
+        data[o] = data[o + 1] = data[o + 2] = 0;
+        continue;
+      }
+      const s = rd > 0 ? ru / rd : 1;
+      const u = xd * s, v = yd * s;
+      const dx = r[0] * u + r[3] * v + r[6], dy = r[1] * u + r[4] * v + r[7], dz = r[2] * u + r[5] * v + r[8];
+      let yaw = Math.atan2(dx, dz);
+      if (yaw < 0) yaw += twoPi;
+      shadeDirection(view, yaw, dy / Math.sqrt(dx * dx + dz * dz), data, o);
+      if (vignetting) {
+        const q = 1 / (1 + u * u + v * v);
+        const c4 = q * q;
+        data[o] *= c4;
+        data[o + 1] *= c4;
+        data[o + 2] *= c4;
+      }
+    }
+  }
 }
 
 export interface ExposureOptions {

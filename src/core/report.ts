@@ -20,7 +20,8 @@ export type FlagCode =
   | 'coverage-hole'
   | 'movement'
   | 'parallax'
-  | 'size-mismatch';
+  | 'size-mismatch'
+  | 'lens-misfit';
 
 /** Why a file was left out; 'not-in-sequence': another camera, size or shape than most of the card (a stray file). */
 export type SkipCode = 'unreadable' | 'too-large' | 'not-an-image' | 'duplicate' | 'no-preview' | 'same-shot' | 'not-in-sequence';
@@ -134,9 +135,26 @@ export interface HorizonGap {
 
 /** The sequence as seen from its one place: station rotations, what they cover, whether a turn closes. */
 export interface SequenceGeometry {
-  /** Focal length in full-resolution pixels. */
+  /** Focal length in full-resolution pixels, refined with the rotations and the lens's distortion. */
   readonly focalPx: number;
+  /** Where the focal length started from (the refinement takes it from there). */
   readonly focalFrom: 'exif' | 'homographies';
+  /** The focal length EXIF gives (its 35 mm equivalent on the long side), full-resolution pixels; null without it. */
+  readonly exifFocalPx?: number | null;
+  /** That 35 mm equivalent as written in EXIF, mm; null without it. */
+  readonly exifFocal35mm?: number | null;
+  /** The refined focal length as a 35 mm equivalent (36 mm on the long side), to compare with EXIF. */
+  readonly focal35mm?: number;
+  /**
+   * Radial distortion refined for the sequence, Brown's model x_d = x_u (1 + k1 r^2 + k2 r^4) with
+   * r the radius normalised by the focal length (r = tan of the angle off the axis), principal point
+   * at the frame centre. terms: how many were refined (k2 only when k1 alone fits poorly; else 0).
+   */
+  readonly distortion?: { readonly k1: number; readonly k2: number; readonly terms: 0 | 1 | 2 };
+  /** Median over the pairs of their tie points' RMS error under the refined rotations and lens, pixels. */
+  readonly typicalRmsPx?: number;
+  /** Each pair of stations that took part in the refinement, with its tie points' RMS error there, pixels. */
+  readonly linkFits?: readonly { readonly stations: readonly [number, number]; readonly rmsPx: number }[];
   readonly poses: readonly StationPoseMeasure[];
   /** Stations no chain of matched pairs reaches. */
   readonly unplaced: readonly number[];
@@ -147,7 +165,7 @@ export interface SequenceGeometry {
   readonly gaps: readonly HorizonGap[];
   /** How the matched closure pair agrees with the chain of neighbours; null when no closure pair matched. */
   readonly closure: { readonly misclosureDeg: number | null; readonly closes: boolean } | null;
-  /** Root-mean-square transfer error of the tie points under the refined rotations, pixels. */
+  /** Root-mean-square transfer error of the tie points under the refined rotations and lens, pixels. */
   readonly rmsPx: number;
   /** Rows of stations at one pitch, lowest first (one row for a single sweep). */
   readonly rows: readonly { readonly pitchDeg: number; readonly stations: readonly number[] }[];

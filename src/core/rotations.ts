@@ -8,11 +8,10 @@
  * the frame centre and one focal length f for the sequence. R_i turns world directions into station
  * i's camera frame (x right, y down, z forward); the world is station 0's camera frame.
  *
- * Rotations are first chained along a spanning tree of the matched pairs, then refined jointly
- * (Levenberg-Marquardt on the transfer error of the tie points, Huber-weighted; Szeliski 2006,
- * sec. 5.1 "bundle adjustment" for rotations and focal length).
+ * Rotations are first chained along a spanning tree of the matched pairs here, then refined jointly
+ * with the focal length and the lens's distortion in lens-bundle.ts.
  */
-import { CholeskyDecomposition, Matrix, SingularValueDecomposition } from 'ml-matrix';
+import { Matrix, SingularValueDecomposition } from 'ml-matrix';
 import type { Homography } from './homography.js';
 
 /** A 3x3 rotation matrix, row-major. */
@@ -160,8 +159,14 @@ export function focalFromHomography(h: ArrayLike<number>, a: FrameSize, b: Frame
  * stations no chain of matched pairs reaches.
  */
 export function chainRotations(stations: number, links: readonly RotationLink[], f: number, sizes: readonly FrameSize[]): (Rotation | null)[] {
+  return chainTree(stations, links, f, sizes).rotations;
+}
+
+/** chainRotations, with the links of the spanning tree it went along. */
+export function chainTree(stations: number, links: readonly RotationLink[], f: number, sizes: readonly FrameSize[]): { rotations: (Rotation | null)[]; tree: RotationLink[] } {
   const out: (Rotation | null)[] = new Array(stations).fill(null);
-  if (stations === 0) return out;
+  const tree: RotationLink[] = [];
+  if (stations === 0) return { rotations: out, tree };
   out[0] = Float64Array.of(1, 0, 0, 0, 1, 0, 0, 0, 1);
   const queue = [0];
   while (queue.length > 0) {
@@ -172,6 +177,7 @@ export function chainRotations(stations: number, links: readonly RotationLink[],
       if (!forward && !backward) continue;
       const rel = relativeRotation(l.homography, f, sizes[l.i], sizes[l.j]);
       if (!rel) continue;
+      tree.push(l);
       // R_j = R_ij R_i, and R_i = R_ij^T R_j.
       if (forward) {
         out[l.j] = mul3(rel, out[s]!);
@@ -182,164 +188,7 @@ export function chainRotations(stations: number, links: readonly RotationLink[],
       }
     }
   }
-  return out;
-}
-
-export interface RefinedRotations {
-  readonly rotations: (Rotation | null)[];
-  readonly focalPx: number;
-  /** Root-mean-square transfer error of the tie points after refinement, pixels. */
-  readonly rmsPx: number;
-  /** The same per link, in the order given. */
-  readonly linkRmsPx: number[];
-}
-
-/** Most tie points of one link that take part in the refinement. */
-const pointsPerLink = 80;
-/** Residuals beyond this (pixels) count linearly, not squared (Huber). */
-const huberPx = 2;
-
-/**
- * Refines the chained rotations (station 0 held fixed) and, unless `fixFocal`, the focal length,
- * jointly over the links' tie points by Levenberg-Marquardt.
- */
-export function refineRotations(initial: readonly (Rotation | null)[], links: readonly RotationLink[], f0: number, sizes: readonly FrameSize[], fixFocal: boolean, maxIterations = 15): RefinedRotations {
-  const n = initial.length;
-  // Parameter index of each station's rotation increment (station 0 and unreached ones: none).
-  const index = new Int32Array(n).fill(-1);
-  let params = 0;
-  for (let s = 1; s < n; s++) if (initial[s]) index[s] = 3 * params++;
-  const focalIndex = fixFocal ? -1 : 3 * params;
-  const P = 3 * params + (fixFocal ? 0 : 1);
-  const used = links.filter((l) => initial[l.i] && initial[l.j] && l.i !== l.j);
-  const samples = used.map((l) => {
-    const count = Math.floor(l.points.length / 4);
-    const stride = Math.max(1, Math.ceil(count / pointsPerLink));
-    const idx: number[] = [];
-    for (let k = 0; k < count; k += stride) idx.push(k);
-    return idx;
-  });
-
-  let rotations: (Rotation | null)[] = initial.map((r) => (r ? Float64Array.from(r) : null));
-  let logF = Math.log(f0);
-
-  // Residuals of one link at the given rotations and focal length, into out (2 per point).
-  const residuals = (li: number, ri: Rotation, rj: Rotation, lf: number, out: Float64Array): void => {
-    const l = used[li], f = Math.exp(lf);
-    const a = sizes[l.i], b = sizes[l.j];
-    const rel = mul3(rj, transpose3(ri));
-    const cxa = (a.width - 1) / 2, cya = (a.height - 1) / 2, cxb = (b.width - 1) / 2, cyb = (b.height - 1) / 2;
-    const idx = samples[li];
-    for (let k = 0; k < idx.length; k++) {
-      const p = 4 * idx[k];
-      const u = (l.points[p] - cxa) / f, v = (l.points[p + 1] - cya) / f;
-      const x = rel[0] * u + rel[1] * v + rel[2], y = rel[3] * u + rel[4] * v + rel[5], z = rel[6] * u + rel[7] * v + rel[8];
-      if (z <= 1e-9) {
-        out[2 * k] = 1e3;
-        out[2 * k + 1] = 1e3;
-        continue;
-      }
-      out[2 * k] = (f * x) / z + cxb - l.points[p + 2];
-      out[2 * k + 1] = (f * y) / z + cyb - l.points[p + 3];
-    }
-  };
-  const huber = (r: number): number => (Math.abs(r) <= huberPx ? 1 : huberPx / Math.abs(r));
-  const totalCost = (rots: (Rotation | null)[], lf: number): number => {
-    let c = 0;
-    used.forEach((l, li) => {
-      const out = new Float64Array(2 * samples[li].length);
-      residuals(li, rots[l.i]!, rots[l.j]!, lf, out);
-      for (const r of out) c += Math.abs(r) <= huberPx ? r * r : 2 * huberPx * Math.abs(r) - huberPx * huberPx;
-    });
-    return c;
-  };
-
-  let cost = totalCost(rotations, logF);
-  let lambda = 1e-3;
-  const eps = 1e-6;
-  for (let it = 0; it < maxIterations && P > 0 && used.length > 0; it++) {
-    const jtj = new Float64Array(P * P);
-    const jtr = new Float64Array(P);
-    used.forEach((l, li) => {
-      const m = 2 * samples[li].length;
-      const base = new Float64Array(m);
-      const ri = rotations[l.i]!, rj = rotations[l.j]!;
-      residuals(li, ri, rj, logF, base);
-      // Numerical derivatives for the (at most seven) parameters this link depends on.
-      const cols: { p: number; d: Float64Array }[] = [];
-      const probe = new Float64Array(m);
-      for (const [s, which] of [[l.i, 'i'], [l.j, 'j']] as const) {
-        if (index[s] < 0) continue;
-        for (let axis = 0; axis < 3; axis++) {
-          const w = [0, 0, 0];
-          w[axis] = eps;
-          const moved = mul3(rotationOfVector(w[0], w[1], w[2]), rotations[s]!);
-          residuals(li, which === 'i' ? moved : ri, which === 'j' ? moved : rj, logF, probe);
-          const d = new Float64Array(m);
-          for (let k = 0; k < m; k++) d[k] = (probe[k] - base[k]) / eps;
-          cols.push({ p: index[s] + axis, d });
-        }
-      }
-      if (focalIndex >= 0) {
-        residuals(li, ri, rj, logF + eps, probe);
-        const d = new Float64Array(m);
-        for (let k = 0; k < m; k++) d[k] = (probe[k] - base[k]) / eps;
-        cols.push({ p: focalIndex, d });
-      }
-      const wts = Float64Array.from(base, huber);
-      for (let x = 0; x < cols.length; x++) {
-        const cx = cols[x];
-        let g = 0;
-        for (let k = 0; k < m; k++) g += wts[k] * cx.d[k] * base[k];
-        jtr[cx.p] += g;
-        for (let y = x; y < cols.length; y++) {
-          const cy = cols[y];
-          let s = 0;
-          for (let k = 0; k < m; k++) s += wts[k] * cx.d[k] * cy.d[k];
-          jtj[cx.p * P + cy.p] += s;
-          if (cy.p !== cx.p) jtj[cy.p * P + cx.p] += s;
-        }
-      }
-    });
-    let improved = false;
-    for (let attempt = 0; attempt < 8 && !improved; attempt++) {
-      const a = new Matrix(P, P);
-      for (let r = 0; r < P; r++) for (let c = 0; c < P; c++) a.set(r, c, jtj[r * P + c] + (r === c ? lambda * (jtj[r * P + r] + 1e-9) : 0));
-      const chol = new CholeskyDecomposition(a);
-      if (!chol.isPositiveDefinite()) {
-        lambda *= 10;
-        continue;
-      }
-      const delta = chol.solve(Matrix.columnVector(Array.from(jtr, (v) => -v))).to1DArray();
-      const next = rotations.map((r, s) => (r && index[s] >= 0 ? mul3(rotationOfVector(delta[index[s]], delta[index[s] + 1], delta[index[s] + 2]), r) : r));
-      const nextF = focalIndex >= 0 ? logF + delta[focalIndex] : logF;
-      const c = totalCost(next, nextF);
-      if (c < cost) {
-        const gain = (cost - c) / Math.max(cost, 1e-12);
-        rotations = next.map((r) => (r ? nearestRotation(r) : null));
-        logF = nextF;
-        cost = c;
-        lambda = Math.max(1e-9, lambda / 10);
-        improved = true;
-        if (gain < 1e-7) it = maxIterations;
-      } else lambda *= 10;
-    }
-    if (!improved) break;
-  }
-
-  const linkRmsPx = used.map((l, li) => {
-    const out = new Float64Array(2 * samples[li].length);
-    residuals(li, rotations[l.i]!, rotations[l.j]!, logF, out);
-    return out.length ? Math.sqrt(out.reduce((s, r) => s + r * r, 0) / (out.length / 2)) : 0;
-  });
-  const all = used.reduce((s, _, li) => s + samples[li].length, 0);
-  const rmsPx = all ? Math.sqrt(linkRmsPx.reduce((s, r, li) => s + r * r * samples[li].length, 0) / all) : 0;
-  // Report per link in the caller's order (links not used: NaN).
-  const byLink = links.map((l) => {
-    const k = used.indexOf(l);
-    return k >= 0 ? linkRmsPx[k] : NaN;
-  });
-  return { rotations, focalPx: Math.exp(logF), rmsPx, linkRmsPx: byLink };
+  return { rotations: out, tree };
 }
 
 /** Where each station points, in degrees, against the sequence's own level. */

@@ -1,11 +1,16 @@
 /**
- * The geometry of a whole sequence shot from one place: each station's rotation and the focal
- * length (rotations.ts), then what the frames cover (coverage.ts) and whether a full turn closes.
+ * The geometry of a whole sequence shot from one place: each station's rotation, the focal length
+ * and the lens's radial distortion (rotations.ts, lens-bundle.ts), then what the frames cover
+ * (coverage.ts) and whether a full turn closes, judged under the refined lens.
  */
-import { circleCoverage, fieldOfViewDeg, intervalCoverageDeg } from './coverage.js';
+import { circleCoverage, intervalCoverageDeg } from './coverage.js';
+import type { RadialDistortion } from './lens.js';
+import { tiePointUnitPx, undistortRadius } from './lens.js';
+import type { BundleResult } from './lens-bundle.js';
+import { bundleAdjust, linkRotation } from './lens-bundle.js';
 import type { SequenceGeometry } from './report.js';
 import type { FrameSize, Rotation, RotationLink } from './rotations.js';
-import { chainRotations, focalFromHomography, mul3, refineRotations, relativeRotation, rotationAngleOf, stationPoses, transpose3 } from './rotations.js';
+import { chainTree, focalFromHomography, mul3, rotationAngleOf, stationPoses, transpose3 } from './rotations.js';
 import { median } from './median.js';
 
 export interface GeometryInput {
@@ -13,6 +18,8 @@ export interface GeometryInput {
   readonly sizes: readonly FrameSize[];
   /** Focal length in full-resolution pixels from EXIF, or null when the files do not say. */
   readonly exifFocalPx: number | null;
+  /** The EXIF 35 mm equivalent it came from, mm, to report beside the refined value. */
+  readonly exifFocal35mm?: number | null;
   /** Matched pairs between stations (neighbours, and any others), not the closure pair. */
   readonly links: readonly RotationLink[];
   /** The closure pair (last station to first), when it was matched. */
@@ -23,8 +30,66 @@ export interface GeometryInput {
 export const maxMisclosureDeg = 2;
 
 
-/** Rotations, coverage and closure of a sequence; null when no focal length can be had or fewer than one link. */
-export function sequenceGeometry(input: GeometryInput): SequenceGeometry | null {
+/**
+ * How far the EXIF focal length may be off, relative (a soft prior, not a constant): the 35 mm
+ * equivalent is written rounded to the millimetre, and a crop factor or focus breathing moves it by
+ * a few per cent more (common practice).
+ */
+export const exifFocalRelativeSd = 0.05;
+
+/** k2 is tried only when k1 alone leaves tie points this far off (pixels, typical pair), and kept when it helps. */
+function poorK1FitPx(longSidePx: number): number {
+  return 0.5 * tiePointUnitPx(longSidePx);
+}
+
+/** Field of view across a side of `sidePx` pixels at focal length `focalPx` through the lens, degrees. */
+export function lensFieldOfViewDeg(sidePx: number, focalPx: number, d: RadialDistortion): number {
+  const r = undistortRadius(sidePx / (2 * focalPx), d.k1, d.k2);
+  return (2 * Math.atan(Number.isFinite(r) ? r : sidePx / (2 * focalPx)) * 180) / Math.PI;
+}
+
+/**
+ * Levenberg-Marquardt rounds: a chain through a strongly distorting lens starts several degrees off
+ * at its far end and needs a few dozen to settle (measured: about 40 at k1 = -0.15).
+ */
+const bundleIterations = 100;
+
+const typicalRms = (fit: BundleResult): number => {
+  const finite = fit.linkRmsPx.filter((r) => Number.isFinite(r));
+  return finite.length ? median(finite) : 0;
+};
+
+/**
+ * Rotations, focal length and k1 (and k2, when k1 alone leaves a poor fit) over the links: the
+ * bundle adjustment with the EXIF focal length as a prior.
+ */
+function fitLens(initial: readonly (Rotation | null)[], links: readonly RotationLink[], f0: number, input: GeometryInput, longSide: number, k1 = 0): { fit: BundleResult; terms: 1 | 2 } {
+  const focalPrior = input.exifFocalPx !== null ? { focalPx: input.exifFocalPx, relativeSd: exifFocalRelativeSd } : null;
+  const one = bundleAdjust(initial, links, f0, input.sizes, { refineFocal: true, focalPrior, distortionTerms: 1, distortion: { k1, k2: 0 }, maxIterations: bundleIterations });
+  if (typicalRms(one) <= poorK1FitPx(longSide)) return { fit: one, terms: 1 };
+  const two = bundleAdjust(one.rotations, links, one.focalPx, input.sizes, { refineFocal: true, focalPrior, distortionTerms: 2, distortion: one.distortion, maxIterations: bundleIterations });
+  // Kept only when it does markedly better (a tenth less error on the typical pair).
+  return typicalRms(two) < 0.9 * typicalRms(one) ? { fit: two, terms: 2 } : { fit: one, terms: 1 };
+}
+
+/** The refined model of a sequence: rotations, lens and how the closure pair agrees with the chain. */
+export interface SequenceSolution {
+  readonly fit: BundleResult;
+  readonly terms: 1 | 2;
+  /** The links that took part (the closure pair's only when the turn closes). */
+  readonly links: readonly RotationLink[];
+  readonly misclosureDeg: number | null;
+  readonly closes: boolean;
+}
+
+/**
+ * Chains the rotations from a starting focal length (EXIF, else the homographies'), refines them
+ * with the lens over the links' tie points, then judges the closure pair: the lens refined with it,
+ * the chain of links refined again under that lens without it, and the two compared. The result is
+ * the fit with the closure pair when the turn closes, else the fit without it. Null when no focal
+ * length can be had.
+ */
+export function solveSequence(input: GeometryInput): SequenceSolution | null {
   const n = input.sizes.length;
   if (n === 0) return null;
   let focal = input.exifFocalPx;
@@ -33,24 +98,53 @@ export function sequenceGeometry(input: GeometryInput): SequenceGeometry | null 
     if (found.length === 0) return null;
     focal = median(found);
   }
-  const chained = chainRotations(n, input.links, focal, input.sizes);
-
-  // How far the chain misses itself against the closure pair, before the closure takes part.
-  let misclosureDeg: number | null = null;
+  const longSide = Math.max(...input.sizes.map((s) => Math.max(s.width, s.height)));
+  const { rotations: chained, tree } = chainTree(n, input.links, focal, input.sizes);
+  // A pinhole chain through a distorting lens can miss itself by tens of degrees round a loop (a
+  // full turn, two rows tied together): the lens is first fitted along the spanning tree alone,
+  // which has no loop to miss, and the loops join from there. The closure pair stays out of both.
+  let first = fitLens(chained, tree, focal, input, longSide);
+  if (tree.length < input.links.length) first = fitLens(first.fit.rotations, input.links, first.fit.focalPx, input, longSide, first.fit.distortion.k1);
   const c = input.closure ?? null;
-  if (c && chained[c.i] && chained[c.j]) {
-    const measured = relativeRotation(c.homography, focal, input.sizes[c.i], input.sizes[c.j]);
-    if (measured) misclosureDeg = rotationAngleOf(mul3(measured, transpose3(mul3(chained[c.j]!, transpose3(chained[c.i]!)))));
-  }
-  const closes = misclosureDeg !== null && misclosureDeg <= maxMisclosureDeg;
-  const links = closes ? [...input.links, c!] : input.links;
-  const refined = refineRotations(chained, links, focal, input.sizes, input.exifFocalPx !== null);
-  const rotations: (Rotation | null)[] = refined.rotations;
+  if (!c || !first.fit.rotations[c.i] || !first.fit.rotations[c.j]) return { fit: first.fit, terms: first.terms, links: input.links, misclosureDeg: null, closes: false };
+  // Along an open chain the focal length and the distortion trade against each other, and a focal
+  // length a few tenths of a per cent off turns every step a little: over a full turn, a degree or
+  // so. The closure pair is what pins them down. So the lens is refined with it taking part, and
+  // the chain of neighbours is then refined again under that lens, without it, and compared with
+  // what the closure pair's own tie points show. But a wrong closure pair would also be absorbed
+  // that way, into a focal length the neighbours do not support (a relative change of the focal
+  // length turns a full turn by about that share of 360 degrees): that shift counts as misclosure.
+  const focalPrior = input.exifFocalPx !== null ? { focalPx: input.exifFocalPx, relativeSd: exifFocalRelativeSd } : null;
+  const all = [...input.links, c];
+  const closed = bundleAdjust(first.fit.rotations, all, first.fit.focalPx, input.sizes, { refineFocal: true, focalPrior, distortionTerms: first.terms, distortion: first.fit.distortion, maxIterations: bundleIterations });
+  const chainMiss = (lens: BundleResult): number | null => {
+    const chain = bundleAdjust(lens.rotations, input.links, lens.focalPx, input.sizes, { refineFocal: false, distortionTerms: 0, distortion: lens.distortion, maxIterations: bundleIterations });
+    const measured = linkRotation(c, input.sizes, lens.focalPx, lens.distortion);
+    if (!measured || !chain.rotations[c.i] || !chain.rotations[c.j]) return null;
+    return rotationAngleOf(mul3(measured, transpose3(mul3(chain.rotations[c.j]!, transpose3(chain.rotations[c.i]!)))));
+  };
+  const underClosed = chainMiss(closed);
+  const absorbedDeg = 360 * Math.abs(Math.log(closed.focalPx / first.fit.focalPx));
+  const closes = underClosed !== null && underClosed <= maxMisclosureDeg && absorbedDeg <= maxMisclosureDeg;
+  // Not closing: how far the chain misses under the neighbours' own lens, the closure left out.
+  const misclosureDeg = closes ? underClosed : underClosed === null ? null : Math.max(underClosed, chainMiss(first.fit) ?? underClosed);
+  return closes ? { fit: closed, terms: first.terms, links: all, misclosureDeg, closes } : { fit: first.fit, terms: first.terms, links: input.links, misclosureDeg, closes };
+}
+
+/** Rotations, coverage and closure of a sequence; null when no focal length can be had or fewer than one link. */
+export function sequenceGeometry(input: GeometryInput): SequenceGeometry | null {
+  const solved = solveSequence(input);
+  if (!solved) return null;
+  const { fit, terms, links, misclosureDeg, closes } = solved;
+  const c = input.closure ?? null;
+  const longSide = Math.max(...input.sizes.map((s) => Math.max(s.width, s.height)));
+  const rotations: (Rotation | null)[] = fit.rotations;
   const poses = stationPoses(rotations);
+  const lens = fit.distortion;
 
   const placed = poses.map((p, s) => ({ p, s })).filter((x) => x.p !== null);
-  const hfov = placed.map(({ s }) => fieldOfViewDeg(input.sizes[s].width, refined.focalPx));
-  const vfov = placed.map(({ s }) => fieldOfViewDeg(input.sizes[s].height, refined.focalPx));
+  const hfov = placed.map(({ s }) => lensFieldOfViewDeg(input.sizes[s].width, fit.focalPx, lens));
+  const vfov = placed.map(({ s }) => lensFieldOfViewDeg(input.sizes[s].height, fit.focalPx, lens));
   const horizon = circleCoverage(placed.map(({ p }) => p!.yawDeg), hfov);
   // Rows: stations whose pitches lie within a quarter of a frame's height (at least 5 degrees) of the next.
   const byPitch = placed.map(({ p, s }, k) => ({ s, pitch: p!.pitchDeg, v: vfov[k] })).sort((a, b) => a.pitch - b.pitch);
@@ -65,16 +159,23 @@ export function sequenceGeometry(input: GeometryInput): SequenceGeometry | null 
     current.push(x);
   }
   close();
+  const linkFits = links.map((l, k) => ({ stations: [l.i, l.j] as [number, number], rmsPx: fit.linkRmsPx[k] })).filter((x) => Number.isFinite(x.rmsPx));
   return {
-    focalPx: refined.focalPx,
+    focalPx: fit.focalPx,
     focalFrom: input.exifFocalPx !== null ? 'exif' : 'homographies',
+    exifFocalPx: input.exifFocalPx,
+    exifFocal35mm: input.exifFocal35mm ?? null,
+    focal35mm: (36 * fit.focalPx) / longSide,
+    distortion: { k1: lens.k1, k2: terms === 2 ? lens.k2 : 0, terms },
+    typicalRmsPx: typicalRms(fit),
+    linkFits,
     poses: placed.map(({ p, s }) => ({ station: s, yawDeg: p!.yawDeg, pitchDeg: p!.pitchDeg, rollDeg: p!.rollDeg })),
     unplaced: poses.map((p, s) => (p ? -1 : s)).filter((s) => s >= 0),
     horizontalDeg: horizon.coveredDeg,
     verticalDeg: intervalCoverageDeg(placed.map(({ p }) => p!.pitchDeg), vfov),
     gaps: horizon.gaps.map((g) => ({ fromYawDeg: g.fromDeg, toYawDeg: g.toDeg })),
     closure: c === null ? null : { misclosureDeg, closes },
-    rmsPx: refined.rmsPx,
+    rmsPx: fit.rmsPx,
     rows,
   };
 }

@@ -1,5 +1,6 @@
 import type { Analysis, CoverageHole, FlagCode, SkippedFile, Finding, FolderProblem, FrameSettings, MatchBudget, PairMeasure, Report, ReportFrame, ReportPair, ReportStation, SequenceGeometry, StationMeasure, Verdict } from './report.js';
 import { coverageFindings } from './coverage-map.js';
+import { lensMisfitLimitPx } from './lens.js';
 import { reportSchema } from './report.js';
 import { modalPattern, patternOf } from './stations.js';
 import { median } from './median.js';
@@ -45,6 +46,29 @@ function whereIn(m: { x: number; y: number; width: number; height: number }, siz
   const row = Math.min(2, Math.floor((3 * (m.y + m.height / 2)) / size.height));
   const v = ['upper', 'middle', 'lower'][row], h = ['left', 'centre', 'right'][col];
   return row === 1 && col === 1 ? 'in the middle' : row === 1 ? `at the ${h}` : col === 1 ? `in the ${v} middle` : `in the ${v} ${h}`;
+}
+
+/**
+ * Pairs whose tie points do not fit the sequence's refined rotations, focal length and distortion,
+ * when that is true of the typical pair (a single pair off is its own matter: parallax, movement or
+ * a wrong match), with one piece of advice for them all; null when the fit is good.
+ */
+function lensMisfit(analysis: Analysis, stationOf: Map<string, StationMeasure>): { pairs: Map<string, number>; advice: string } | null {
+  const g = analysis.geometry;
+  if (!g || g.typicalRmsPx === undefined || !g.linkFits || analysis.frames.length === 0) return null;
+  const longSide = Math.max(...analysis.frames.map((f) => Math.max(f.width, f.height)));
+  const limit = lensMisfitLimitPx(longSide);
+  if (!(g.typicalRmsPx > limit)) return null;
+  const reference = new Map(analysis.stations.map((s) => [s.index, s.reference]));
+  const pairs = new Map<string, number>();
+  for (const l of g.linkFits) {
+    const a = reference.get(l.stations[0]), b = reference.get(l.stations[1]);
+    if (a !== undefined && b !== undefined && stationOf.has(a) && l.rmsPx > limit) pairs.set(`${a}:${b}`, l.rmsPx);
+  }
+  const exif = g.exifFocal35mm ? ` against ${Number(g.exifFocal35mm.toFixed(1))} mm in EXIF` : '';
+  const focal = g.focal35mm !== undefined ? `focal length ${Number(g.focal35mm.toFixed(1))} mm (35 mm equivalent)${exif}` : 'focal length';
+  const advice = `the frames do not fit one lens turning about one point: with the ${focal} and the lens distortion refined, matching points still miss by ${g.typicalRmsPx.toFixed(1)} px on a typical pair (a good fit stays under ${limit.toFixed(1)} px); the zoom or focus may have changed, the lens may be a fisheye, or the camera moved between frames: lock zoom and focus, turn about the lens and reshoot`;
+  return { pairs, advice };
 }
 
 /** Judges a pair between stations (neighbour or closure) against the budget. */
@@ -192,6 +216,7 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
   // Pairs.
   const sizes = new Map(analysis.frames.map((f) => [f.file, { width: f.width, height: f.height }]));
   const frameSize = (file: string): { width: number; height: number } | null => sizes.get(file) ?? null;
+  const misfit = lensMisfit(analysis, stationOf);
   const pairs: ReportPair[] = analysis.pairs.map((p) => {
     if ((p.kind === 'neighbour' || p.kind === 'closure') && p.homography === null) {
       // One cause, one flag: the pair failed because nothing lies between its frames; its card
@@ -203,7 +228,13 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
         return { ...p, ...f.done() };
       }
     }
-    if (p.kind === 'neighbour' || p.kind === 'closure') return { ...p, ...judgeStationPair(p, budget, analysis.sweepDeg, analysis.geometry, frameSize) };
+    if (p.kind === 'neighbour' || p.kind === 'closure') {
+      const found = judgeStationPair(p, budget, analysis.sweepDeg, analysis.geometry, frameSize);
+      const miss = misfit?.pairs.get(`${p.a}:${p.b}`) ?? misfit?.pairs.get(`${p.b}:${p.a}`);
+      // A pair whose own parallax or movement explains its misfit keeps that flag alone.
+      if (miss === undefined || found.reasons.includes('parallax') || found.reasons.includes('movement')) return { ...p, ...found };
+      return { ...p, verdict: worst(found.verdict, 'weak'), reasons: [...found.reasons, 'lens-misfit'], advice: [...found.advice, misfit!.advice] };
+    }
     if (p.kind === 'bracket') {
       const f = new Findings();
       if (p.homography === null) {

@@ -12,8 +12,8 @@ import { groupStations } from '../core/stations.js';
 import type { RotationLink } from '../core/rotations.js';
 import { relativeRotation, rotationAngleOf } from '../core/rotations.js';
 import { bracketShift } from '../core/bracket-shift.js';
-import { circleCoverage, fieldOfViewDeg } from '../core/coverage.js';
-import { sequenceGeometry } from '../core/sequence-geometry.js';
+import { circleCoverage } from '../core/coverage.js';
+import { lensFieldOfViewDeg, sequenceGeometry } from '../core/sequence-geometry.js';
 import { focalPxFrom35mm } from '../core/sweep.js';
 import type { AnalysisPool } from './analysis-pool.js';
 import { createAnalysisPool } from './analysis-pool.js';
@@ -556,7 +556,7 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
         const r = m && relativeRotation(m.h, chain.focalPx, sizes[stationOf[p.i]], sizes[stationOf[p.j]]);
         return r ? [rotationAngleOf(r)] : [];
       });
-      const turned = turns.reduce((t, x) => t + x, 0) + failed.length * (turns.length ? median(turns) : 0) + fieldOfViewDeg(sizes[0].width, chain.focalPx);
+      const turned = turns.reduce((t, x) => t + x, 0) + failed.length * (turns.length ? median(turns) : 0) + lensFieldOfViewDeg(sizes[0].width, chain.focalPx, chain.distortion ?? { k1: 0, k2: 0 });
       const closure = { i: stations[stations.length - 1].reference, j: stations[0].reference };
       if (turned >= nearFullTurnDeg && !pairResults.has(`${closure.i}:${closure.j}`)) {
         pairResults.set(`${closure.i}:${closure.j}`, await pool.analysePair(await transientData(closure.i), await transientData(closure.j), undefined, signal));
@@ -594,7 +594,7 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
         const a = rowOf[stationOf[p.i]], b = rowOf[stationOf[p.j]];
         if ((p.kind === 'neighbour' || p.kind === 'closure') && a !== b) p.kind = 'other';
       }
-      const hfov = (s: number): number => fieldOfViewDeg(frames[stations[s].reference]!.summary.fullWidth, g.focalPx);
+      const hfov = (s: number): number => lensFieldOfViewDeg(frames[stations[s].reference]!.summary.fullWidth, g.focalPx, g.distortion ?? { k1: 0, k2: 0 });
       const yawOf = new Map(g.poses.map((p) => [p.station, p.yawDeg]));
       for (const r of g.rows) {
         if (r.stations.length < 3) continue;
@@ -642,8 +642,9 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
       const sizes = stations.map((st) => ({ width: frames[st.reference]!.summary.fullWidth, height: frames[st.reference]!.summary.fullHeight }));
       // One focal length for the set: the EXIF 35 mm equivalents, where every station has one.
       const f35 = stations.map((st) => frames[st.reference]!.exif.settings.focalLength35);
-      const exifFocalPx = f35.every((f) => f) ? focalPxFrom35mm(median(f35 as number[]), sizes[0].width, sizes[0].height) : null;
-      return sequenceGeometry({ sizes, exifFocalPx, links, closure: closure ? link(closure) : null });
+      const exifFocal35mm = f35.every((f) => f) ? median(f35 as number[]) : null;
+      const exifFocalPx = exifFocal35mm !== null ? focalPxFrom35mm(exifFocal35mm, sizes[0].width, sizes[0].height) : null;
+      return sequenceGeometry({ sizes, exifFocalPx, exifFocal35mm, links, closure: closure ? link(closure) : null });
     }
 
     /** The measurements so far: frames of finalised stations, the stations, the pairs measured yet. */

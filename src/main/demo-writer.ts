@@ -45,7 +45,9 @@ export function demoExif(frame: PlannedFrame, camera: DemoCamera): { IFD0: Recor
   const [date, time] = frame.captureTime.split('T');
   const dateTime = `${date.replaceAll('-', ':')} ${time.slice(0, 8)}`;
   const subSec = time.slice(9, 12);
-  const f35 = focalLength35mm({ ...camera, focalLengthMm: frame.focalLengthMm });
+  // What the camera claims: the true focal length unless the shoot overrides it.
+  const claimedMm = camera.exifFocalLengthMm ?? frame.focalLengthMm;
+  const f35 = focalLength35mm({ ...camera, focalLengthMm: claimedMm });
   return {
     IFD0: { Make: camera.make, Model: camera.model, Software: 'Seamscout demo shoot', DateTime: dateTime },
     IFD2: {
@@ -53,7 +55,7 @@ export function demoExif(frame: PlannedFrame, camera: DemoCamera): { IFD0: Recor
       FNumber: exifRational(frame.fNumber),
       ISOSpeedRatings: String(frame.iso),
       ExposureBiasValue: exifRational(frame.evBias),
-      FocalLength: exifRational(frame.focalLengthMm),
+      FocalLength: exifRational(claimedMm),
       FocalLengthIn35mmFilm: String(Math.round(f35)),
       // Manual white balance, locked for the sweep (common practice; CIPA DC-008: 1 = manual).
       WhiteBalance: '1',

@@ -60,6 +60,7 @@ export const flagMeaning: Record<FlagCode, string> = {
   movement: 'something in the overlap moved between the two shots',
   parallax: 'near and far things do not line up together: the camera moved, not only turned',
   'size-mismatch': 'the frame has another size than the rest of the sequence',
+  'lens-misfit': 'the frames do not fit one lens model: the focal length changed, or the lens is a fisheye',
 };
 
 export const verdictWords: Record<Verdict, string> = { ok: 'ok', weak: 'weak', reshoot: 'reshoot' };
