@@ -503,6 +503,9 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
           moved: r.moved?.map((m) => ({ x: m.x * scale, y: m.y * scale, width: m.width * scale, height: m.height * scale })) ?? null,
           misfit: r.misfit,
           parallax: r.parallax,
+          sharpnessRatio: r.sharpness?.ratio ?? null,
+          sharpnessByDirection: r.sharpness ? { horizontal: r.sharpness.byDirection[0], vertical: r.sharpness.byDirection[2], fallingDiagonal: r.sharpness.byDirection[1], risingDiagonal: r.sharpness.byDirection[3] } : null,
+          sharpnessBlocks: r.sharpness?.blocks ?? null,
         };
       });
       const inStations = stations.flatMap((s) => s.members).sort((p, q) => p - q);
