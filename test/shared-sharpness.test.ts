@@ -63,7 +63,7 @@ function pairOf(photo: GrayImage, degrade?: (img: GrayImage) => GrayImage, d = 4
 }
 
 describe('sharpness on shared content', () => {
-  it('is exactly 1 in every direction where the frames hold the same pixels, and within 3 % when their 4 x 4 cells fall differently', () => {
+  it('is exactly 1 in every direction where the frames hold the same pixels, and within 5 % when their 4 x 4 cells fall differently', () => {
     for (const name of ['leuvenA.jpg', 'graf1.png']) {
       const { a, b, h } = pairOf(photos.get(name)!);
       const s = sharedSharpness(a, b, h)!;
@@ -72,7 +72,7 @@ describe('sharpness on shared content', () => {
       expect(s.ratio).toBeCloseTo(1, 10);
       for (const d of [261, 262, 263]) {
         const p = pairOf(photos.get(name)!, undefined, d);
-        for (const v of sharedSharpness(p.a, p.b, p.h)!.byDirection) expect(Math.abs(v - 1), `${name}, shifted ${d} px`).toBeLessThan(0.03);
+        for (const v of sharedSharpness(p.a, p.b, p.h)!.byDirection) expect(Math.abs(v - 1), `${name}, shifted ${d} px`).toBeLessThan(0.05);
       }
     }
   });

@@ -141,7 +141,7 @@ describe('blur judged on the content frames share', () => {
     const flagged = r.frames.filter((f) => f.flags.includes('blurred'));
     expect(flagged.map((f) => f.file)).toEqual(['3']);
     expect(flagged[0].verdict).toBe('reshoot');
-    expect(flagged[0].advice[0]).toMatch(/^3 is blurred along the horizontal: against 2 and 4 on the content both see it is 35 % as sharp; camera shake or panning/);
+    expect(flagged[0].advice[0]).toMatch(/^3 is blurred along the horizontal: on the content it shares with 2 and 4 it is 35 % as sharp; camera shake or panning/);
   });
 
   it('says no direction for blur that takes every direction alike', () => {
@@ -195,13 +195,13 @@ describe('blur judged on the content frames share', () => {
     // 2b shaken against its sharp reference: flagged, and only it (its low whole-frame value plays no part).
     const shaken = judge(analysis(sharp(0.25, 0.8, 0.4, 0.4), even, even), defaultBudget);
     expect(shaken.frames.filter((f) => f.flags.includes('blurred')).map((f) => f.file)).toEqual(['2b']);
-    expect(shaken.frames.find((f) => f.file === '2b')!.advice.find((a) => a.includes('blurred'))).toMatch(/^2b is blurred along the horizontal: against 2a/);
+    expect(shaken.frames.find((f) => f.file === '2b')!.advice.find((a) => a.includes('blurred'))).toMatch(/^2b is blurred along the horizontal: on the content it shares with 2a it is 25 % as sharp/);
     // The reference shaken, its bracket frames sharp (they read sharper than it): only 2a.
     expect(blurredFiles(analysis(sharp(2.5), sharp(2.4), sharp(0.4)))).toEqual(['2a']);
     // The whole station shaken: 2b and 2c as soft as their blurred reference are blurred too.
     const station = judge(analysis(even, even, sharp(0.4)), defaultBudget);
     expect(station.frames.filter((f) => f.flags.includes('blurred')).map((f) => f.file)).toEqual(['2a', '2b', '2c']);
-    expect(station.frames.find((f) => f.file === '2c')!.advice.find((a) => a.includes('blurred'))).toMatch(/like its reference 2a, against 1a and 3a/);
+    expect(station.frames.find((f) => f.file === '2c')!.advice.find((a) => a.includes('blurred'))).toMatch(/like its reference 2a, it is 39 % as sharp as 1a and 3a on the content they share/);
   });
 
   it('says nothing where the shared content is too flat to tell, and could not compare only where nothing registered', () => {

@@ -136,10 +136,10 @@ export function blurredFrames(analysis: Analysis, minSharpnessRatio: number): Bl
     const order = [0, 1, 2, 3].sort((p, q) => mean[p] - mean[q]);
     const direction = mean[order[1]] - mean[order[0]] >= Math.log(directionalSpread) ? sharpnessDirections[order[0]] : null;
     const witnesses = joinNames([...new Set(outcomes.map((o) => o.witness!))]);
-    const against = like ? `like its reference ${like}, against ${witnesses}` : `against ${witnesses}`;
+    const much = like ? `like its reference ${like}, it is ${pct(ratio)} as sharp as ${witnesses} on the content they share` : `on the content it shares with ${witnesses} it is ${pct(ratio)} as sharp`;
     const how = direction
-      ? `${file} is blurred ${directionWords[direction]}: ${against} on the content both see it is ${pct(ratio)} as sharp; camera shake or panning during the exposure: reshoot it with a faster shutter or steadier support`
-      : `${file} is blurred: ${against} on the content both see it is ${pct(ratio)} as sharp, in every direction alike (focus missed, or shake): check focus and reshoot it with a faster shutter or steadier support`;
+      ? `${file} is blurred ${directionWords[direction]}: ${much}; camera shake or panning during the exposure: reshoot it with a faster shutter or steadier support`
+      : `${file} is blurred: ${much}, in every direction alike (focus missed, or shake): check focus and reshoot it with a faster shutter or steadier support`;
     return { file, verdict: 'reshoot', advice: how, ratio, direction, compared: true };
   };
 

@@ -24,6 +24,15 @@ export interface SharedSharpnessParams {
   readonly minBlocks: number;
 }
 
+/**
+ * Soft content (clouds, haze, water) has no fine detail to lose: it reads alike in a sharp and a
+ * blurred frame and carries no evidence. A block counts when the richer of its two frames holds this
+ * many times the fine energy of the softest tenth of blocks, where that energy is mostly noise. Our
+ * own value, set on the pan of test/blur-sequence.test.ts: blocks of cloud there (sensor noise of
+ * 1.5 levels, JPEG q88) held fine energies of 6 to 35 per pixel, blocks of the photograph 24 to 250.
+ */
+const detailOverFloor = 4;
+
 export const defaultSharedSharpnessParams: SharedSharpnessParams = { blockCells: 8, minTexture: 9, maxScale: 1.25, minBlocks: 12 };
 
 export interface SharedSharpness {
@@ -34,7 +43,7 @@ export interface SharedSharpness {
   readonly byDirection: readonly [number, number, number, number];
   /** Geometric mean of the four: b's sharpness over a's overall. */
   readonly ratio: number;
-  /** Textured blocks compared. */
+  /** Blocks compared: textured in both frames, with fine detail in one (the fewest of the four directions). */
   readonly blocks: number;
 }
 
@@ -121,8 +130,8 @@ function windowEnergies(img: GrayImage, c: Coarse, cx0: number, cy0: number, cx1
 }
 
 /**
- * log(fine / coarse) per direction of one window into out[0..3] (each energy per sample), or false
- * when the window is too clipped or too flat to say anything.
+ * log(fine / coarse) per direction of one window into out[0..3] and the fine energy per sample into
+ * out[4..7], or false when the window is too clipped or too flat to say anything.
  */
 function bandRatios(e: Float64Array, cells: number, minTexture: number, out: Float64Array): boolean {
   const nf = e[8], nc = e[9];
@@ -132,6 +141,7 @@ function bandRatios(e: Float64Array, cells: number, minTexture: number, out: Flo
   for (let k = 0; k < 4; k++) {
     if (!(e[k] > 0 && e[4 + k] > 0)) return false;
     out[k] = Math.log(e[k] / nf) - Math.log(e[4 + k] / nc);
+    out[4 + k] = e[k] / nf;
   }
   return true;
 }
@@ -143,9 +153,11 @@ function bandRatios(e: Float64Array, cells: number, minTexture: number, out: Flo
  * apart) to coarse (two 4 x 4 cells apart) gradient energy is taken per direction, as in
  * `sharpness`. Nothing is resampled, so neither frame is softened by interpolation, and the fine
  * over coarse band ratio cancels contrast and brightness. Only blocks textured in both frames,
- * mostly unclipped and at a local scale within `maxScale` count; the median over blocks of b's
- * log ratio minus a's, per direction, resists a few blocks where something moved.
- * Null when fewer than `minBlocks` blocks qualify.
+ * mostly unclipped and at a local scale within `maxScale` count. Per direction, b's log ratio minus
+ * a's is taken at the median over the blocks with fine detail in at least one frame (see
+ * `detailOverFloor`), so clouds and water do not outvote the detail that does tell; a median resists
+ * a few blocks where something moved.
+ * Null when fewer than `minBlocks` textured blocks are found.
  */
 export function sharedSharpness(a: GrayImage, b: GrayImage, h: ArrayLike<number>, params: Partial<SharedSharpnessParams> = {}): SharedSharpness | null {
   expectImage(a, 'a');
@@ -156,8 +168,9 @@ export function sharedSharpness(a: GrayImage, b: GrayImage, h: ArrayLike<number>
   const ca = coarseOf(a), cb = coarseOf(b);
   const K = p.blockCells;
   const ea = new Float64Array(10), eb = new Float64Array(10);
-  const la = new Float64Array(4), lb = new Float64Array(4);
+  const la = new Float64Array(8), lb = new Float64Array(8);
   const diffs: number[][] = [[], [], [], []];
+  const detail: number[][] = [[], [], [], []];
   for (let by = 1; by + K < ca.height; by += K) {
     for (let bx = 1; bx + K < ca.width; bx += K) {
       // The block's middle, in a's pixels (cell x spans pixels 4x .. 4x + 3).
@@ -180,12 +193,26 @@ export function sharedSharpness(a: GrayImage, b: GrayImage, h: ArrayLike<number>
       if (!bandRatios(eb, kw * kh, p.minTexture, lb)) continue;
       // a's direction k is b's direction k + turn (directions repeat every 180 degrees).
       const turn = Math.round(Math.atan2(j10 - j01, j00 + j11) / (Math.PI / 4));
-      for (let k = 0; k < 4; k++) diffs[k].push(lb[(((k + turn) % 4) + 4) % 4] - la[k]);
+      for (let k = 0; k < 4; k++) {
+        const kb = (((k + turn) % 4) + 4) % 4;
+        diffs[k].push(lb[kb] - la[k]);
+        detail[k].push(Math.max(la[4 + k], lb[4 + kb]));
+      }
     }
   }
-  const blocks = diffs[0].length;
-  if (blocks < p.minBlocks) return null;
-  const logs = diffs.map((d) => median(d));
+  if (diffs[0].length < p.minBlocks) return null;
+  let blocks = Infinity;
+  const logs = diffs.map((d, k) => {
+    // Blocks whose richer frame holds at least `detailOverFloor` times the fine energy of the
+    // softest tenth (sensor noise and JPEG residue where there is no detail at all); at least
+    // `minBlocks` of the richest when fewer qualify.
+    const order = d.map((_, x) => x).sort((x, y) => detail[k][y] - detail[k][x]);
+    const floor = detail[k][order[Math.floor(0.9 * (order.length - 1))]];
+    let keep = order.filter((x) => detail[k][x] >= detailOverFloor * floor);
+    if (keep.length < p.minBlocks) keep = order.slice(0, p.minBlocks);
+    blocks = Math.min(blocks, keep.length);
+    return median(keep.map((x) => d[x]));
+  });
   const byDirection = logs.map(Math.exp) as unknown as [number, number, number, number];
   const ratio = Math.exp((logs[0] + logs[1] + logs[2] + logs[3]) / 4);
   return { byDirection, ratio, blocks };
