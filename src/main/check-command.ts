@@ -41,7 +41,7 @@ Match budget (also in the settings file under "budget"):
   --reshoot-overlap PCT    reshoot a pair under this overlap, percent (default 20)
   --weak-overlap PCT       weak under this overlap, percent (default 30)
   --max-ev EV              largest exposure difference between neighbours (default 0.5)
-  --min-sharpness R        blurred below this share of the typical sharpness (default 0.65)
+  --min-sharpness R        blurred below this share of its neighbours' sharpness (default 0.65)
   --max-bracket-shift PX   largest bracket frame shift, full-resolution px (default 4)
 
 Exit status: 0 all ok, 1 something flagged, 2 usage error or unreadable folder.
