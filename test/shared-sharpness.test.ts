@@ -192,6 +192,18 @@ describe('sharpness on shared content', () => {
     expect(soft.ratio).toBeLessThan(0.65 * graf.ratio);
   });
 
+  it("turns b's directions with the pair's roll: a frame turned a quarter turn reads exactly alike, and its own horizontal smear shows as a's vertical", () => {
+    const photo = photos.get('graf1.png')!;
+    const a = crop(photo, 0, 0, 800, 640);
+    const turned = (img: GrayImage): GrayImage => filtered(img, (src, dst) => cv.rotate(src, dst, cv.ROTATE_90_CLOCKWISE));
+    // Turned clockwise, a's pixel (x, y) lands at (639 - y, x).
+    const h = [0, -1, 639, 1, 0, 0, 0, 0, 1];
+    const same = sharedSharpness(a, turned(a), h)!;
+    for (const v of same.byDirection) expect(v).toBeCloseTo(1, 10);
+    const smeared = sharedSharpness(a, filtered(turned(a), line(9, 1)), h)!;
+    expect(weakest(smeared)).toBe('vertical');
+  });
+
   it('rejects bad arguments', () => {
     const img = photos.get('graf1.png')!;
     expect(() => sharedSharpness(img, img, [1, 0, 0])).toThrow(/Expected 9 finite numbers for h but received/);
