@@ -47,21 +47,30 @@ export interface SharedSharpness {
   readonly blocks: number;
 }
 
-/** A frame's 4 x 4 cell means, and which cells hold a clipped pixel. */
+/**
+ * A frame's 4 x 4 cell means, and which cells hold a clipped pixel; filled on demand (`fillCells`),
+ * since only the cells of the overlap are ever read.
+ */
 interface Coarse {
   readonly width: number;
   readonly height: number;
   readonly data: Float32Array;
   readonly clipped: Uint8Array;
+  readonly done: Uint8Array;
 }
 
 function coarseOf(img: GrayImage): Coarse {
-  const { width: w, data } = img;
   const cw = (img.width / 4) | 0, ch = (img.height / 4) | 0;
-  const out = new Float32Array(cw * ch);
-  const clipped = new Uint8Array(cw * ch);
-  for (let y = 0; y < ch; y++)
-    for (let x = 0; x < cw; x++) {
+  return { width: cw, height: ch, data: new Float32Array(cw * ch), clipped: new Uint8Array(cw * ch), done: new Uint8Array(cw * ch) };
+}
+
+/** Fills the cells [cx0, cx1) x [cy0, cy1) (clamped to the frame) not filled yet. */
+function fillCells(img: GrayImage, c: Coarse, cx0: number, cy0: number, cx1: number, cy1: number): void {
+  const { width: w, data } = img;
+  for (let y = Math.max(0, cy0); y < Math.min(c.height, cy1); y++)
+    for (let x = Math.max(0, cx0); x < Math.min(c.width, cx1); x++) {
+      const k = y * c.width + x;
+      if (c.done[k]) continue;
       let s = 0, clip = 0;
       for (let dy = 0; dy < 4; dy++)
         for (let dx = 0, o = (4 * y + dy) * w + 4 * x; dx < 4; dx++, o++) {
@@ -69,10 +78,10 @@ function coarseOf(img: GrayImage): Coarse {
           s += v;
           if (v <= clippedLow || v >= clippedHigh) clip = 1;
         }
-      out[y * cw + x] = s / 16;
-      clipped[y * cw + x] = clip;
+      c.data[k] = s / 16;
+      c.clipped[k] = clip;
+      c.done[k] = 1;
     }
-  return { width: cw, height: ch, data: out, clipped };
 }
 
 const isClipped = (v: number): boolean => v <= clippedLow || v >= clippedHigh;
@@ -85,6 +94,7 @@ const isClipped = (v: number): boolean => v <= clippedLow || v >= clippedHigh;
  */
 function windowEnergies(img: GrayImage, c: Coarse, cx0: number, cy0: number, cx1: number, cy1: number, out: Float64Array): void {
   out.fill(0);
+  fillCells(img, c, cx0 - 1, cy0 - 1, cx1 + 1, cy1 + 1);
   const { width: w, data } = img;
   const x0 = Math.max(1, 4 * cx0), x1 = Math.min(img.width - 1, 4 * cx1);
   const y0 = Math.max(1, 4 * cy0), y1 = Math.min(img.height - 1, 4 * cy1);
