@@ -3,7 +3,7 @@
 // in report.ts, and that a new budget re-judges without re-analysis.
 import { describe, expect, it } from 'vitest';
 import { resolveBudget } from '../src/core/budget.js';
-import type { Analysis, FrameMeasure, FrameSettings, PairMeasure } from '../src/core/report.js';
+import type { Analysis, FrameMeasure, FrameSettings, PairMeasure, SharpnessByDirection } from '../src/core/report.js';
 import { defaultBudget } from '../src/core/report.js';
 import { judge, rejudge } from '../src/core/verdicts.js';
 
@@ -66,10 +66,13 @@ describe('pair verdicts', () => {
 });
 
 describe('frame and station verdicts', () => {
-  it('flags a frame far less sharp than the sequence', () => {
+  it('falls back to the whole frame against the sequence, only as weak, where no pair compared the frames (a report from before shared-content sharpness)', () => {
     const frames = ['1', '2', '3', '4', '5'].map((f) => frame(f, { sharpness: f === '3' ? 0.9 : 2 + Number(f) / 10 }));
     const r = judge(sequence([pair('1', '2'), pair('2', '3'), pair('3', '4'), pair('4', '5')], frames), defaultBudget);
-    expect(r.frames.filter((f) => f.flags.includes('blurred')).map((f) => f.file)).toEqual(['3']);
+    const blurred = r.frames.filter((f) => f.flags.includes('blurred'));
+    expect(blurred.map((f) => f.file)).toEqual(['3']);
+    expect(blurred[0].verdict).toBe('weak');
+    expect(blurred[0].advice[0]).toMatch(/could not compare with a neighbour.*41 % of the sequence's typical/);
   });
 
   it('flags settings that changed between stations', () => {
@@ -105,6 +108,118 @@ describe('frame and station verdicts', () => {
     expect(r.stations[1].advice[0]).toMatch(/2 of 3 bracket frames \(missing \+2\.0 EV\)/);
     expect(r.frames.find((f) => f.file === '3b')!.flags).toEqual(['bracket-drift']);
     expect(r.frames.find((f) => f.file === '1b')!.flags).toEqual([]);
+  });
+});
+
+/** b's sharpness over a's per direction, as analysePair measures it on the content both see. */
+const sharp = (horizontal: number, vertical = horizontal, fallingDiagonal = horizontal, risingDiagonal = horizontal): Partial<PairMeasure> => {
+  const d: SharpnessByDirection = { horizontal, vertical, fallingDiagonal, risingDiagonal };
+  return { sharpnessByDirection: d, sharpnessRatio: Math.exp((Math.log(horizontal) + Math.log(vertical) + Math.log(fallingDiagonal) + Math.log(risingDiagonal)) / 4), sharpnessBlocks: 200 };
+};
+const inverse = (p: Partial<PairMeasure>): Partial<PairMeasure> => {
+  const d = p.sharpnessByDirection!;
+  return sharp(1 / d.horizontal, 1 / d.vertical, 1 / d.fallingDiagonal, 1 / d.risingDiagonal);
+};
+const blurredFiles = (a: Analysis, budget = defaultBudget): string[] => judge(a, budget).frames.filter((f) => f.flags.includes('blurred')).map((f) => f.file);
+
+describe('blur judged on the content frames share', () => {
+  // Frame 3 sees mostly sky: its whole-frame sharpness is low, but on what it shares with its
+  // neighbours it is as sharp as they are.
+  const skyFrames = ['1', '2', '3', '4', '5'].map((f) => frame(f, { sharpness: f === '3' ? 0.6 : 2 }));
+  const even = sharp(1.02, 0.97, 1.05, 0.99);
+
+  it('does not flag a frame that sees more sky, however low its whole-frame sharpness', () => {
+    const r = judge(sequence([pair('1', '2', even), pair('2', '3', even), pair('3', '4', inverse(even)), pair('4', '5', even)], skyFrames), defaultBudget);
+    expect(r.frames.every((f) => f.flags.length === 0)).toBe(true);
+    expect(r.verdict).toBe('ok');
+  });
+
+  it('flags a frame less sharp than both neighbours, says how much and the direction of motion blur', () => {
+    // 3 is b of (2, 3) and a of (3, 4): smeared along the horizontal, 30 % and 35 % as sharp there.
+    const smear = sharp(0.3, 0.9, 0.5, 0.55);
+    const r = judge(sequence([pair('1', '2', even), pair('2', '3', smear), pair('3', '4', inverse(sharp(0.35, 0.95, 0.5, 0.5))), pair('4', '5', even)], skyFrames), defaultBudget);
+    const flagged = r.frames.filter((f) => f.flags.includes('blurred'));
+    expect(flagged.map((f) => f.file)).toEqual(['3']);
+    expect(flagged[0].verdict).toBe('reshoot');
+    expect(flagged[0].advice[0]).toMatch(/^3 is blurred along the horizontal: on the content it shares with 2 and 4 it is 35 % as sharp; camera shake or panning/);
+  });
+
+  it('says no direction for blur that takes every direction alike', () => {
+    const soft = sharp(0.4, 0.42, 0.45, 0.41);
+    const r = judge(sequence([pair('1', '2', even), pair('2', '3', soft), pair('3', '4', inverse(soft)), pair('4', '5', even)], skyFrames), defaultBudget);
+    const advice = r.frames.find((f) => f.file === '3')!.advice[0];
+    expect(advice).toMatch(/3 is blurred: .* 40 % as sharp, in every direction alike/);
+    expect(advice).not.toMatch(/along/);
+  });
+
+  it('needs both neighbours to agree, and one is enough at the end of a pan', () => {
+    // 3 softer than 2 but as sharp as 4 (and 4 as 5): 2 is the odd one out, not 3.
+    expect(blurredFiles(sequence([pair('1', '2', even), pair('2', '3', sharp(0.5)), pair('3', '4', even), pair('4', '5', even)], skyFrames))).toEqual([]);
+    // 1 has a single neighbour, and it is much sharper.
+    expect(blurredFiles(sequence([pair('1', '2', sharp(2.5)), pair('2', '3', even), pair('3', '4', even), pair('4', '5', even)], skyFrames))).toEqual(['1']);
+    // A closure pair is a neighbour too: 1 is then compared with 5 as well, which is no sharper.
+    const turn = sequence([pair('1', '2', sharp(2.5)), pair('2', '3', even), pair('3', '4', even), pair('4', '5', even), pair('5', '1', { ...even, kind: 'closure' })], skyFrames);
+    expect(blurredFiles(turn)).toEqual([]);
+  });
+
+  it('looks past a neighbour just as soft: two blurred frames in a row are both flagged', () => {
+    const r = sequence([pair('1', '2', even), pair('2', '3', sharp(0.4)), pair('3', '4', even), pair('4', '5', sharp(2.4)), pair('5', '6', even)], [...skyFrames, frame('6')]);
+    expect(blurredFiles(r)).toEqual(['3', '4']);
+    // But not past a neighbour markedly softer still: 3 is sharper than 4 there.
+    const r2 = sequence([pair('1', '2', even), pair('2', '3', sharp(0.6)), pair('3', '4', sharp(0.3)), pair('4', '5', sharp(5)), pair('5', '6', even)], [...skyFrames, frame('6')]);
+    expect(blurredFiles(r2)).toEqual(['4']);
+  });
+
+  it('judges a bracket frame against its reference only, and with it when the reference is blurred', () => {
+    const frames = ['1a', '1b', '2a', '2b', '2c', '3a', '3b'].map((f) => frame(f, { sharpness: f === '2b' ? 0.3 : 2 }));
+    const analysis = (p2b: Partial<PairMeasure>, p2c: Partial<PairMeasure>, ref: Partial<PairMeasure>): Analysis => ({
+      folder: '/card',
+      frames,
+      stations: [
+        { index: 0, frames: ['1a', '1b'], reference: '1a', evOffsets: [0, -2], groupedBy: 'exif' },
+        { index: 1, frames: ['2a', '2b', '2c'], reference: '2a', evOffsets: [0, -2, 2], groupedBy: 'exif' },
+        { index: 2, frames: ['3a', '3b'], reference: '3a', evOffsets: [0, -2], groupedBy: 'exif' },
+      ],
+      pairs: [
+        pair('1a', '1b', { kind: 'bracket', shiftPx: 0.5, ...even }),
+        pair('2a', '2b', { kind: 'bracket', shiftPx: 0.5, ...p2b }),
+        pair('2a', '2c', { kind: 'bracket', shiftPx: 0.5, ...p2c }),
+        pair('3a', '3b', { kind: 'bracket', shiftPx: 0.5, ...even }),
+        pair('1a', '2a', ref),
+        pair('2a', '3a', inverse(ref)),
+      ],
+      skipped: [],
+      sweepDeg: null,
+      geometry: null,
+    });
+    // 2b shaken against its sharp reference: flagged, and only it (its low whole-frame value plays no part).
+    const shaken = judge(analysis(sharp(0.25, 0.8, 0.4, 0.4), even, even), defaultBudget);
+    expect(shaken.frames.filter((f) => f.flags.includes('blurred')).map((f) => f.file)).toEqual(['2b']);
+    expect(shaken.frames.find((f) => f.file === '2b')!.advice.find((a) => a.includes('blurred'))).toMatch(/^2b is blurred along the horizontal: on the content it shares with 2a it is 25 % as sharp/);
+    // The reference shaken, its bracket frames sharp (they read sharper than it): only 2a.
+    expect(blurredFiles(analysis(sharp(2.5), sharp(2.4), sharp(0.4)))).toEqual(['2a']);
+    // The whole station shaken: 2b and 2c as soft as their blurred reference are blurred too.
+    const station = judge(analysis(even, even, sharp(0.4)), defaultBudget);
+    expect(station.frames.filter((f) => f.flags.includes('blurred')).map((f) => f.file)).toEqual(['2a', '2b', '2c']);
+    expect(station.frames.find((f) => f.file === '2c')!.advice.find((a) => a.includes('blurred'))).toMatch(/like its reference 2a, it is 39 % as sharp as 1a and 3a on the content they share/);
+  });
+
+  it('says nothing where the shared content is too flat to tell, and could not compare only where nothing registered', () => {
+    const flat: Partial<PairMeasure> = { sharpnessByDirection: null, sharpnessRatio: null, sharpnessBlocks: null };
+    expect(blurredFiles(sequence([pair('1', '2', even), pair('2', '3', flat), pair('3', '4', flat), pair('4', '5', even)], skyFrames))).toEqual([]);
+    const unmatched: Partial<PairMeasure> = { ...flat, homography: null, overlap: null, inliers: 0, evDiff: null };
+    const r = judge(sequence([pair('1', '2', even), pair('2', '3', unmatched), pair('3', '4', unmatched), pair('4', '5', even)], skyFrames), defaultBudget);
+    const f3 = r.frames.find((f) => f.file === '3')!;
+    expect(f3.flags).toEqual(['blurred']);
+    expect(f3.advice.find((a) => a.includes('blurred'))).toMatch(/could not compare with a neighbour on the content both see: over the whole frame its sharpness is 30 % of the sequence's typical/);
+    expect(r.frames.filter((f) => f.flags.includes('blurred')).map((f) => f.file)).toEqual(['3']);
+  });
+
+  it('re-judges against another threshold without re-analysis', () => {
+    const r = judge(sequence([pair('1', '2', even), pair('2', '3', sharp(0.5)), pair('3', '4', inverse(sharp(0.5))), pair('4', '5', even)], skyFrames), defaultBudget);
+    expect(r.frames.filter((f) => f.flags.includes('blurred')).map((f) => f.file)).toEqual(['3']);
+    expect(rejudge(r, resolveBudget({ minSharpnessRatio: 0.4 })).frames.every((f) => !f.flags.includes('blurred'))).toBe(true);
+    expect(rejudge(r, resolveBudget({ minSharpnessRatio: 0.4 })).pairs[1].sharpnessByDirection).toEqual(r.pairs[1].sharpnessByDirection);
   });
 });
 

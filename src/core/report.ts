@@ -62,7 +62,7 @@ export interface FrameMeasure {
   /** Capture time as local ISO 8601 with milliseconds, or null. */
   readonly captureTime: string | null;
   readonly settings: FrameSettings;
-  /** Contrast-independent sharpness (fine over coarse gradient energy); compared within the sequence. */
+  /** Contrast-independent sharpness over the whole frame (fine over coarse gradient energy); judges blur only where no pair registers the frame. */
   readonly sharpness: number;
   readonly keypoints: number;
   /** Fingerprint of the decoded pixels: equal for copies of one picture. */
@@ -111,6 +111,24 @@ export interface PairMeasure {
    * the other matched pairs place them. Absent or null when the pair has a model or cannot be placed.
    */
   readonly predictedOverlap?: number | null;
+  /**
+   * b's sharpness over a's on the content both see, each on its own pixels (core/shared-sharpness.ts):
+   * the geometric mean over four directions, under 1 when b is the softer. Absent when not
+   * measured; null without a model or with too little texture in the overlap.
+   */
+  readonly sharpnessRatio?: number | null;
+  /** The same per direction as seen in a; absent or null as sharpnessRatio. */
+  readonly sharpnessByDirection?: SharpnessByDirection | null;
+  /** Textured blocks both frames see that the sharpness ratio was measured on; absent or null as sharpnessRatio. */
+  readonly sharpnessBlocks?: number | null;
+}
+
+/** A ratio per direction: across, down, and along the falling (top left to bottom right) and rising diagonals. */
+export interface SharpnessByDirection {
+  readonly horizontal: number;
+  readonly vertical: number;
+  readonly fallingDiagonal: number;
+  readonly risingDiagonal: number;
 }
 
 export interface SkippedFile {
@@ -271,7 +289,11 @@ export interface MatchBudget {
   readonly weakOverlap: number;
   /** Largest EV difference between neighbouring reference frames before it counts as an exposure jump. */
   readonly maxEvDiff: number;
-  /** Sharpness below this share of the sequence's median flags a frame as blurred. */
+  /**
+   * A frame less sharp than this share of each registered neighbour's on the content both see (and a
+   * bracket frame than its reference's) is blurred; a frame no pair registers is compared with the
+   * sequence's median over the whole frame instead.
+   */
   readonly minSharpnessRatio: number;
   /** Largest shift of a bracket frame against its reference, full-resolution px. */
   readonly maxBracketShiftPx: number;

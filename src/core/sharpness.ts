@@ -1,7 +1,7 @@
 import type { GrayImage } from './image.js';
 
 /** Pixels at or beyond these values are clipped, and left out of both energies. */
-const clippedLow = 2, clippedHigh = 253;
+export const clippedLow = 2, clippedHigh = 253;
 
 /**
  * Sums of squared differences across, down and along both diagonals (each over two pixels' distance)

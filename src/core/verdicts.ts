@@ -3,7 +3,7 @@ import { coverageFindings } from './coverage-map.js';
 import { lensMisfitLimitPx } from './lens.js';
 import { reportSchema } from './report.js';
 import { modalPattern, patternOf } from './stations.js';
-import { median } from './median.js';
+import { blurredFrames } from './blur-verdict.js';
 
 const rank: Record<Verdict, number> = { ok: 0, weak: 1, reshoot: 2 };
 export const worst = (...vs: Verdict[]): Verdict => vs.reduce<Verdict>((w, v) => (rank[v] > rank[w] ? v : w), 'ok');
@@ -162,17 +162,8 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
     });
   }
 
-  // Blur: against the sequence's own typical sharpness, among frames of the same bracket offset.
-  const offsetOf = new Map<string, string>();
-  for (const s of analysis.stations) s.frames.forEach((file, k) => offsetOf.set(file, s.evOffsets[k] === null ? 'x' : (Math.round((s.evOffsets[k] as number) * 3) / 3).toFixed(2)));
-  const all = analysis.frames.map((f) => f.sharpness).filter((v) => v > 0);
-  for (const f of analysis.frames) {
-    const peers = analysis.frames.filter((g) => offsetOf.get(g.file) === offsetOf.get(f.file) && g.sharpness > 0).map((g) => g.sharpness);
-    const typical = peers.length >= 3 ? median(peers) : median(all);
-    if (Number.isFinite(typical) && f.sharpness < budget.minSharpnessRatio * typical) {
-      frameFindings.get(f.file)?.add('blurred', 'reshoot', `${f.file} looks blurred (sharpness ${pct(f.sharpness / typical)} of the sequence's typical): reshoot it with a faster shutter or steadier support`);
-    }
-  }
+  // Blur: against each registered neighbour on the content both see (core/blur-verdict.ts).
+  for (const b of blurredFrames(analysis, budget.minSharpnessRatio)) frameFindings.get(b.file)?.add('blurred', b.verdict, b.advice);
 
   // Settings that photographers lock, compared between stations' reference frames (common practice).
   const refs = analysis.stations.map((s) => settingsOf.get(s.reference)).filter((s): s is FrameSettings => !!s);

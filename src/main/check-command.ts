@@ -41,7 +41,7 @@ Match budget (also in the settings file under "budget"):
   --reshoot-overlap PCT    reshoot a pair under this overlap, percent (default 20)
   --weak-overlap PCT       weak under this overlap, percent (default 30)
   --max-ev EV              largest exposure difference between neighbours (default 0.5)
-  --min-sharpness R        blurred below this share of the typical sharpness (default 0.65)
+  --min-sharpness R        blurred below this share of its neighbours' sharpness (default 0.65)
   --max-bracket-shift PX   largest bracket frame shift, full-resolution px (default 4)
   --full-sphere            the set is meant to cover the whole sphere: an open zenith or nadir is
                            a hole to reshoot ("fullSphere": true in the settings file). Without it

@@ -681,6 +681,9 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
           misfit: r.misfit,
           parallax: r.parallax,
           ...(r.homography === null && predictedOverlaps.has(`${i}:${j}`) ? { predictedOverlap: predictedOverlaps.get(`${i}:${j}`) } : {}),
+          sharpnessRatio: r.sharpness?.ratio ?? null,
+          sharpnessByDirection: r.sharpness ? { horizontal: r.sharpness.byDirection[0], vertical: r.sharpness.byDirection[2], fallingDiagonal: r.sharpness.byDirection[1], risingDiagonal: r.sharpness.byDirection[3] } : null,
+          sharpnessBlocks: r.sharpness?.blocks ?? null,
         };
       });
       const inStations = stations.flatMap((s) => s.members).sort((p, q) => p - q);

@@ -16,6 +16,8 @@ import { defaultGuidedMatchParams, estimateGuidedPairGeometry, predictedRegions 
 import type { PairGeometry } from '../core/pair-geometry.js';
 import { estimatePairGeometry } from '../core/pair-geometry.js';
 import { sharpness } from '../core/sharpness.js';
+import type { SharedSharpness } from '../core/shared-sharpness.js';
+import { sharedSharpness } from '../core/shared-sharpness.js';
 import { createScratchPool } from '../core/scratch.js';
 import { decodeForAnalysis } from './decode.js';
 
@@ -48,6 +50,8 @@ export interface PairAnalysis {
   readonly misfit: number | null;
   /** Near and far things do not line up together (see core/movement.ts); null as misfit. */
   readonly parallax: boolean | null;
+  /** b's sharpness over a's on the content both see (null without a model or with too little texture). */
+  readonly sharpness: SharedSharpness | null;
   readonly noModel: string | null;
 }
 
@@ -142,8 +146,8 @@ const guidedFeatureParams: FeatureParams = { ...checkFeatureParams, halvings: 0,
 
 /**
  * Matches two analysed frames, finds tie points on the pixels (a's keypoints inside b, located in
- * b by correlation) and refits the homography to them, and measures overlap, exposure difference
- * and, between stations, movement and parallax in the aligned overlap.
+ * b by correlation) and refits the homography to them, and measures overlap, exposure difference,
+ * sharpness on the content both see and, between stations, movement and parallax in the aligned overlap.
  */
 export function analysePair(a: FrameAnalysis, b: FrameAnalysis, options: PairOptions = { retryAtFullSize: true, overlapBlocks: true }): PairAnalysis {
   let fa = a.features, fb = b.features;
@@ -168,6 +172,7 @@ export function analysePair(a: FrameAnalysis, b: FrameAnalysis, options: PairOpt
   let moved: MovedRegion[] | null = null;
   let misfit: number | null = null;
   let parallax: boolean | null = null;
+  let shared: SharedSharpness | null = null;
   let tie: Float32Array = new Float32Array(0);
   let homography: Homography | null = g.homography;
   let overlap = g.overlap;
@@ -201,6 +206,7 @@ export function analysePair(a: FrameAnalysis, b: FrameAnalysis, options: PairOpt
       idx.forEach((i, k) => tie.set([ka.x[g.matches.a[i]], ka.y[g.matches.a[i]], kb.x[g.matches.b[i]], kb.y[g.matches.b[i]]], 4 * k));
     }
     evDiff = exposureDifference(a.image, b.image, homography!, { step: 4 })?.ev ?? null;
+    shared = sharedSharpness(a.image, b.image, homography!);
     if (options.overlapBlocks) {
       const m = findMovement(a.image, b.image, homography!);
       moved = m.regions;
@@ -220,6 +226,7 @@ export function analysePair(a: FrameAnalysis, b: FrameAnalysis, options: PairOpt
     moved,
     misfit,
     parallax,
+    sharpness: shared,
     noModel: g.noModel,
   };
 }

@@ -20,7 +20,7 @@ export const budgetFields: readonly BudgetField[] = [
   { name: 'weakOverlap', label: 'Weak below overlap (%)', help: 'neighbours sharing less than this are weak', percent: true },
   { name: 'minInliers', label: 'Fewest inliers', help: 'points that must agree for an ok pair; under half of it, reshoot', percent: false },
   { name: 'maxEvDiff', label: 'Largest EV step', help: 'brightness change allowed between neighbours, in EV', percent: false },
-  { name: 'minSharpnessRatio', label: 'Blur: lowest sharpness share', help: 'a frame below this share (0 to 1) of the typical sharpness counts as blurred', percent: false },
+  { name: 'minSharpnessRatio', label: 'Blur: lowest sharpness share', help: 'a frame below this share (0 to 1) of its neighbours\' sharpness, on the content they share, counts as blurred', percent: false },
   { name: 'maxBracketShiftPx', label: 'Largest bracket shift (px)', help: 'movement allowed within a bracket, full-resolution pixels', percent: false },
 ];
 
