@@ -66,41 +66,76 @@ function directionalDetail(img: Float32Array, w: number, h: number, use: Uint8Ar
 }
 
 /**
- * Separable Gaussian low-pass of `src` into `dst`. Beyond the frame and next to NaN the result is
- * NaN: what the filter would mix in there is unknown, and a block near the edge is better skipped
- * than compared with a smear.
+ * A box mean of odd width `width` along rows (`dx` = 1) or columns, by running sums, so that its
+ * cost does not grow with the width. A window that reaches past the frame or holds a NaN gives
+ * NaN: what it would mix in there is unknown, and a block near the edge is better skipped than
+ * compared with a smear.
  */
-function gaussian(src: Float32Array, dst: Float32Array, w: number, h: number, sigma: number, tmp: Float32Array): void {
-  const r = Math.max(1, Math.ceil(3 * sigma));
-  const k = new Float32Array(2 * r + 1);
-  let sum = 0;
-  for (let i = -r; i <= r; i++) sum += k[i + r] = Math.exp(-(i * i) / (2 * sigma * sigma));
-  for (let i = 0; i < k.length; i++) k[i] /= sum;
-  for (let y = 0; y < h; y++) {
-    const row = y * w;
-    for (let x = 0; x < w; x++) {
-      let acc = 0;
-      for (let i = -r; i <= r; i++) {
-        const xx = x + i;
-        acc += xx < 0 || xx >= w ? NaN : k[i + r] * src[row + xx];
+function boxMean(src: Float32Array, dst: Float32Array, w: number, h: number, width: number, alongRows: boolean): void {
+  const r = width >> 1;
+  const lines = alongRows ? h : w, length = alongRows ? w : h, stride = alongRows ? 1 : w, next = alongRows ? w : 1;
+  for (let line = 0; line < lines; line++) {
+    const base = line * next;
+    let sum = 0, bad = 0;
+    // The window over positions [i - r, i + r]; positions outside the frame count as bad.
+    bad += r;
+    for (let j = 0; j < r && j < length; j++) {
+      const v = src[base + j * stride];
+      if (v === v) sum += v;
+      else bad++;
+    }
+    if (r >= length) bad += r + 1 - length;
+    for (let i = 0; i < length; i++) {
+      const inIdx = i + r;
+      if (inIdx < length) {
+        const v = src[base + inIdx * stride];
+        if (v === v) sum += v;
+        else bad++;
+      } else bad++;
+      dst[base + i * stride] = bad > 0 ? NaN : sum / width;
+      const outIdx = i - r;
+      if (outIdx < 0) bad--;
+      else {
+        const v = src[base + outIdx * stride];
+        if (v === v) sum -= v;
+        else bad--;
       }
-      tmp[row + x] = acc;
     }
   }
-  for (let y = 0; y < h; y++)
-    for (let x = 0; x < w; x++) {
-      let acc = 0;
-      for (let i = -r; i <= r; i++) {
-        const yy = y + i;
-        acc += yy < 0 || yy >= h ? NaN : k[i + r] * tmp[yy * w + x];
-      }
-      dst[y * w + x] = acc;
+}
+
+/**
+ * Widths of three successive box means whose result is close to a Gaussian of `sigma` (Kovesi,
+ * "Fast almost-Gaussian filtering", DICTA 2010), and the sigma they make.
+ */
+export function boxWidths(sigma: number): { widths: number[]; sigma: number } {
+  const n = 3;
+  let wl = Math.floor(Math.sqrt((12 * sigma * sigma) / n + 1));
+  if (wl % 2 === 0) wl--;
+  const wu = wl + 2;
+  const m = Math.round((12 * sigma * sigma - n * wl * wl - 4 * n * wl - 3 * n) / (-4 * wl - 4));
+  const widths = [0, 1, 2].map((i) => (i < m ? wl : wu));
+  return { widths, sigma: Math.sqrt(widths.reduce((t, x) => t + (x * x - 1), 0) / 12) };
+}
+
+/** Almost-Gaussian low-pass of `src` into `dst`: three box means along rows, then along columns. */
+function lowPass(src: Float32Array, dst: Float32Array, w: number, h: number, widths: readonly number[], tmp: Float32Array): void {
+  let from = src;
+  for (const [i, alongRows] of [true, false].entries())
+    for (const [j, width] of widths.entries()) {
+      // Ping-pong between dst and tmp, ending in dst.
+      const to = (i * widths.length + j) % 2 === (2 * widths.length - 1) % 2 ? dst : tmp;
+      if (width <= 1) {
+        if (to !== from) to.set(from);
+      } else boxMean(from, to, w, h, width, alongRows);
+      from = to;
     }
 }
 
 /**
  * Resamples b onto a's grid through `h` (a -> b) and low-passes both by the first step of
- * `lowPassSteps` at which their fine detail agrees over the pixels both see (unclipped in both).
+ * `lowPassSteps` at which their fine detail agrees over the pixels both see (unclipped in both);
+ * the last step when none does.
  */
 export function commonBand(a: GrayImage, b: GrayImage, h: ArrayLike<number>): CommonBand {
   const w = a.width, ht = a.height, n = w * ht;
@@ -126,14 +161,40 @@ export function commonBand(a: GrayImage, b: GrayImage, h: ArrayLike<number>): Co
   const agree = (r: number[]): boolean => r.every((x) => !(x < detailAgreement || x > 1 / detailAgreement));
   let ratio = ratios(a0, warped);
   if (shared === 0 || agree(ratio) || ratio.some((x) => !Number.isFinite(x))) return { width: w, height: ht, a: a0, b: warped, sigma: 0, detailRatio: ratio, use };
-  const fa = new Float32Array(n), fb = new Float32Array(n), tmp = new Float32Array(n);
-  let sigma = 0;
-  for (const s of lowPassSteps.slice(1)) {
-    sigma = s;
-    gaussian(a0, fa, w, ht, s, tmp);
-    gaussian(warped, fb, w, ht, s, tmp);
-    ratio = ratios(fa, fb);
-    if (agree(ratio)) break;
+  // The low-pass is chosen on a window of at most 512 x 512 px at the middle of what both see
+  // (each step filters both images: over the whole frame that costs seconds), then applied once.
+  let x0 = w, x1 = -1, y0 = ht, y1 = -1;
+  for (let y = 0; y < ht; y++)
+    for (let x = 0, o = y * w; x < w; x++, o++)
+      if (use[o]) {
+        if (x < x0) x0 = x;
+        if (x > x1) x1 = x;
+        if (y < y0) y0 = y;
+        if (y > y1) y1 = y;
+      }
+  const ww = Math.min(512, x1 - x0 + 1), wh = Math.min(512, y1 - y0 + 1);
+  const wx = Math.floor((x0 + x1 + 1 - ww) / 2), wy = Math.floor((y0 + y1 + 1 - wh) / 2), wn = ww * wh;
+  const wa = new Float32Array(wn), wb = new Float32Array(wn), wuse = new Uint8Array(wn);
+  for (let y = 0; y < wh; y++) {
+    const o = (wy + y) * w + wx;
+    wa.set(a0.subarray(o, o + ww), y * ww);
+    wb.set(warped.subarray(o, o + ww), y * ww);
+    wuse.set(use.subarray(o, o + ww), y * ww);
   }
+  const fwa = new Float32Array(wn), fwb = new Float32Array(wn), wtmp = new Float32Array(wn);
+  let box = boxWidths(lowPassSteps[1]);
+  for (const s of lowPassSteps.slice(1)) {
+    box = boxWidths(s);
+    lowPass(wa, fwa, ww, wh, box.widths, wtmp);
+    lowPass(wb, fwb, ww, wh, box.widths, wtmp);
+    directionalDetail(fwa, ww, wh, wuse, 1, da);
+    directionalDetail(fwb, ww, wh, wuse, 1, db);
+    if (agree([0, 1, 2, 3].map((d) => db[d] / da[d]))) break;
+  }
+  const fa = new Float32Array(n), fb = new Float32Array(n), tmp = new Float32Array(n);
+  lowPass(a0, fa, w, ht, box.widths, tmp);
+  lowPass(warped, fb, w, ht, box.widths, tmp);
+  ratio = ratios(fa, fb);
+  const sigma = box.sigma;
   return { width: w, height: ht, a: fa, b: fb, sigma, detailRatio: ratio, use };
 }

@@ -121,23 +121,39 @@ export function findMovement(a: GrayImage, b: GrayImage, h: ArrayLike<number>, p
   const fx = new Float64Array(cols * rows), fy = new Float64Array(cols * rows), fdx = new Float64Array(cols * rows), fdy = new Float64Array(cols * rows);
   let fieldPoints = 0;
   const R = p.fieldSearch;
-  const z = new Float64Array((2 * R + 1) * (2 * R + 1));
+  const z = new Float64Array(9);
   const inField = new Uint8Array(cols * rows);
   // Block k's best match within R of (cx, cy): kept as a field point (sub-pixel, by a parabola
   // through the peak and its neighbours on each axis) when it correlates well and is not on the
   // window's edge.
   const measure = (k: number, x0: number, y0: number, cx: number, cy: number): boolean => {
-    let best = -Infinity, bi = -1;
-    for (let dy = -R, i = 0; dy <= R; dy++)
-      for (let dx = -R; dx <= R; dx++, i++) {
+    // Every other shift first (natural images correlate over more than a pixel), then uphill
+    // pixel by pixel until the best shift is surrounded by worse ones.
+    let best = -Infinity, bdx = 0, bdy = 0;
+    for (let dy = -R + 1; dy < R; dy += 2)
+      for (let dx = -R + 1; dx < R; dx += 2) {
         const q = compare(k, x0, y0, cx + dx, cy + dy);
-        z[i] = q === q ? q : -1;
-        if (z[i] > best) [best, bi] = [z[i], i];
+        if (q > best) [best, bdx, bdy] = [q, dx, dy];
       }
-    const bdx = (bi % (2 * R + 1)) - R, bdy = Math.floor(bi / (2 * R + 1)) - R;
-    if (best < p.fieldCorrelation || Math.abs(bdx) === R || Math.abs(bdy) === R) return false;
-    const zl = z[bi - 1], zr = z[bi + 1], zu = z[bi - (2 * R + 1)], zd = z[bi + 2 * R + 1];
-    const ex = zl - 2 * best + zr, ey = zu - 2 * best + zd;
+    if (!(best >= p.fieldCorrelation - 0.2)) return false;
+    for (let step = 0; step < 4; step++) {
+      let mdx = 0, mdy = 0;
+      for (let j = 0, dy = -1; dy <= 1; dy++)
+        for (let dx = -1; dx <= 1; dx++, j++) {
+          const q = dx || dy ? compare(k, x0, y0, cx + bdx + dx, cy + bdy + dy) : best;
+          z[j] = q === q ? q : -1;
+          if (z[j] > best) [best, mdx, mdy] = [z[j], dx, dy];
+        }
+      if (!mdx && !mdy) break;
+      bdx += mdx;
+      bdy += mdy;
+      if (Math.abs(bdx) >= R || Math.abs(bdy) >= R) return false;
+    }
+    const centre = z[4];
+    if (centre < p.fieldCorrelation || best > centre) return false;
+    // Sub-pixel peak: a parabola through the best correlation and its neighbours on each axis.
+    const zl = z[3], zr = z[5], zu = z[1], zd = z[7];
+    const ex = zl - 2 * centre + zr, ey = zu - 2 * centre + zd;
     fx[fieldPoints] = x0 + (s - 1) / 2;
     fy[fieldPoints] = y0 + (s - 1) / 2;
     fdx[fieldPoints] = cx + bdx + (ex < 0 ? Math.max(-0.5, Math.min(0.5, (0.5 * (zl - zr)) / ex)) : 0);
@@ -174,19 +190,23 @@ export function findMovement(a: GrayImage, b: GrayImage, h: ArrayLike<number>, p
       if (measure(k, x0, y0, 0, 0)) inField[k] = 1;
     }
   let field = fitSmoothField(fx, fy, fdx, fdy, fieldPoints);
-  // Second round: blocks the first window missed (the far corners of a distorted overlap shift the
-  // most) are looked for around the field, then the field is fitted to all of them.
+  // Further rounds: blocks the first window missed (the far corners of a distorted overlap shift
+  // the most, and faster than a cubic held constant past its points) are looked for around the
+  // field, and the field is fitted again to all, so that it reaches a little farther each round.
   const at = new Float64Array(2);
-  let added = 0;
-  for (let k = 0; k < compared.length; k++) {
-    if (!compared[k] || inField[k] || !(sdAll[k] >= p.flatSd)) continue;
-    const x0 = (k % cols) * s, y0 = Math.floor(k / cols) * s;
-    fieldAt(field, x0 + (s - 1) / 2, y0 + (s - 1) / 2, at);
-    if (Math.max(Math.abs(at[0]), Math.abs(at[1])) < 1 || !measure(k, x0, y0, Math.round(at[0]), Math.round(at[1]))) continue;
-    inField[k] = 1;
-    added++;
+  for (let round = 0; round < 3; round++) {
+    let added = 0;
+    for (let k = 0; k < compared.length; k++) {
+      if (!compared[k] || inField[k] || !(sdAll[k] >= p.flatSd)) continue;
+      const x0 = (k % cols) * s, y0 = Math.floor(k / cols) * s;
+      fieldAt(field, x0 + (s - 1) / 2, y0 + (s - 1) / 2, at);
+      if (Math.max(Math.abs(at[0]), Math.abs(at[1])) < 1 || !measure(k, x0, y0, Math.round(at[0]), Math.round(at[1]))) continue;
+      inField[k] = 1;
+      added++;
+    }
+    if (added === 0) break;
+    field = fitSmoothField(fx, fy, fdx, fdy, fieldPoints);
   }
-  if (added > 0) field = fitSmoothField(fx, fy, fdx, fdy, fieldPoints);
 
   // Pass 2: each compared block against the smooth field. Within a pixel or two of it, the block
   // lines up; otherwise it differs, and is looked for farther off (parallax: near things shift
