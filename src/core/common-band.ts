@@ -16,7 +16,7 @@ export interface CommonBand {
   readonly b: Float32Array;
   /** Standard deviation of the Gaussian both were low-passed with, px (0: compared as they are). */
   readonly sigma: number;
-  /** Per direction (across, down, both diagonals), b's fine detail over a's, after the low-pass. */
+  /** Per direction (across, down, both diagonals), b's fine detail over a's (each against its own coarse detail), after the low-pass. */
   readonly detailRatio: readonly number[];
   /** 1 where both frames see the pixel unclipped. */
   readonly use: Uint8Array;
@@ -35,34 +35,28 @@ export const detailAgreement = 0.7;
 /** Pixels at or beyond these 8-bit values are clipped and say nothing about detail. */
 const clippedLow = 2, clippedHigh = 253;
 
+/** Side of the tiles whose detail ratios are compared, px. */
+const tile = 64;
+
 /**
- * Contrast-free fine detail in four directions over the pixels both frames see: mean squared
- * difference over two pixels' distance divided by the variance there, so that an exposure or
- * vignetting difference (a gain) cancels. Every `step`-th pixel of every `step`-th row.
+ * Squared differences over two pixels' distance across, down and along both diagonals, summed over
+ * the pixels flagged in `use`, per tile of `tile` x `tile` px: out[4 * t + d] for tile t and
+ * direction d.
  */
-function directionalDetail(img: Float32Array, w: number, h: number, use: Uint8Array, step: number, out: Float64Array): void {
-  let ex = 0, ey = 0, ed = 0, ea = 0, s = 0, ss = 0, n = 0;
-  for (let y = 1; y < h - 1; y += step)
-    for (let x = 1, o = y * w + 1; x < w - 1; x += step, o += step) {
+function directionalEnergy(img: Float32Array, w: number, h: number, use: Uint8Array, out: Float64Array): void {
+  const tw = Math.ceil(w / tile);
+  out.fill(0);
+  for (let y = 1; y < h - 1; y++)
+    for (let x = 1, o = y * w + 1; x < w - 1; x++, o++) {
       if (!use[o]) continue;
       const gx = img[o + 1] - img[o - 1], gy = img[o + w] - img[o - w];
       const gd = img[o + w + 1] - img[o - w - 1], ga = img[o - w + 1] - img[o + w - 1];
-      // NaN beside the edge of b's pixels: left out.
-      if (!(gx === gx && gy === gy && gd === gd && ga === ga)) continue;
-      ex += gx * gx;
-      ey += gy * gy;
-      ed += gd * gd;
-      ea += ga * ga;
-      s += img[o];
-      ss += img[o] * img[o];
-      n++;
+      const t = 4 * (Math.floor(y / tile) * tw + Math.floor(x / tile));
+      out[t] += gx * gx;
+      out[t + 1] += gy * gy;
+      out[t + 2] += gd * gd;
+      out[t + 3] += ga * ga;
     }
-  const variance = n > 1 ? ss / n - (s / n) ** 2 : 0;
-  const d = variance > 1e-6 ? n * variance : NaN;
-  out[0] = ex / d;
-  out[1] = ey / d;
-  out[2] = ed / d;
-  out[3] = ea / d;
 }
 
 /**
@@ -151,18 +145,8 @@ export function commonBand(a: GrayImage, b: GrayImage, h: ArrayLike<number>): Co
       shared++;
     }
   }
-  const step = Math.max(1, Math.floor(Math.sqrt(shared / 40000)));
-  const da = new Float64Array(4), db = new Float64Array(4);
-  const ratios = (fa: Float32Array, fb: Float32Array): number[] => {
-    directionalDetail(fa, w, ht, use, step, da);
-    directionalDetail(fb, w, ht, use, step, db);
-    return [0, 1, 2, 3].map((d) => db[d] / da[d]);
-  };
-  const agree = (r: number[]): boolean => r.every((x) => !(x < detailAgreement || x > 1 / detailAgreement));
-  let ratio = ratios(a0, warped);
-  if (shared === 0 || agree(ratio) || ratio.some((x) => !Number.isFinite(x))) return { width: w, height: ht, a: a0, b: warped, sigma: 0, detailRatio: ratio, use };
-  // The low-pass is chosen on a window of at most 512 x 512 px at the middle of what both see
-  // (each step filters both images: over the whole frame that costs seconds), then applied once.
+  // Chosen on a window of at most 512 x 512 px at the middle of what both see: each step filters
+  // both images, which over the whole frame costs seconds.
   let x0 = w, x1 = -1, y0 = ht, y1 = -1;
   for (let y = 0; y < ht; y++)
     for (let x = 0, o = y * w; x < w; x++, o++)
@@ -172,6 +156,8 @@ export function commonBand(a: GrayImage, b: GrayImage, h: ArrayLike<number>): Co
         if (y < y0) y0 = y;
         if (y > y1) y1 = y;
       }
+  const unfiltered = { width: w, height: ht, a: a0, b: warped, sigma: 0, use };
+  if (shared === 0 || x1 - x0 < 48 || y1 - y0 < 48) return { ...unfiltered, detailRatio: [1, 1, 1, 1] };
   const ww = Math.min(512, x1 - x0 + 1), wh = Math.min(512, y1 - y0 + 1);
   const wx = Math.floor((x0 + x1 + 1 - ww) / 2), wy = Math.floor((y0 + y1 + 1 - wh) / 2), wn = ww * wh;
   const wa = new Float32Array(wn), wb = new Float32Array(wn), wuse = new Uint8Array(wn);
@@ -181,20 +167,48 @@ export function commonBand(a: GrayImage, b: GrayImage, h: ArrayLike<number>): Co
     wb.set(warped.subarray(o, o + ww), y * ww);
     wuse.set(use.subarray(o, o + ww), y * ww);
   }
+  // Each frame's fine detail is measured against its own coarse detail (after the strongest
+  // low-pass), so that what scales all detail alike (exposure, vignetting, the contrast of the
+  // light) cancels, and what is left is how much of the fine band each frame kept.
   const fwa = new Float32Array(wn), fwb = new Float32Array(wn), wtmp = new Float32Array(wn);
+  const coarse = boxWidths(lowPassSteps[lowPassSteps.length - 1] * 1.25).widths;
+  lowPass(wa, fwa, ww, wh, coarse, wtmp);
+  lowPass(wb, fwb, ww, wh, coarse, wtmp);
+  for (let y = 1; y < wh - 1; y++)
+    for (let x = 1, o = y * ww + 1; x < ww - 1; x++, o++) {
+      const around = fwa[o - ww - 1] + fwa[o + ww + 1] + fwa[o - ww + 1] + fwa[o + ww - 1] + fwb[o - ww - 1] + fwb[o + ww + 1] + fwb[o - ww + 1] + fwb[o + ww - 1];
+      if (!(around === around)) wuse[o] = 0;
+    }
+  const tiles = Math.ceil(ww / tile) * Math.ceil(wh / tile);
+  const refA = new Float64Array(4 * tiles), refB = new Float64Array(4 * tiles), da = new Float64Array(4 * tiles), db = new Float64Array(4 * tiles);
+  directionalEnergy(fwa, ww, wh, wuse, refA);
+  directionalEnergy(fwb, ww, wh, wuse, refB);
+  // Per direction, the median over the tiles with coarse detail in both: something that moved, or
+  // a patch of sky, changes a few tiles and not the median.
+  const ratioOf = (fa: Float32Array, fb: Float32Array): number[] => {
+    directionalEnergy(fa, ww, wh, wuse, da);
+    directionalEnergy(fb, ww, wh, wuse, db);
+    return [0, 1, 2, 3].map((d) => {
+      const r: number[] = [];
+      for (let t = d; t < 4 * tiles; t += 4) if (refA[t] > 0 && refB[t] > 0 && da[t] > 0) r.push(db[t] / refB[t] / (da[t] / refA[t]));
+      r.sort((x, y) => x - y);
+      return r.length ? r[r.length >> 1] : NaN;
+    });
+  };
+  const agree = (r: number[]): boolean => r.every((x) => !(x < detailAgreement || x > 1 / detailAgreement));
+  let ratio = ratioOf(wa, wb);
+  if (agree(ratio) || ratio.some((x) => !Number.isFinite(x))) return { ...unfiltered, detailRatio: ratio };
   let box = boxWidths(lowPassSteps[1]);
   for (const s of lowPassSteps.slice(1)) {
     box = boxWidths(s);
     lowPass(wa, fwa, ww, wh, box.widths, wtmp);
     lowPass(wb, fwb, ww, wh, box.widths, wtmp);
-    directionalDetail(fwa, ww, wh, wuse, 1, da);
-    directionalDetail(fwb, ww, wh, wuse, 1, db);
-    if (agree([0, 1, 2, 3].map((d) => db[d] / da[d]))) break;
+    ratio = ratioOf(fwa, fwb);
+    if (agree(ratio)) break;
   }
   const fa = new Float32Array(n), fb = new Float32Array(n), tmp = new Float32Array(n);
   lowPass(a0, fa, w, ht, box.widths, tmp);
   lowPass(warped, fb, w, ht, box.widths, tmp);
-  ratio = ratios(fa, fb);
   const sigma = box.sigma;
   return { width: w, height: ht, a: fa, b: fb, sigma, detailRatio: ratio, use };
 }

@@ -123,19 +123,16 @@ export function findMovement(a: GrayImage, b: GrayImage, h: ArrayLike<number>, p
   const R = p.fieldSearch;
   const z = new Float64Array(9);
   const inField = new Uint8Array(cols * rows);
+  // A smooth field needs a few hundred points, not every block of a large overlap: on a large
+  // frame every other block (a checkerboard) is measured.
+  const sparse = cols * rows > 1200;
   // Block k's best match within R of (cx, cy): kept as a field point (sub-pixel, by a parabola
   // through the peak and its neighbours on each axis) when it correlates well and is not on the
   // window's edge.
-  const measure = (k: number, x0: number, y0: number, cx: number, cy: number): boolean => {
-    // Every other shift first (natural images correlate over more than a pixel), then uphill
-    // pixel by pixel until the best shift is surrounded by worse ones.
-    let best = -Infinity, bdx = 0, bdy = 0;
-    for (let dy = -R + 1; dy < R; dy += 2)
-      for (let dx = -R + 1; dx < R; dx += 2) {
-        const q = compare(k, x0, y0, cx + dx, cy + dy);
-        if (q > best) [best, bdx, bdy] = [q, dx, dy];
-      }
-    if (!(best >= p.fieldCorrelation - 0.2)) return false;
+  // Uphill pixel by pixel from (cx + sx, cy + sy) until the best shift is surrounded by worse
+  // ones; kept when that peak correlates well and lies inside the window.
+  const climb = (k: number, x0: number, y0: number, cx: number, cy: number, sx: number, sy: number, start: number): boolean => {
+    let best = start, bdx = sx, bdy = sy;
     for (let step = 0; step < 4; step++) {
       let mdx = 0, mdy = 0;
       for (let j = 0, dy = -1; dy <= 1; dy++)
@@ -160,6 +157,19 @@ export function findMovement(a: GrayImage, b: GrayImage, h: ArrayLike<number>, p
     fdy[fieldPoints] = cy + bdy + (ey < 0 ? Math.max(-0.5, Math.min(0.5, (0.5 * (zu - zd)) / ey)) : 0);
     fieldPoints++;
     return true;
+  };
+  const measure = (k: number, x0: number, y0: number, cx: number, cy: number): boolean => {
+    // Most blocks sit on a peak next to where they are expected; the others are looked for on
+    // every other shift of the window first (natural images correlate over more than a pixel).
+    const here = compare(k, x0, y0, cx, cy);
+    if (here >= p.fieldCorrelation && climb(k, x0, y0, cx, cy, 0, 0, here)) return true;
+    let best = -Infinity, bdx = 0, bdy = 0;
+    for (let dy = -R + 1; dy < R; dy += 2)
+      for (let dx = -R + 1; dx < R; dx += 2) {
+        const q = compare(k, x0, y0, cx + dx, cy + dy);
+        if (q > best) [best, bdx, bdy] = [q, dx, dy];
+      }
+    return best >= p.fieldCorrelation - 0.2 && climb(k, x0, y0, cx, cy, bdx, bdy, best);
   };
   for (let r = 0; r < rows; r++)
     for (let c = 0; c < cols; c++) {
@@ -186,7 +196,7 @@ export function findMovement(a: GrayImage, b: GrayImage, h: ArrayLike<number>, p
       if (sda < p.texturedSd && sdOut[0] < p.texturedSd) continue;
       compared[k] = 1;
       blocks++;
-      if (sda < p.flatSd || sdOut[0] < p.flatSd) continue;
+      if (sda < p.flatSd || sdOut[0] < p.flatSd || (sparse && (r + c) % 2)) continue;
       if (measure(k, x0, y0, 0, 0)) inField[k] = 1;
     }
   let field = fitSmoothField(fx, fy, fdx, fdy, fieldPoints);
@@ -197,7 +207,7 @@ export function findMovement(a: GrayImage, b: GrayImage, h: ArrayLike<number>, p
   for (let round = 0; round < 3; round++) {
     let added = 0;
     for (let k = 0; k < compared.length; k++) {
-      if (!compared[k] || inField[k] || !(sdAll[k] >= p.flatSd)) continue;
+      if (!compared[k] || inField[k] || !(sdAll[k] >= p.flatSd) || (sparse && ((k % cols) + Math.floor(k / cols)) % 2)) continue;
       const x0 = (k % cols) * s, y0 = Math.floor(k / cols) * s;
       fieldAt(field, x0 + (s - 1) / 2, y0 + (s - 1) / 2, at);
       if (Math.max(Math.abs(at[0]), Math.abs(at[1])) < 1 || !measure(k, x0, y0, Math.round(at[0]), Math.round(at[1]))) continue;
@@ -278,7 +288,8 @@ export function findMovement(a: GrayImage, b: GrayImage, h: ArrayLike<number>, p
     }
   }
 
-  // Connected differing blocks (4-neighbours) of at least minBlocks make a region.
+  // Connected differing blocks (8-neighbours: one thing can touch the grid corner to corner) of at
+  // least minBlocks make a region.
   const seen = new Uint8Array(cols * rows);
   const regions: MovedRegion[] = [];
   for (let start = 0; start < differs.length; start++) {
@@ -294,7 +305,7 @@ export function findMovement(a: GrayImage, b: GrayImage, h: ArrayLike<number>, p
       c1 = Math.max(c1, c);
       r0 = Math.min(r0, r);
       r1 = Math.max(r1, r);
-      for (const [dr, dc] of [[1, 0], [-1, 0], [0, 1], [0, -1]]) {
+      for (const [dr, dc] of [[1, 0], [-1, 0], [0, 1], [0, -1], [1, 1], [1, -1], [-1, 1], [-1, -1]]) {
         const rr = r + dr, cc = c + dc;
         if (rr < 0 || rr >= rows || cc < 0 || cc >= cols) continue;
         const nk = rr * cols + cc;
