@@ -3,6 +3,12 @@
  * where the homography puts it (a person, a wave, a branch that moved between the shots). Each
  * block is compared by zero-mean normalised cross-correlation, which ignores the exposure and
  * vignetting difference; flat blocks (sky, a wall) say nothing and are skipped.
+ *
+ * The two frames are compared on one grid and at one sharpness (common-band.ts), so that a frame
+ * smeared by motion or seen at a coarser scale does not differ everywhere. Blocks are judged not
+ * against the homography alone but against a smooth displacement field fitted to where every block
+ * is found (displacement-field.ts): a lens's radial distortion moves blocks by pixels to tens of
+ * pixels, smoothly, while parallax breaks from the field where near and far things meet.
  */
 import { commonBand } from './common-band.js';
 import { fieldAt, fitSmoothField } from './displacement-field.js';
@@ -32,7 +38,7 @@ export interface MovementParams {
    * puts it: the smooth field (lens distortion the homography cannot absorb) is fitted to these.
    */
   readonly fieldSearch: number;
-  /** Fewest correlation for a block's measured displacement to enter the smooth field. */
+  /** Least correlation for a block's measured displacement to enter the smooth field. */
   readonly fieldCorrelation: number;
   /**
    * A block that differs where the smooth field puts it is looked for this many pixels around: a
