@@ -3,7 +3,15 @@
  * where the homography puts it (a person, a wave, a branch that moved between the shots). Each
  * block is compared by zero-mean normalised cross-correlation, which ignores the exposure and
  * vignetting difference; flat blocks (sky, a wall) say nothing and are skipped.
+ *
+ * The two frames are compared on one grid and at one sharpness (common-band.ts), so that a frame
+ * smeared by motion or seen at a coarser scale does not differ everywhere. Blocks are judged not
+ * against the homography alone but against a smooth displacement field fitted to where every block
+ * is found (displacement-field.ts): a lens's radial distortion moves blocks by pixels to tens of
+ * pixels, smoothly, while parallax breaks from the field where near and far things meet.
  */
+import { commonBand } from './common-band.js';
+import { fieldAt, fitSmoothField } from './displacement-field.js';
 import type { GrayImage } from './image.js';
 
 /** A region of a, analysis pixels. */
@@ -26,8 +34,15 @@ export interface MovementParams {
   /** Fewest neighbouring differing blocks that make a moved region. */
   readonly minBlocks: number;
   /**
-   * A block that differs where the model puts it is looked for this many pixels around (b's
-   * pixels): a few pixels of misfit (lens distortion, a little parallax) are not movement.
+   * Each textured block's displacement is measured within this many pixels of where the homography
+   * puts it: the smooth field (lens distortion the homography cannot absorb) is fitted to these.
+   */
+  readonly fieldSearch: number;
+  /** Least correlation for a block's measured displacement to enter the smooth field. */
+  readonly fieldCorrelation: number;
+  /**
+   * A block that differs where the smooth field puts it is looked for this many pixels around: a
+   * pixel or two of misfit is neither movement nor parallax worth a reshoot.
    */
   readonly search: number;
   /** How far a differing block is looked for before it counts as gone, px. */
@@ -38,7 +53,7 @@ export interface MovementParams {
   readonly minDisplaced: number;
 }
 
-export const defaultMovementParams: MovementParams = { block: 16, minCorrelation: 0.4, flatSd: 3, texturedSd: 8, minBlocks: 3, search: 3, displacedSearch: 36, displacedCorrelation: 0.75, minDisplaced: 6 };
+export const defaultMovementParams: MovementParams = { block: 16, minCorrelation: 0.4, flatSd: 3, texturedSd: 8, minBlocks: 3, fieldSearch: 6, fieldCorrelation: 0.7, search: 2, displacedSearch: 36, displacedCorrelation: 0.75, minDisplaced: 6 };
 
 export interface Movement {
   /** Blocks compared (textured in at least one frame, inside both). */
@@ -60,6 +75,12 @@ export interface Movement {
    * moved regions are named then: they cannot be told from parallax.
    */
   readonly parallax: boolean;
+  /** Where the blocks displaced by one common shift lie in a (their bounding box), or null. */
+  readonly displacedRegion: MovedRegion | null;
+  /** Gaussian sigma both frames were low-passed with to compare them at one sharpness, px (0: none). */
+  readonly lowPass: number;
+  /** Largest displacement of the smooth field over the compared blocks, px: what the homography leaves (lens distortion). */
+  readonly smoothShift: number;
 }
 
 /** Above this share of differing blocks the overlap as a whole does not line up. */
@@ -67,101 +88,184 @@ export const parallaxMisfit = 0.2;
 /** More separate differing places than this are misalignment scattered over the overlap, not things that moved. */
 export const maxMovedRegions = 5;
 
-function bilinear(img: GrayImage, x: number, y: number): number {
-  const x0 = Math.floor(x), y0 = Math.floor(y);
-  const tx = x - x0, ty = y - y0;
-  const o = y0 * img.width + x0, d = img.data;
-  const top = d[o] + tx * (d[o + 1] - d[o]);
-  const bottom = d[o + img.width] + tx * (d[o + img.width + 1] - d[o + img.width]);
-  return top + ty * (bottom - top);
-}
-
 /** Compares a and b block by block where `h` (a -> b, analysis pixels) maps a into b. */
 export function findMovement(a: GrayImage, b: GrayImage, h: ArrayLike<number>, params: Partial<MovementParams> = {}): Movement {
   const p = { ...defaultMovementParams, ...params };
-  const s = p.block;
-  const cols = Math.floor(a.width / s), rows = Math.floor(a.height / s);
+  const band = commonBand(a, b, h);
+  const A = band.a, B = band.b, use = band.use, w = band.width, ht = band.height;
+  const s = p.block, n = s * s;
+  const cols = Math.floor(w / s), rows = Math.floor(ht / s);
   const differs = new Uint8Array(cols * rows);
-  const va = new Float64Array(s * s), vb = new Float64Array(s * s);
+  const compared = new Uint8Array(cols * rows);
+  const meanA = new Float64Array(cols * rows), ssA = new Float64Array(cols * rows), sdAll = new Float64Array(cols * rows);
   let blocks = 0, differing = 0, displaced = 0;
   const shifts: { k: number; dx: number; dy: number }[] = [];
-  const n = s * s;
-  const bx = new Float64Array(n), by = new Float64Array(n);
-  // Correlation of a's block (in va) with b sampled at the mapped positions shifted by (dx, dy);
-  // sd of b's samples in sdOut[0]. NaN when a shifted sample leaves b.
+  // Correlation of a's block k at (x0, y0) with b's pixels shifted by whole pixels (dx, dy); the
+  // standard deviation of b's pixels in sdOut[0]. NaN when a shifted pixel leaves b.
   const sdOut = new Float64Array(1);
-  const compare = (dx: number, dy: number, ma: number, saa: number): number => {
-    let mb = 0;
-    for (let k = 0; k < n; k++) {
-      const x = bx[k] + dx, y = by[k] + dy;
-      if (!(x >= 0 && y >= 0 && x < b.width - 1 && y < b.height - 1)) return NaN;
-      vb[k] = bilinear(b, x, y);
-      mb += vb[k];
+  const compare = (k: number, x0: number, y0: number, dx: number, dy: number): number => {
+    const bx = x0 + dx, by = y0 + dy;
+    if (bx < 0 || by < 0 || bx + s > w || by + s > ht) return NaN;
+    const ma = meanA[k];
+    let sb = 0, sbb = 0, sab = 0;
+    for (let v = 0; v < s; v++) {
+      const oa = (y0 + v) * w + x0, ob = (by + v) * w + bx;
+      for (let u = 0; u < s; u++) {
+        const vb = B[ob + u];
+        sb += vb;
+        sbb += vb * vb;
+        sab += (A[oa + u] - ma) * vb;
+      }
     }
-    mb /= n;
-    let sbb = 0, sab = 0;
-    for (let k = 0; k < n; k++) {
-      const db = vb[k] - mb;
-      sbb += db * db;
-      sab += (va[k] - ma) * db;
+    if (sb !== sb) return NaN;
+    const vbb = sbb - (sb * sb) / n;
+    sdOut[0] = Math.sqrt(Math.max(0, vbb) / n);
+    return vbb > 0 && ssA[k] > 0 ? sab / Math.sqrt(ssA[k] * vbb) : 0;
+  };
+
+  // Pass 1: every textured block's displacement from where the homography puts it, to sub-pixel.
+  const fx = new Float64Array(cols * rows), fy = new Float64Array(cols * rows), fdx = new Float64Array(cols * rows), fdy = new Float64Array(cols * rows);
+  let fieldPoints = 0;
+  const R = p.fieldSearch;
+  const z = new Float64Array(9);
+  const inField = new Uint8Array(cols * rows);
+  // A smooth field needs a few hundred points, not every block of a large overlap: on a large
+  // frame every other block (a checkerboard) is measured.
+  const sparse = cols * rows > 1200;
+  // Block k's best match within R of (cx, cy): kept as a field point (sub-pixel, by a parabola
+  // through the peak and its neighbours on each axis) when it correlates well and is not on the
+  // window's edge.
+  // Uphill pixel by pixel from (cx + sx, cy + sy) until the best shift is surrounded by worse
+  // ones; kept when that peak correlates well and lies inside the window.
+  const climb = (k: number, x0: number, y0: number, cx: number, cy: number, sx: number, sy: number, start: number): boolean => {
+    let best = start, bdx = sx, bdy = sy;
+    for (let step = 0; step < 4; step++) {
+      let mdx = 0, mdy = 0;
+      for (let j = 0, dy = -1; dy <= 1; dy++)
+        for (let dx = -1; dx <= 1; dx++, j++) {
+          const q = dx || dy ? compare(k, x0, y0, cx + bdx + dx, cy + bdy + dy) : best;
+          z[j] = q === q ? q : -1;
+          if (z[j] > best) [best, mdx, mdy] = [z[j], dx, dy];
+        }
+      if (!mdx && !mdy) break;
+      bdx += mdx;
+      bdy += mdy;
+      if (Math.abs(bdx) >= R || Math.abs(bdy) >= R) return false;
     }
-    sdOut[0] = Math.sqrt(sbb / n);
-    return sbb > 0 && saa > 0 ? sab / Math.sqrt(saa * sbb) : 0;
+    const centre = z[4];
+    if (centre < p.fieldCorrelation || best > centre) return false;
+    // Sub-pixel peak: a parabola through the best correlation and its neighbours on each axis.
+    const zl = z[3], zr = z[5], zu = z[1], zd = z[7];
+    const ex = zl - 2 * centre + zr, ey = zu - 2 * centre + zd;
+    fx[fieldPoints] = x0 + (s - 1) / 2;
+    fy[fieldPoints] = y0 + (s - 1) / 2;
+    fdx[fieldPoints] = cx + bdx + (ex < 0 ? Math.max(-0.5, Math.min(0.5, (0.5 * (zl - zr)) / ex)) : 0);
+    fdy[fieldPoints] = cy + bdy + (ey < 0 ? Math.max(-0.5, Math.min(0.5, (0.5 * (zu - zd)) / ey)) : 0);
+    fieldPoints++;
+    return true;
+  };
+  const measure = (k: number, x0: number, y0: number, cx: number, cy: number): boolean => {
+    // Most blocks sit on a peak next to where they are expected; the others are looked for on
+    // every other shift of the window first (natural images correlate over more than a pixel).
+    const here = compare(k, x0, y0, cx, cy);
+    if (here >= p.fieldCorrelation && climb(k, x0, y0, cx, cy, 0, 0, here)) return true;
+    let best = -Infinity, bdx = 0, bdy = 0;
+    for (let dy = -R + 1; dy < R; dy += 2)
+      for (let dx = -R + 1; dx < R; dx += 2) {
+        const q = compare(k, x0, y0, cx + dx, cy + dy);
+        if (q > best) [best, bdx, bdy] = [q, dx, dy];
+      }
+    return best >= p.fieldCorrelation - 0.2 && climb(k, x0, y0, cx, cy, bdx, bdy, best);
   };
   for (let r = 0; r < rows; r++)
     for (let c = 0; c < cols; c++) {
-      let inside = true, clipped = 0;
-      for (let k = 0, v = 0; v < s && inside; v++)
-        for (let u = 0; u < s; u++, k++) {
-          const x = c * s + u, y = r * s + v;
-          const w = h[6] * x + h[7] * y + h[8];
-          const px = (h[0] * x + h[1] * y + h[2]) / w, py = (h[3] * x + h[4] * y + h[5]) / w;
-          if (!(w > 0 && px >= 0 && py >= 0 && px < b.width - 1 && py < b.height - 1)) {
+      const k = r * cols + c, x0 = c * s, y0 = r * s;
+      let ma = 0, clipped = 0, inside = true;
+      for (let v = 0; v < s && inside; v++)
+        for (let u = 0, o = (y0 + v) * w + x0; u < s; u++, o++) {
+          if (B[o] !== B[o] || A[o] !== A[o]) {
             inside = false;
             break;
           }
-          bx[k] = px;
-          by[k] = py;
-          va[k] = a.data[y * a.width + x];
-          if (va[k] >= 250 || bilinear(b, px, py) >= 250) clipped++;
+          if (!use[o]) clipped++;
+          ma += A[o];
         }
       if (!inside || clipped > n / 4) continue;
-      let ma = 0;
-      for (let k = 0; k < n; k++) ma += va[k];
       ma /= n;
       let saa = 0;
-      for (let k = 0; k < n; k++) saa += (va[k] - ma) ** 2;
+      for (let v = 0; v < s; v++) for (let u = 0, o = (y0 + v) * w + x0; u < s; u++, o++) saa += (A[o] - ma) ** 2;
+      meanA[k] = ma;
+      ssA[k] = saa;
       const sda = Math.sqrt(saa / n);
-      const zncc = compare(0, 0, ma, saa);
-      const sdb = sdOut[0];
-      if (sda < p.texturedSd && sdb < p.texturedSd) continue;
+      sdAll[k] = sda;
+      compare(k, x0, y0, 0, 0);
+      if (sda < p.texturedSd && sdOut[0] < p.texturedSd) continue;
+      compared[k] = 1;
       blocks++;
-      // Textured in one frame and flat in the other, or both textured but unlike even a few
-      // pixels off the model's position.
-      let unlike = sda < p.flatSd || sdb < p.flatSd || !(zncc >= p.minCorrelation);
-      if (unlike && sda >= p.flatSd && sdb >= p.flatSd) {
-        for (let dy = -p.search; dy <= p.search && unlike; dy++)
-          for (let dx = -p.search; dx <= p.search && unlike; dx++) if ((dx || dy) && compare(dx, dy, ma, saa) >= p.minCorrelation) unlike = false;
-      }
-      if (unlike) {
-        differing++;
-        // Is it there in b, only farther off (parallax: near things shift against far ones), or
-        // gone (movement)? Searched coarsely over +/- displacedSearch px, then around the best.
-        if (sda >= p.texturedSd && sdb >= p.flatSd) {
-          let best = -1, bdx = 0, bdy = 0;
-          const D = p.displacedSearch;
-          for (let dy = -D; dy <= D; dy += 3)
-            for (let dx = -D; dx <= D; dx += 3) {
-              const z = compare(dx, dy, ma, saa);
-              if (z > best) [best, bdx, bdy] = [z, dx, dy];
-            }
-          for (let dy = bdy - 2; dy <= bdy + 2 && best < p.displacedCorrelation; dy++)
-            for (let dx = bdx - 2; dx <= bdx + 2; dx++) best = Math.max(best, compare(dx, dy, ma, saa) || -1);
-          if (best >= p.displacedCorrelation) shifts.push({ k: r * cols + c, dx: bdx, dy: bdy });
-        }
-        differs[r * cols + c] = 1;
-      }
+      if (sda < p.flatSd || sdOut[0] < p.flatSd || (sparse && (r + c) % 2)) continue;
+      if (measure(k, x0, y0, 0, 0)) inField[k] = 1;
     }
+  let field = fitSmoothField(fx, fy, fdx, fdy, fieldPoints);
+  // Further rounds: blocks the first window missed (the far corners of a distorted overlap shift
+  // the most, and faster than a cubic held constant past its points) are looked for around the
+  // field, and the field is fitted again to all, so that it reaches a little farther each round.
+  const at = new Float64Array(2);
+  for (let round = 0; round < 3; round++) {
+    let added = 0;
+    for (let k = 0; k < compared.length; k++) {
+      if (!compared[k] || inField[k] || !(sdAll[k] >= p.flatSd) || (sparse && ((k % cols) + Math.floor(k / cols)) % 2)) continue;
+      const x0 = (k % cols) * s, y0 = Math.floor(k / cols) * s;
+      fieldAt(field, x0 + (s - 1) / 2, y0 + (s - 1) / 2, at);
+      if (Math.max(Math.abs(at[0]), Math.abs(at[1])) < 1 || !measure(k, x0, y0, Math.round(at[0]), Math.round(at[1]))) continue;
+      inField[k] = 1;
+      added++;
+    }
+    if (added === 0) break;
+    field = fitSmoothField(fx, fy, fdx, fdy, fieldPoints);
+  }
+
+  // Pass 2: each compared block against the smooth field. Within a pixel or two of it, the block
+  // lines up; otherwise it differs, and is looked for farther off (parallax: near things shift
+  // against far ones by one common shift) or not found (something moved).
+  let smoothShift = 0;
+  for (let k = 0; k < compared.length; k++) {
+    if (!compared[k]) continue;
+    const x0 = (k % cols) * s, y0 = Math.floor(k / cols) * s;
+    fieldAt(field, x0 + (s - 1) / 2, y0 + (s - 1) / 2, at);
+    smoothShift = Math.max(smoothShift, Math.hypot(at[0], at[1]));
+    const px = Math.round(at[0]), py = Math.round(at[1]);
+    const sda = sdAll[k];
+    const zncc = compare(k, x0, y0, px, py);
+    const sdb = sdOut[0];
+    if (zncc !== zncc) {
+      // The field puts the block beyond b's pixels: nothing to compare it with.
+      compared[k] = 0;
+      blocks--;
+      continue;
+    }
+    // Textured in one frame and flat in the other (something in front of sky) correlates no better
+    // than noise does, so the correlation alone decides: a contrast difference with the same
+    // structure is not a change.
+    let unlike = !(zncc >= p.minCorrelation);
+    if (unlike)
+      for (let dy = -p.search; dy <= p.search && unlike; dy++)
+        for (let dx = -p.search; dx <= p.search && unlike; dx++) if ((dx || dy) && compare(k, x0, y0, px + dx, py + dy) >= p.minCorrelation) unlike = false;
+    if (!unlike) continue;
+    differing++;
+    differs[k] = 1;
+    if (sda >= p.texturedSd && sdb >= p.flatSd) {
+      let best = -1, bdx = 0, bdy = 0;
+      const D = p.displacedSearch;
+      for (let dy = -D; dy <= D; dy += 3)
+        for (let dx = -D; dx <= D; dx += 3) {
+          const q = compare(k, x0, y0, px + dx, py + dy);
+          if (q > best) [best, bdx, bdy] = [q, dx, dy];
+        }
+      for (let dy = bdy - 2, cy = bdy, cx = bdx; dy <= cy + 2 && best < p.displacedCorrelation; dy++)
+        for (let dx = cx - 2; dx <= cx + 2; dx++) best = Math.max(best, compare(k, x0, y0, px + dx, py + dy) || -1);
+      if (best >= p.displacedCorrelation) shifts.push({ k, dx: bdx, dy: bdy });
+    }
+  }
 
   // Parallax shifts near things together: blocks found displaced by about one common shift (the
   // most frequent, on a 4 px grid) count as displaced, once there are several of them and they
@@ -173,17 +277,25 @@ export function findMovement(a: GrayImage, b: GrayImage, h: ArrayLike<number>, p
     const b0 = bins.get(key) ?? { n: 0, dx: 0, dy: 0 };
     bins.set(key, { n: b0.n + 1, dx: b0.dx + sh.dx, dy: b0.dy + sh.dy });
   }
+  let displacedRegion: MovedRegion | null = null;
   const top = [...bins.values()].sort((x, y) => y.n - x.n)[0];
   if (top) {
     const mx = top.dx / top.n, my = top.dy / top.n;
     const coherent = shifts.filter((sh) => Math.hypot(sh.dx - mx, sh.dy - my) <= 4);
     if (coherent.length >= Math.max(p.minDisplaced, 0.3 * shifts.length)) {
       displaced = coherent.length;
-      for (const sh of coherent) differs[sh.k] = 0;
+      let c0 = Infinity, c1 = -Infinity, r0 = Infinity, r1 = -Infinity;
+      for (const sh of coherent) {
+        differs[sh.k] = 0;
+        const r = Math.floor(sh.k / cols), c = sh.k % cols;
+        [c0, c1, r0, r1] = [Math.min(c0, c), Math.max(c1, c), Math.min(r0, r), Math.max(r1, r)];
+      }
+      displacedRegion = { x: c0 * s, y: r0 * s, width: (c1 - c0 + 1) * s, height: (r1 - r0 + 1) * s };
     }
   }
 
-  // Connected differing blocks (4-neighbours) of at least minBlocks make a region.
+  // Connected differing blocks (8-neighbours: one thing can touch the grid corner to corner) of at
+  // least minBlocks make a region.
   const seen = new Uint8Array(cols * rows);
   const regions: MovedRegion[] = [];
   for (let start = 0; start < differs.length; start++) {
@@ -199,7 +311,7 @@ export function findMovement(a: GrayImage, b: GrayImage, h: ArrayLike<number>, p
       c1 = Math.max(c1, c);
       r0 = Math.min(r0, r);
       r1 = Math.max(r1, r);
-      for (const [dr, dc] of [[1, 0], [-1, 0], [0, 1], [0, -1]]) {
+      for (const [dr, dc] of [[1, 0], [-1, 0], [0, 1], [0, -1], [1, 1], [1, -1], [-1, 1], [-1, -1]]) {
         const rr = r + dr, cc = c + dc;
         if (rr < 0 || rr >= rows || cc < 0 || cc >= cols) continue;
         const nk = rr * cols + cc;
@@ -213,5 +325,5 @@ export function findMovement(a: GrayImage, b: GrayImage, h: ArrayLike<number>, p
   }
   const misfit = blocks > 0 ? differing / blocks : 0;
   const parallax = displaced > 0 || misfit > parallaxMisfit || regions.length > maxMovedRegions;
-  return { blocks, differing, displaced, regions: parallax ? [] : regions, misfit, parallax };
+  return { blocks, differing, displaced, regions: parallax ? [] : regions, misfit, parallax, displacedRegion, lowPass: band.sigma, smoothShift };
 }
