@@ -96,63 +96,72 @@ async function survey(outdir: string, only: readonly string[]): Promise<Row[]> {
     const folder = join(outdir, s.name);
     const written = await writeSequence(folder, s.spec);
     await writeFile(join(outdir, `${s.name}.truth.json`), JSON.stringify({ scenario: s.name, kind: s.kind, description: s.description, truth: s.truth, frames: framesTruth(s.spec), spec: { ...s.spec, frames: undefined } }, null, 2) + '\n');
-    const started = performance.now();
-    let report: Report | null = null;
-    let error: string | null = null;
-    try {
-      const result = await runCheck(folder, { maxSide: defaultMaxSide, threads: commandLineThreads(), cache: null });
-      report = judge(result.analysis, defaultBudget);
-      await writeFile(join(outdir, `${s.name}.report.json`), JSON.stringify(report, null, 2) + '\n');
-    } catch (err) {
-      error = (err as Error).message;
+    // As a user runs it (default options); a set shot in rows also with --all-pairs, its own way.
+    const pitches = s.spec.frames.map((f) => f.pitchDeg);
+    const variants = Math.max(...pitches) - Math.min(...pitches) > 20 ? [false, true] : [false];
+    for (const allPairs of variants) {
+      const name = allPairs ? `${s.name} --all-pairs` : s.name;
+      const started = performance.now();
+      let report: Report | null = null;
+      let error: string | null = null;
+      try {
+        const result = await runCheck(folder, { maxSide: defaultMaxSide, threads: commandLineThreads(), cache: null, allPairs });
+        report = judge(result.analysis, defaultBudget);
+        await writeFile(join(outdir, `${s.name}${allPairs ? '.all-pairs' : ''}.report.json`), JSON.stringify(report, null, 2) + '\n');
+      } catch (err) {
+        error = (err as Error).message;
+      }
+      const checkS = (performance.now() - started) / 1000;
+      rows.push(compare(s, name, report, error, written.frames[0].focalPx, written.elapsedMs / 1000, checkS));
+      process.stdout.write(formatRow(rows[rows.length - 1], s.truth.verdict) + '\n');
     }
-    const checkS = (performance.now() - started) / 1000;
-    const flags = report ? flagsOf(report) : [];
-    const used = new Set<number>();
-    let caught = 0;
-    const missed: string[] = [];
-    for (const e of s.truth.findings) {
-      const k = flags.findIndex((f, i) => !used.has(i) && matches(e, f));
-      if (k >= 0) {
-        caught++;
-        used.add(k);
-        // Further flags of the same finding (the same code on the same place again) are not new alarms.
-        flags.forEach((f, i) => {
-          if (matches(e, f)) used.add(i);
-        });
-      } else missed.push(describeExpected(e));
-    }
-    const falseAlarms = flags.filter((_, i) => !used.has(i)).map((f) => `${f.code} ${f.at}`);
-    const skipped = new Map((report?.skipped ?? []).map((k) => [k.file, k.code]));
-    const inFrames = new Set((report?.frames ?? []).map((f) => f.file));
-    const setApart = s.truth.setApart.map((a) => {
-      const got = skipped.get(a.file);
-      const ok = !inFrames.has(a.file) && (a.code === null || got === a.code);
-      return `${a.file}: ${got ?? (inFrames.has(a.file) ? 'taken as a frame' : 'absent')}${ok ? '' : ' (expected ' + (a.code ?? 'set apart') + ')'}`;
-    });
-    const g = report?.geometry;
-    const geometry = g
-      ? `f ${g.focalPx.toFixed(0)} px (${g.focalFrom}; truth ${written.frames[0].focalPx.toFixed(0)}), sweep ${g.horizontalDeg.toFixed(0)} deg, rms ${g.rmsPx.toFixed(1)} px${g.closure ? `, misclosure ${g.closure.misclosureDeg?.toFixed(2) ?? '-'} deg` : ''}${g.unplaced.length ? `, unplaced ${g.unplaced.length}` : ''}`
-      : 'no geometry';
-    rows.push({
-      scenario: s.name,
-      kind: s.kind,
-      expected: s.truth.findings.map(describeExpected),
-      flagged: flags.map((f) => `${f.code} ${f.at}`),
-      verdict: report ? report.verdict : 'crash',
-      caught,
-      missed,
-      falseAlarms,
-      setApart,
-      geometry,
-      renderS: written.elapsedMs / 1000,
-      checkS,
-      error,
-    });
-    const r = rows[rows.length - 1];
-    process.stdout.write(formatRow(r, s.truth.verdict) + '\n');
   }
   return rows;
+}
+
+function compare(s: Scenario, name: string, report: Report | null, error: string | null, focalPx: number, renderS: number, checkS: number): Row {
+  const flags = report ? flagsOf(report) : [];
+  const used = new Set<number>();
+  let caught = 0;
+  const missed: string[] = [];
+  for (const e of s.truth.findings) {
+    const k = flags.findIndex((f, i) => !used.has(i) && matches(e, f));
+    if (k >= 0) {
+      caught++;
+      used.add(k);
+      // Further flags of the same finding (the same code on the same place again) are not new alarms.
+      flags.forEach((f, i) => {
+        if (matches(e, f)) used.add(i);
+      });
+    } else missed.push(describeExpected(e));
+  }
+  const falseAlarms = flags.filter((_, i) => !used.has(i)).map((f) => `${f.code} ${f.at}`);
+  const skipped = new Map((report?.skipped ?? []).map((k) => [k.file, k.code]));
+  const inFrames = new Set((report?.frames ?? []).map((f) => f.file));
+  const setApart = s.truth.setApart.map((a) => {
+    const got = skipped.get(a.file);
+    const ok = !inFrames.has(a.file) && (a.code === null || got === a.code);
+    return `${a.file}: ${got ?? (inFrames.has(a.file) ? 'taken as a frame' : 'absent')}${ok ? '' : ' (expected ' + (a.code ?? 'set apart') + ')'}`;
+  });
+  const g = report?.geometry;
+  const geometry = g
+    ? `f ${g.focalPx.toFixed(0)} px (${g.focalFrom}; truth ${focalPx.toFixed(0)}), sweep ${g.horizontalDeg.toFixed(0)} deg, rms ${g.rmsPx.toFixed(1)} px${g.closure ? `, misclosure ${g.closure.misclosureDeg?.toFixed(2) ?? '-'} deg` : ''}${g.unplaced.length ? `, unplaced ${g.unplaced.length}` : ''}`
+    : 'no geometry';
+  return {
+    scenario: name,
+    kind: s.kind,
+    expected: s.truth.findings.map(describeExpected),
+    flagged: flags.map((f) => `${f.code} ${f.at}`),
+    verdict: report ? report.verdict : 'crash',
+    caught,
+    missed,
+    falseAlarms,
+    setApart,
+    geometry,
+    renderS,
+    checkS,
+    error,
+  };
 }
 
 function formatRow(r: Row, wantVerdict: string | null): string {
