@@ -157,6 +157,13 @@ describe('photo-wall sequences: files and truth', () => {
     expect(await exifr.parse(join(folder, 'stray.jpg'))).toBeUndefined();
     expect(written.frames[0].focalPx).toBeCloseTo((28 / 36) * 300, 9);
     await expect(writeSequence(folder, s)).rejects.toThrow(/Expected an empty folder/);
+    // Seeded: the same spec gives the same bytes (noise included).
+    const again = join(tempDir(), 'again');
+    await writeSequence(again, { ...s, noise: { read: 0.004, gain: 0.001 } });
+    const third = join(tempDir(), 'third');
+    await writeSequence(third, { ...s, noise: { read: 0.004, gain: 0.001 } });
+    expect(Buffer.compare(await readFile(join(again, 'IMG_0002.jpg')), await readFile(join(third, 'IMG_0002.jpg')))).toBe(0);
+    expect(Buffer.compare(await readFile(join(again, 'IMG_0002.jpg')), await readFile(join(folder, 'IMG_0002.jpg')))).not.toBe(0);
   }, 30_000);
 
   it('catalogues scenarios whose truth matches their geometry', () => {

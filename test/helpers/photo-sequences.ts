@@ -616,12 +616,12 @@ export const mixedScene: SceneSpec = {
   floor: { photo: 'forest', magnification: 2 },
 };
 
-/** Two walls of soft content only (fog and water under sky; wood grain magnified under fog), four textured. */
+/** Two walls of soft content only (a pier in fog under sky; wood grain magnified under fog), four textured. */
 export const softScene: SceneSpec = {
   halfHeight: 1,
   walls: [
     [{ photo: 'meadow' }, { photo: 'facade' }],
-    [{ photo: 'fog-pier' }, { photo: 'sky', offsetY: -1 }],
+    [{ photo: 'fog-pier', magnification: 1.6, offsetY: 1 }, { photo: 'sky' }],
     [{ photo: 'forest' }, { photo: 'dune' }],
     [{ photo: 'boats' }, { photo: 'sky', offsetX: 1, offsetY: 1 }],
     [{ photo: 'wood', magnification: 2.5 }, { photo: 'fog-pier', magnification: 2, offsetY: -1 }],
