@@ -17,7 +17,38 @@ import type { Report } from '../src/core/report.js';
 import { judge } from '../src/core/verdicts.js';
 import { commandLineThreads, defaultMaxSide, runCheck } from '../src/main/check.js';
 import type { ExpectedFinding, Scenario } from '../test/helpers/photo-sequences.js';
-import { framesTruth, scenarios, writeSequence } from '../test/helpers/photo-sequences.js';
+import type { FrameTruth, SequenceSpec } from '../test/helpers/photo-sequences.js';
+import { framesTruth, pixelMapper, scenarios, writeSequence } from '../test/helpers/photo-sequences.js';
+
+/**
+ * How far the check's registered homographies land from the truth, full-resolution px: the worst
+ * point of a 9 x 9 grid of a's pixels that fall inside b, per pair; median and worst over pairs.
+ * With lens distortion no homography is exact, so this includes the lens there.
+ */
+function homographyErrors(report: Report, spec: SequenceSpec, frames: readonly FrameTruth[]): string {
+  const byFile = new Map(frames.map((f) => [f.file, f]));
+  const errs: number[] = [];
+  for (const p of report.pairs) {
+    const a = byFile.get(p.a), b = byFile.get(p.b);
+    if (!p.homography || !a || !b) continue;
+    const h = p.homography;
+    const truth = pixelMapper(spec, a, b);
+    let worst = 0;
+    for (let j = 0; j < 9; j++) {
+      for (let i = 0; i < 9; i++) {
+        const x = ((i + 0.5) / 9) * spec.width - 0.5, y = ((j + 0.5) / 9) * spec.height - 0.5;
+        const t = truth(x, y);
+        if (!t || t[0] < 0 || t[1] < 0 || t[0] > spec.width - 1 || t[1] > spec.height - 1) continue;
+        const w = h[6] * x + h[7] * y + h[8];
+        worst = Math.max(worst, Math.hypot((h[0] * x + h[1] * y + h[2]) / w - t[0], (h[3] * x + h[4] * y + h[5]) / w - t[1]));
+      }
+    }
+    errs.push(worst);
+  }
+  if (errs.length === 0) return 'no registered pair';
+  errs.sort((x, y) => x - y);
+  return `registered ${errs.length} pairs, error vs truth median ${errs[errs.length >> 1].toFixed(2)} px, worst ${errs[errs.length - 1].toFixed(2)} px`;
+}
 
 interface Flag {
   readonly code: string;
@@ -112,7 +143,8 @@ async function survey(outdir: string, only: readonly string[]): Promise<Row[]> {
         error = (err as Error).message;
       }
       const checkS = (performance.now() - started) / 1000;
-      rows.push(compare(s, name, report, error, written.frames[0].focalPx, written.elapsedMs / 1000, checkS));
+      const row = compare(s, name, report, error, written.frames[0].focalPx, written.elapsedMs / 1000, checkS);
+      rows.push(report ? { ...row, geometry: `${row.geometry}; ${homographyErrors(report, s.spec, written.frames)}` } : row);
       process.stdout.write(formatRow(rows[rows.length - 1], s.truth.verdict) + '\n');
     }
   }

@@ -23,7 +23,7 @@ import { externalFixture } from './images.js';
 // ---------------------------------------------------------------------------------------------
 // Photographs
 
-export const photoNames = ['facade', 'boats', 'fog-pier', 'sky', 'forest', 'meadow', 'dune', 'wood'] as const;
+export const photoNames = ['facade', 'boats', 'fog-pier', 'sky', 'forest', 'meadow', 'dune', 'wood', 'peaks', 'river', 'dandelions', 'dock', 'storm', 'grass'] as const;
 export type PhotoName = (typeof photoNames)[number];
 
 /** A photograph as decoded: 8-bit sRGB, 3 channels interleaved. */
@@ -601,34 +601,38 @@ export interface Scenario {
   readonly truth: ScenarioTruth;
 }
 
-/** Six walls of two panels each, every photograph on at least one, some magnified 1.5-2.5x. */
+/**
+ * Six walls of two panels each, a ceiling and a floor: fourteen photographs, each used once, so that
+ * no two places of the scene share content (a photo shown twice, even at another scale, gives
+ * frames that match where they do not overlap).
+ */
 export const mixedScene: SceneSpec = {
   halfHeight: 1,
   walls: [
     [{ photo: 'meadow' }, { photo: 'facade' }],
-    [{ photo: 'boats' }, { photo: 'sky', offsetY: -1 }],
+    [{ photo: 'boats' }, { photo: 'storm' }],
     [{ photo: 'forest' }, { photo: 'dune' }],
-    [{ photo: 'wood', magnification: 2 }, { photo: 'boats', magnification: 1.5, offsetX: 1, offsetY: -1 }],
-    [{ photo: 'fog-pier', magnification: 1.8, offsetY: 1 }, { photo: 'facade', magnification: 1.5, offsetX: 0.5, offsetY: 0.5 }],
-    [{ photo: 'dune', offsetX: -1 }, { photo: 'forest', magnification: 1.5, offsetY: -1 }],
+    [{ photo: 'wood', magnification: 2 }, { photo: 'peaks' }],
+    [{ photo: 'fog-pier', magnification: 1.8, offsetY: 1 }, { photo: 'dandelions' }],
+    [{ photo: 'river' }, { photo: 'dock' }],
   ],
   ceiling: { photo: 'sky' },
-  floor: { photo: 'forest', magnification: 2 },
+  floor: { photo: 'grass' },
 };
 
-/** Two walls of soft content only (a pier in fog under sky; wood grain magnified under fog), four textured. */
+/** Two walls of soft content only (a pier in fog under sky; wood grain magnified under storm clouds), four textured; every photograph once. */
 export const softScene: SceneSpec = {
   halfHeight: 1,
   walls: [
     [{ photo: 'meadow' }, { photo: 'facade' }],
     [{ photo: 'fog-pier', magnification: 1.6, offsetY: 1 }, { photo: 'sky' }],
     [{ photo: 'forest' }, { photo: 'dune' }],
-    [{ photo: 'boats' }, { photo: 'sky', offsetX: 1, offsetY: 1 }],
-    [{ photo: 'wood', magnification: 2.5 }, { photo: 'fog-pier', magnification: 2, offsetY: -1 }],
-    [{ photo: 'dune', offsetX: -1 }, { photo: 'forest', magnification: 1.5, offsetY: -1 }],
+    [{ photo: 'boats' }, { photo: 'peaks' }],
+    [{ photo: 'wood', magnification: 2.5 }, { photo: 'storm', magnification: 1.5, offsetY: -1 }],
+    [{ photo: 'river' }, { photo: 'dandelions' }],
   ],
-  ceiling: { photo: 'sky' },
-  floor: { photo: 'wood', magnification: 3 },
+  ceiling: { photo: 'dock' },
+  floor: { photo: 'grass' },
 };
 
 const mildNoise = { read: 0.001, gain: 0.0002 } as const;
