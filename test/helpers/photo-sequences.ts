@@ -9,6 +9,10 @@
  * Newton steps) -> ray -> hit on the prism -> bilinear sample in linear light (sRGB transfer,
  * IEC 61966-2-1) -> 2x2 supersampling. Then motion blur, vignetting, exposure, seeded sensor noise,
  * clipping, sRGB encoding, JPEG with EXIF (CIPA DC-008 tags through sharp).
+ *
+ * Poses follow src/core/camera.ts (yaw to the right, pitch up, roll clockwise seen from behind;
+ * world y up), so the truth's homography of a pair without distortion is rotationHomography() there.
+ * `scenarios()` is the catalogue; `npx tsx scripts/photo-survey.ts <outdir>` runs the check on it.
  */
 import { mkdir, readdir, writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
@@ -604,17 +608,18 @@ export interface Scenario {
 /**
  * Six walls of two panels each, a ceiling and a floor: fourteen photographs, each used once, so that
  * no two places of the scene share content (a photo shown twice, even at another scale, gives
- * frames that match where they do not overlap).
+ * frames that match where they do not overlap). Soft ones (storm, wood, fog, dune) sit beside or
+ * below textured ones, so that every neighbour pair of a row at pitch -20, 0 or +20 sees some texture.
  */
 export const mixedScene: SceneSpec = {
   halfHeight: 1,
   walls: [
     [{ photo: 'meadow' }, { photo: 'facade' }],
-    [{ photo: 'boats' }, { photo: 'storm' }],
-    [{ photo: 'forest' }, { photo: 'dune' }],
-    [{ photo: 'wood', magnification: 2 }, { photo: 'peaks' }],
-    [{ photo: 'fog-pier', magnification: 1.8, offsetY: 1 }, { photo: 'dandelions' }],
-    [{ photo: 'river' }, { photo: 'dock' }],
+    [{ photo: 'storm' }, { photo: 'boats' }],
+    [{ photo: 'forest' }, { photo: 'peaks' }],
+    [{ photo: 'wood', magnification: 2 }, { photo: 'dune' }],
+    [{ photo: 'fog-pier', magnification: 1.8, offsetY: 1 }, { photo: 'dock' }],
+    [{ photo: 'river' }, { photo: 'dandelions' }],
   ],
   ceiling: { photo: 'sky' },
   floor: { photo: 'grass' },
