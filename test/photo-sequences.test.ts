@@ -133,8 +133,8 @@ describe('photo-wall sequences against OpenCV', () => {
     // Undistorted by OpenCV, the frame is the ideal one (measured 0.12 px at most at 960 x 640).
     expect(back.inliers).toBeGreaterThan(100);
     expect(maxDeviation(W, H, viaH(back.h), identity, inner)).toBeLessThan(0.5);
-    // Not undistorted, no homography brings it there: barrel distortion of this size moves the
-    // corners by tens of pixels (measured 12 px at 960 x 640).
+    // Not undistorted, no homography brings it there: the best one OpenCV finds is still 12 px off
+    // somewhere in the frame at 960 x 640 (measured), so the test can tell the two apart.
     expect(maxDeviation(W, H, viaH(raw.h), identity, inner)).toBeGreaterThan(5);
   }, 30_000);
 });
