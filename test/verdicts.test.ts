@@ -83,6 +83,33 @@ describe('frame and station verdicts', () => {
     expect(drifted[0].advice[0]).toMatch(/ISO 400 instead of 100/);
   });
 
+  it('gives an exposure jump one flag: the shutter change behind it is not also settings drift, another aperture still is', () => {
+    const bright = { ...settings, exposureTime: 1 / 100 };
+    const frames = ['1', '2', '3', '4'].map((f) => frame(f, f === '3' ? { settings: bright } : {}));
+    const pairs = [pair('1', '2'), pair('2', '3', { evDiff: 1.3 }), pair('3', '4', { evDiff: -1.3 })];
+    const r = judge(sequence(pairs, frames), defaultBudget);
+    expect(r.pairs.map((p) => p.reasons)).toEqual([[], ['exposure-jump'], ['exposure-jump']]);
+    expect(r.frames.flatMap((f) => f.flags)).toEqual([]);
+    const alsoAperture = ['1', '2', '3', '4'].map((f) => frame(f, f === '3' ? { settings: { ...bright, fNumber: 4 } } : {}));
+    const r2 = judge(sequence(pairs, alsoAperture), defaultBudget);
+    const drift = r2.frames.filter((f) => f.flags.includes('settings-drift'));
+    expect(drift.map((f) => f.file)).toEqual(['3']);
+    expect(drift[0].advice[0]).toMatch(/aperture f\/4 instead of f\/8/);
+    expect(drift[0].advice[0]).not.toMatch(/shutter/);
+  });
+
+  it('lists copies and files from outside the sequence without making the card weak; an unreadable frame does', () => {
+    const base = sequence([pair('1', '2'), pair('2', '3')]);
+    const listed = judge({ ...base, skipped: [
+      { file: 'copy of 2.jpg', code: 'duplicate', reason: 'the same picture as 2: left out' },
+      { file: 'phone.jpg', code: 'not-in-sequence', reason: 'another camera' },
+    ] }, defaultBudget);
+    expect(listed.verdict).toBe('ok');
+    expect(listed.skipped).toHaveLength(2);
+    const broken = judge({ ...base, skipped: [{ file: '4.jpg', code: 'unreadable', reason: 'damaged or cut short' }] }, defaultBudget);
+    expect(broken.verdict).toBe('weak');
+  });
+
   it('flags an incomplete bracket and a drifted bracket frame', () => {
     const frames = ['1a', '1b', '1c', '2a', '2b', '3a', '3b', '3c'].map((f) => frame(f));
     const analysis: Analysis = {

@@ -30,6 +30,13 @@ const shutter = (t: number): string => (t >= 0.3 ? `${Number(t.toPrecision(2))} 
 /** The files left out for a reason worth a look: all skipped but the second file of a RAW+JPEG shot. */
 export const notChecked = (skipped: readonly SkippedFile[]): SkippedFile[] => skipped.filter((s) => s.code !== 'same-shot');
 
+/**
+ * Left-out files that say something may be missing from the sequence (unreadable, damaged, no
+ * preview): these make a card weak. A second copy of a frame and a file that is not part of the
+ * sequence (another camera, size or shape) are listed, but the sequence itself lacks nothing.
+ */
+export const missingFromSequence = (skipped: readonly SkippedFile[]): SkippedFile[] => notChecked(skipped).filter((s) => s.code !== 'duplicate' && s.code !== 'not-in-sequence');
+
 function mode<T>(xs: T[]): T | null {
   const counts = new Map<T, number>();
   for (const x of xs) counts.set(x, (counts.get(x) ?? 0) + 1);
@@ -109,12 +116,17 @@ function judgeStationPair(p: PairMeasure, budget: MatchBudget, sweepDeg: number 
   return f.done();
 }
 
-function settingsDrift(ref: FrameSettings, modal: ModalSettings): string[] {
+/**
+ * Settings of a station's reference frame that differ from the sequence's. With `exposureJumped`
+ * (a pair into the station already carries an exposure jump) shutter and ISO are left out: they are
+ * how the jump came about, and one cause gets one flag.
+ */
+function settingsDrift(ref: FrameSettings, modal: ModalSettings, exposureJumped = false): string[] {
   const out: string[] = [];
   const stops = (a: number, b: number): number => Math.abs(Math.log2(a / b));
   if (ref.fNumber !== null && modal.fNumber !== null && stops(ref.fNumber * ref.fNumber, modal.fNumber * modal.fNumber) > 0.3) out.push(`aperture f/${ref.fNumber} instead of f/${modal.fNumber}`);
-  if (ref.iso !== null && modal.iso !== null && stops(ref.iso, modal.iso) > 0.3) out.push(`ISO ${ref.iso} instead of ${modal.iso}`);
-  if (ref.exposureTime !== null && modal.exposureTime !== null && stops(ref.exposureTime, modal.exposureTime) > 0.3) out.push(`shutter ${shutter(ref.exposureTime)} instead of ${shutter(modal.exposureTime)}`);
+  if (!exposureJumped && ref.iso !== null && modal.iso !== null && stops(ref.iso, modal.iso) > 0.3) out.push(`ISO ${ref.iso} instead of ${modal.iso}`);
+  if (!exposureJumped && ref.exposureTime !== null && modal.exposureTime !== null && stops(ref.exposureTime, modal.exposureTime) > 0.3) out.push(`shutter ${shutter(ref.exposureTime)} instead of ${shutter(modal.exposureTime)}`);
   if (ref.focalLength !== null && modal.focalLength !== null && Math.abs(ref.focalLength - modal.focalLength) > 0.02 * modal.focalLength) out.push(`focal length ${ref.focalLength} mm instead of ${modal.focalLength} mm`);
   if (ref.whiteBalance !== null && modal.whiteBalance !== null && ref.whiteBalance !== modal.whiteBalance) out.push(`white balance ${ref.whiteBalance} instead of ${modal.whiteBalance}`);
   return out;
@@ -175,10 +187,12 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
       focalLength: mode(refs.map((s) => s.focalLength).filter((v): v is number => v !== null)),
       whiteBalance: mode(refs.map((s) => s.whiteBalance).filter((v): v is string => v !== null)),
     };
+    // Reference frames on a pair between stations whose brightness jumped beyond the budget.
+    const jumped = new Set(analysis.pairs.filter((p) => p.kind !== 'bracket' && p.kind !== 'other' && p.evDiff !== null && Math.abs(p.evDiff) > budget.maxEvDiff).flatMap((p) => [p.a, p.b]));
     analysis.stations.forEach((s, i) => {
       const ref = settingsOf.get(s.reference);
       if (!ref) return;
-      const drift = settingsDrift(ref, modalSettings);
+      const drift = settingsDrift(ref, modalSettings, jumped.has(s.reference));
       if (drift.length === 0) return;
       const advice = `${drift.join(', ')} at ${s.reference} (station ${s.index + 1}): lock these settings for the whole sequence`;
       stationFindings[i].add('settings-drift', 'weak', advice);
@@ -272,8 +286,8 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
   const problems = [...pairs.map((p) => p.verdict), ...frames.map((f) => f.verdict)];
   return {
     schema: reportSchema,
-    // A file left out is worth a look, but not the second file of a RAW+JPEG shot.
-    verdict: worst(...verdicts, notChecked(analysis.skipped).length || folderProblems.length ? 'weak' : 'ok'),
+    // A file left out that the sequence may miss is worth a look; a RAW+JPEG twin, a copy or a stray is not.
+    verdict: worst(...verdicts, missingFromSequence(analysis.skipped).length || folderProblems.length ? 'weak' : 'ok'),
     folder: analysis.folder,
     budget,
     sweepDeg: analysis.sweepDeg,
