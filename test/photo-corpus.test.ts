@@ -186,6 +186,7 @@ describe('fault-ae-jump: frame 5 comes out +1.3 EV in auto exposure', () => {
   it('flags the closure pair low-overlap, which the truth confirms: the eighth step is shorter', () => {
     // Eight frames 44.6 degrees apart come round: IMG_0008 to IMG_0001 is 47.8 degrees, whose exact
     // overlap is 28.7 %, under the budget's 30 % for a neighbour pair and over its 20 % reshoot line.
+    expect(c.scenario.truth.findings).toContainEqual({ code: 'low-overlap', pair: ['IMG_0008.jpg', 'IMG_0001.jpg'] });
     const f = c.scenario.spec.frames;
     const exact = trueOverlap(c.scenario.spec, f[7], f[0]);
     expect(exact).toBeLessThan(defaultBudget.weakOverlap);
