@@ -526,7 +526,10 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
         for (let y = x + 2; y < refs.length; y++) if (!known.has(`${refs[x]}:${refs[y]}`) && !known.has(`${refs[y]}:${refs[x]}`)) others.push([refs[x], refs[y]]);
       const chosen = screenPairs(samples, others);
       for (const [i, j] of chosen) planned.push({ i, j, kind: 'other' });
-      await Promise.all(chosen.map(([i, j]) => analysePair(i, j, false)));
+      // Without --all-pairs the frames were let go: a few pairs at a time, so that a frame decoded
+      // again is let go once its pairs are done instead of waiting for every pair asked for.
+      if (keepAll) await Promise.all(chosen.map(([i, j]) => analysePair(i, j, false)));
+      else await inOrder(chosen, Math.max(2, pool.threads), ([i, j]) => analysePair(i, j, false), signal);
     }
     const closurePair = planned.find((p) => p.kind === 'closure') ?? null;
     let geometry = geometryOf(planned.filter((p) => p.kind === 'neighbour' || p.kind === 'other'), closurePair);
