@@ -5,7 +5,6 @@ import { invert, multiply, normalise, project } from '../core/homography.js';
 import { predictPairHomography, toAnalysisPixels } from '../core/guided-match.js';
 import { shootingOrder } from '../core/natural-order.js';
 import { overlapRegions } from '../core/overlap.js';
-import { defaultBudget } from '../core/report.js';
 import type { Analysis, FrameMeasure, PairKind, PairMeasure, SequenceGeometry, SkippedFile, StationMeasure } from '../core/report.js';
 import { analysisToFull } from '../core/resolution.js';
 import type { StationGroup } from '../core/stations.js';
@@ -539,17 +538,14 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
     /**
      * Whether the neighbour chain alone cannot place the set: a set shot in rows reaches the next
      * row through one step that may see little of the last frame, and only pairs across the rows
-     * join them. Told from the pairs and their geometry: a neighbour pair that found no model or
-     * little overlap while the others did, or a chain that has come round a full turn before its
-     * last station.
+     * join them. Told from the geometry of the pairs: the matched neighbour pairs have turned the
+     * camera a full turn before the last station (a single turn, closing or not, turns less than
+     * that before its last pair; a failed or narrow pair alone says nothing of rows: a single turn
+     * may have a gap).
      */
     function shotInRows(): boolean {
       if (stations.length < 4) return false;
       const neighbours = planned.filter((p) => p.kind === 'neighbour');
-      const results = neighbours.map((p) => pairResults.get(`${p.i}:${p.j}`));
-      const matched = results.filter((r) => r?.homography && r.overlap !== null && r.overlap >= defaultBudget.reshootOverlap).length;
-      if (matched < 2) return false;
-      if (matched < neighbours.length) return true;
       const chain = geometryOf(neighbours, null);
       if (!chain) return false;
       const sizes = stations.map((st) => ({ width: frames[st.reference]!.summary.fullWidth, height: frames[st.reference]!.summary.fullHeight }));
