@@ -129,9 +129,11 @@ describe('the same turn without its last station', () => {
 describe('a set shot in two rows', () => {
   const options = { clean: true, width: 1200, height: 800, seed: 9, stations: 12, rows: [-12, 8] } as const;
 
+  // Default options: the check sees from the neighbour chain that the set was shot in rows and
+  // screens the pairs across them itself, as --all-pairs would.
   it('is seen as two rows of twelve, with nothing flagged: the step between rows is no neighbour pair', async () => {
     const demo = await writeDemoShoot(join(tempDir(), 'rows'), options);
-    const report = judge((await runCheck(demo.folder, { pool, allPairs: true })).analysis, defaultBudget);
+    const report = judge((await runCheck(demo.folder, { pool })).analysis, defaultBudget);
     const g = report.geometry!;
     expect(g.rows.map((r) => r.stations.length)).toEqual([12, 12]);
     expect(Math.abs(g.rows[0].pitchDeg - -12)).toBeLessThan(1.5);
@@ -150,7 +152,7 @@ describe('a set shot in two rows', () => {
     const demo = await writeDemoShoot(join(tempDir(), 'rows-hole'), options);
     const gone = demo.truth.stations[20];
     for (const f of gone.frames) rmSync(join(demo.folder, f));
-    const report = judge((await runCheck(demo.folder, { pool, allPairs: true })).analysis, defaultBudget);
+    const report = judge((await runCheck(demo.folder, { pool })).analysis, defaultBudget);
     const holes = report.holes ?? [];
     expect(holes).toHaveLength(1);
     const yaw0 = reference(demo.truth, 0).yawDeg;

@@ -254,6 +254,8 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
     /** Overlap predicted from the turn, for neighbour pairs that found no model even when guided. */
     const predictedOverlaps = new Map<string, number>();
     const need = new Int32Array(n);
+    /** A small sample of each frame's keypoints, kept for screening pairs after the frame is let go. */
+    const samples: FrameSample[] = new Array(n);
     const pairTasks: Promise<void>[] = [];
     const pairSlot = slots(Math.max(2, pool.threads));
     let framesDone = 0, pairsDone = 0, pairsAsked = 0;
@@ -447,6 +449,7 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
           keypoints: data.features.keypoints.count, sharpness: data.sharpness, fingerprint: data.fingerprint,
         };
         frames[k] = { file: o.scanned, exif: o.exif, summary, data };
+        samples[k] = sampleFeatures(data.features);
         // The decoded size is the one that counts (a header may say another, a RAW file says none).
         const stray = strayReason({ width: data.fullWidth, height: data.fullHeight, make: o.exif.settings.make, model: o.exif.settings.model }, look);
         const copyOf = seenPixels.get(data.fingerprint);
@@ -512,23 +515,48 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
       const r = pairResults.get(`${closure.i}:${closure.j}`)!;
       if (r.homography || (before !== null && before.horizontalDeg >= closingTurnDeg)) planned.push(closure);
     }
-    if (options.allPairs) {
-      // Every other pair of reference frames, screened cheaply on a sample of keypoints first.
+    if (options.allPairs || shotInRows()) {
+      // Every other pair of reference frames, screened cheaply on a sample of keypoints first (the
+      // samples were kept when the frames were decoded: the frames themselves may be let go).
       const refs = stations.map((s) => s.reference);
       const known = new Set(planned.map((p) => `${p.i}:${p.j}`));
-      const samples: FrameSample[] = [];
-      for (const k of refs) samples[k] = sampleFeatures(frames[k]!.data!.features);
       const others: [number, number][] = [];
       for (let x = 0; x < refs.length; x++)
-        for (let y = x + 2; y < refs.length; y++) if (!known.has(`${refs[x]}:${refs[y]}`)) others.push([refs[x], refs[y]]);
+        for (let y = x + 2; y < refs.length; y++) if (!known.has(`${refs[x]}:${refs[y]}`) && !known.has(`${refs[y]}:${refs[x]}`)) others.push([refs[x], refs[y]]);
       const chosen = screenPairs(samples, others);
       for (const [i, j] of chosen) planned.push({ i, j, kind: 'other' });
-      await Promise.all(chosen.map(([i, j]) => analysePair(i, j, false)));
+      // Without --all-pairs the frames were let go: a few pairs at a time, so that a frame decoded
+      // again is let go once its pairs are done instead of waiting for every pair asked for.
+      if (keepAll) await Promise.all(chosen.map(([i, j]) => analysePair(i, j, false)));
+      else await inOrder(chosen, Math.max(2, pool.threads), ([i, j]) => analysePair(i, j, false), signal);
     }
     const closurePair = planned.find((p) => p.kind === 'closure') ?? null;
     let geometry = geometryOf(planned.filter((p) => p.kind === 'neighbour' || p.kind === 'other'), closurePair);
     if (geometry && geometry.rows.length >= 2) geometry = await byRows(geometry);
     return assemble(geometry);
+
+    /**
+     * Whether the neighbour chain alone cannot place the set: a set shot in rows reaches the next
+     * row through one step that may see little of the last frame, and only pairs across the rows
+     * join them. Told from the geometry of the pairs: the matched neighbour pairs have turned the
+     * camera a full turn before the last station (a single turn, closing or not, turns less than
+     * that before its last pair; a failed or narrow pair alone says nothing of rows: a single turn
+     * may have a gap).
+     */
+    function shotInRows(): boolean {
+      if (stations.length < 4) return false;
+      const neighbours = planned.filter((p) => p.kind === 'neighbour');
+      const chain = geometryOf(neighbours, null);
+      if (!chain) return false;
+      const sizes = stations.map((st) => ({ width: frames[st.reference]!.summary.fullWidth, height: frames[st.reference]!.summary.fullHeight }));
+      let turned = 0;
+      for (const p of neighbours.slice(0, -1)) {
+        const m = fullPair(p.i, p.j);
+        const r = m && relativeRotation(m.h, chain.focalPx, sizes[stationOf[p.i]], sizes[stationOf[p.j]]);
+        if (r) turned += rotationAngleOf(r);
+      }
+      return turned >= 360;
+    }
 
     /**
      * Neighbour pairs without a model, tried once more where the turn between their stations is

@@ -109,7 +109,7 @@ function fitTiePoints(start: Homography, ax: Float64Array, ay: Float64Array, ref
   return { h, rms, count: keep.length, points };
 }
 
-/** Fewest compared blocks for the share that does not line up to mean anything. */
+/** Fewest compared blocks for the share that does not line up, or the blocks that moved, to mean anything. */
 const minMisfitBlocks = 40;
 
 /** Most tie points refined per pair. */
@@ -209,7 +209,9 @@ export function analysePair(a: FrameAnalysis, b: FrameAnalysis, options: PairOpt
     shared = sharedSharpness(a.image, b.image, homography!);
     if (options.overlapBlocks) {
       const m = findMovement(a.image, b.image, homography!);
-      moved = m.regions;
+      // Too few blocks compared say nothing about the share that differs, nor about where
+      // something moved: a narrow overlap (often between rows) stays unjudged rather than flagged.
+      moved = m.blocks >= minMisfitBlocks ? m.regions : null;
       misfit = m.blocks >= minMisfitBlocks ? m.misfit : null;
       parallax = m.blocks >= minMisfitBlocks ? m.parallax : null;
     }
