@@ -154,6 +154,49 @@ export function focalFromHomography(h: ArrayLike<number>, a: FrameSize, b: Frame
   return f;
 }
 
+/** Fewest tie points from which raysRotation takes a link's rotation. */
+const minRayPoints = 8;
+/**
+ * A chaining start rotation can be this far (degrees, rms over the tie points) from the pinhole
+ * rays it is taken from: barrel distortion of k1 = -0.3 at a 28 mm frame's corners bends a ray by
+ * about 4 degrees (Brown's model, r = 0.77); a pair matched on something else misses by far more.
+ * Our own threshold.
+ */
+const maxRayMissDeg = 10;
+
+/**
+ * R_j R_i^T from a link's tie points as pinhole rays (Kabsch: the rotation nearest to the sum of
+ * b a^T), or null with too few points or rays it does not bring together. Used where the
+ * homography is too far from a rotation to give one: over a wide field through a strongly
+ * distorting lens no homography is close to a rotation, though the tie points still are.
+ */
+export function raysRotation(l: RotationLink, f: number, sizes: readonly FrameSize[]): Rotation | null {
+  const count = Math.floor(l.points.length / 4);
+  if (count < minRayPoints) return null;
+  const a = sizes[l.i], b = sizes[l.j];
+  const ray = (x: number, y: number, s: FrameSize, out: Float64Array): void => {
+    const u = (x - (s.width - 1) / 2) / f, v = (y - (s.height - 1) / 2) / f, n = Math.sqrt(u * u + v * v + 1);
+    out[0] = u / n;
+    out[1] = v / n;
+    out[2] = 1 / n;
+  };
+  const ra = new Float64Array(3), rb = new Float64Array(3), m = new Float64Array(9);
+  for (let k = 0; k < count; k++) {
+    ray(l.points[4 * k], l.points[4 * k + 1], a, ra);
+    ray(l.points[4 * k + 2], l.points[4 * k + 3], b, rb);
+    for (let r = 0; r < 3; r++) for (let c = 0; c < 3; c++) m[3 * r + c] += rb[r] * ra[c];
+  }
+  const rot = nearestRotation(m);
+  let miss = 0;
+  for (let k = 0; k < count; k++) {
+    ray(l.points[4 * k], l.points[4 * k + 1], a, ra);
+    ray(l.points[4 * k + 2], l.points[4 * k + 3], b, rb);
+    const dot = rb[0] * (rot[0] * ra[0] + rot[1] * ra[1] + rot[2] * ra[2]) + rb[1] * (rot[3] * ra[0] + rot[4] * ra[1] + rot[5] * ra[2]) + rb[2] * (rot[6] * ra[0] + rot[7] * ra[1] + rot[8] * ra[2]);
+    miss += Math.acos(Math.max(-1, Math.min(1, dot))) ** 2;
+  }
+  return (Math.sqrt(miss / count) * 180) / Math.PI <= maxRayMissDeg ? rot : null;
+}
+
 /**
  * Rotations chained from station 0 along a breadth-first spanning tree of the links: null for
  * stations no chain of matched pairs reaches.
@@ -175,7 +218,7 @@ export function chainTree(stations: number, links: readonly RotationLink[], f: n
       const forward = l.i === s && out[l.j] === null;
       const backward = l.j === s && out[l.i] === null;
       if (!forward && !backward) continue;
-      const rel = relativeRotation(l.homography, f, sizes[l.i], sizes[l.j]);
+      const rel = relativeRotation(l.homography, f, sizes[l.i], sizes[l.j]) ?? raysRotation(l, f, sizes);
       if (!rel) continue;
       tree.push(l);
       // R_j = R_ij R_i, and R_i = R_ij^T R_j.
