@@ -126,6 +126,13 @@ function lowPass(src: Float32Array, dst: Float32Array, w: number, h: number, wid
     }
 }
 
+/** `src` low-passed by an almost-Gaussian of about `sigma` px; NaN where the window reaches past the frame or a NaN. */
+export function lowPassed(src: Float32Array, w: number, h: number, sigma: number): Float32Array {
+  const out = new Float32Array(w * h);
+  lowPass(src, out, w, h, boxWidths(sigma).widths, new Float32Array(w * h));
+  return out;
+}
+
 /**
  * Resamples b onto a's grid through `h` (a -> b) and low-passes both by the first step of
  * `lowPassSteps` at which their fine detail agrees over the pixels both see (unclipped in both);

@@ -10,7 +10,8 @@
  * is found (displacement-field.ts): a lens's radial distortion moves blocks by pixels to tens of
  * pixels, smoothly, while parallax breaks from the field where near and far things meet.
  */
-import { commonBand } from './common-band.js';
+import { commonBand, lowPassed } from './common-band.js';
+import type { LensPair, SmoothField } from './displacement-field.js';
 import { fieldAt, fitSmoothField } from './displacement-field.js';
 import type { GrayImage } from './image.js';
 
@@ -53,7 +54,7 @@ export interface MovementParams {
   readonly minDisplaced: number;
 }
 
-export const defaultMovementParams: MovementParams = { block: 16, minCorrelation: 0.4, flatSd: 3, texturedSd: 8, minBlocks: 3, fieldSearch: 6, fieldCorrelation: 0.7, search: 2, displacedSearch: 36, displacedCorrelation: 0.75, minDisplaced: 6 };
+export const defaultMovementParams: MovementParams = { block: 16, minCorrelation: 0.4, flatSd: 3, texturedSd: 8, minBlocks: 3, fieldSearch: 16, fieldCorrelation: 0.7, search: 2, displacedSearch: 36, displacedCorrelation: 0.75, minDisplaced: 6 };
 
 export interface Movement {
   /** Blocks compared (textured in at least one frame, inside both). */
@@ -92,9 +93,11 @@ export const maxMovedRegions = 5;
 export function findMovement(a: GrayImage, b: GrayImage, h: ArrayLike<number>, params: Partial<MovementParams> = {}): Movement {
   const p = { ...defaultMovementParams, ...params };
   const band = commonBand(a, b, h);
-  const A = band.a, B = band.b, use = band.use, w = band.width, ht = band.height;
+  const A = band.a, use = band.use, w = band.width, ht = band.height;
   const s = p.block, n = s * s;
   const cols = Math.floor(w / s), rows = Math.floor(ht / s);
+  // b on a's grid; replaced by b carried along the smooth field once that is known.
+  let B = band.b;
   const differs = new Uint8Array(cols * rows);
   const compared = new Uint8Array(cols * rows);
   const meanA = new Float64Array(cols * rows), ssA = new Float64Array(cols * rows), sdAll = new Float64Array(cols * rows);
@@ -103,32 +106,37 @@ export function findMovement(a: GrayImage, b: GrayImage, h: ArrayLike<number>, p
   // Correlation of a's block k at (x0, y0) with b's pixels shifted by whole pixels (dx, dy); the
   // standard deviation of b's pixels in sdOut[0]. NaN when a shifted pixel leaves b.
   const sdOut = new Float64Array(1);
+  // The band compare() works in: the common band, or a coarser one while the field is measured.
+  let PA = A, PB = B, PM = meanA, PS = ssA;
   const compare = (k: number, x0: number, y0: number, dx: number, dy: number): number => {
     const bx = x0 + dx, by = y0 + dy;
     if (bx < 0 || by < 0 || bx + s > w || by + s > ht) return NaN;
-    const ma = meanA[k];
+    const ma = PM[k];
     let sb = 0, sbb = 0, sab = 0;
     for (let v = 0; v < s; v++) {
       const oa = (y0 + v) * w + x0, ob = (by + v) * w + bx;
       for (let u = 0; u < s; u++) {
-        const vb = B[ob + u];
+        const vb = PB[ob + u];
         sb += vb;
         sbb += vb * vb;
-        sab += (A[oa + u] - ma) * vb;
+        sab += (PA[oa + u] - ma) * vb;
       }
     }
     if (sb !== sb) return NaN;
     const vbb = sbb - (sb * sb) / n;
     sdOut[0] = Math.sqrt(Math.max(0, vbb) / n);
-    return vbb > 0 && ssA[k] > 0 ? sab / Math.sqrt(ssA[k] * vbb) : 0;
+    return vbb > 0 && PS[k] > 0 ? sab / Math.sqrt(PS[k] * vbb) : 0;
   };
 
+  const coarseSigma = Math.max(2, 1.5 * band.sigma);
   // Pass 1: every textured block's displacement from where the homography puts it, to sub-pixel.
   const fx = new Float64Array(cols * rows), fy = new Float64Array(cols * rows), fdx = new Float64Array(cols * rows), fdy = new Float64Array(cols * rows);
   let fieldPoints = 0;
-  const R = p.fieldSearch;
+  // Search radius of a measurement: the field's own window at first, wider once the field
+  // predicts where to look (see the rounds below).
+  let R = p.fieldSearch;
   const z = new Float64Array(9);
-  const inField = new Uint8Array(cols * rows);
+  const inField = new Uint8Array(cols * rows), measurable = new Uint8Array(cols * rows);
   // A smooth field needs a few hundred points, not every block of a large overlap: on a large
   // frame every other block (a checkerboard) is measured.
   const sparse = cols * rows > 1200;
@@ -203,26 +211,91 @@ export function findMovement(a: GrayImage, b: GrayImage, h: ArrayLike<number>, p
       compared[k] = 1;
       blocks++;
       if (sda < p.flatSd || sdOut[0] < p.flatSd || (sparse && (r + c) % 2)) continue;
-      if (measure(k, x0, y0, 0, 0)) inField[k] = 1;
+      measurable[k] = 1;
     }
-  let field = fitSmoothField(fx, fy, fdx, fdy, fieldPoints);
-  // Further rounds: blocks the first window missed (the far corners of a distorted overlap shift
-  // the most, and faster than a cubic held constant past its points) are looked for around the
-  // field, and the field is fitted again to all, so that it reaches a little farther each round.
   const at = new Float64Array(2);
-  for (let round = 0; round < 3; round++) {
-    let added = 0;
-    for (let k = 0; k < compared.length; k++) {
-      if (!compared[k] || inField[k] || !(sdAll[k] >= p.flatSd) || (sparse && ((k % cols) + Math.floor(k / cols)) % 2)) continue;
-      const x0 = (k % cols) * s, y0 = Math.floor(k / cols) * s;
-      fieldAt(field, x0 + (s - 1) / 2, y0 + (s - 1) / 2, at);
-      if (Math.max(Math.abs(at[0]), Math.abs(at[1])) < 1 || !measure(k, x0, y0, Math.round(at[0]), Math.round(at[1]))) continue;
-      inField[k] = 1;
-      added++;
+  // One camera: both frames' centres, distortion measured on a's half diagonal. After b is
+  // carried along the first field the second measures what is left, with no lens shape of its own.
+  let lens: LensPair | null = { h, ax: (a.width - 1) / 2, ay: (a.height - 1) / 2, bx: (b.width - 1) / 2, by: (b.height - 1) / 2, rn: Math.hypot(a.width, a.height) / 2 };
+  const fitField = (): SmoothField => {
+    fieldPoints = 0;
+    inField.fill(0);
+    R = p.fieldSearch;
+    for (let k = 0; k < measurable.length; k++) if (measurable[k] && measure(k, (k % cols) * s, Math.floor(k / cols) * s, 0, 0)) inField[k] = 1;
+    let field = fitSmoothField(fx, fy, fdx, fdy, fieldPoints, 0.5, lens);
+    // Further rounds: blocks the first window missed (the far corners of a distorted overlap shift
+    // the most, and faster than a cubic held constant past its points) are looked for around the
+    // field, and the field is fitted again to all, so that it reaches a little farther each round.
+    // Past the points the field is held, not extrapolated, while the distortion keeps growing
+    // toward the frame's edge: a block there is looked for twice as far around the prediction.
+    R = p.fieldSearch;
+    for (let round = 0; round < 6; round++) {
+      let added = 0;
+      for (let k = 0; k < measurable.length; k++) {
+        if (!measurable[k] || inField[k]) continue;
+        const x0 = (k % cols) * s, y0 = Math.floor(k / cols) * s;
+        fieldAt(field, x0 + (s - 1) / 2, y0 + (s - 1) / 2, at);
+        if (Math.max(Math.abs(at[0]), Math.abs(at[1])) < 1 || !measure(k, x0, y0, Math.round(at[0]), Math.round(at[1]))) continue;
+        inField[k] = 1;
+        added++;
+      }
+      if (added === 0) break;
+      field = fitSmoothField(fx, fy, fdx, fdy, fieldPoints, 0.5, lens);
     }
-    if (added === 0) break;
-    field = fitSmoothField(fx, fy, fdx, fdy, fieldPoints);
+    return field;
+  };
+  // The field is measured in a coarser band than blocks are judged in: toward the edge of a
+  // distorted overlap one frame's content is shrunk against the other's, and a fine texture (a
+  // weave, grass, needles) no longer correlates in its finest band even where it lines up. A
+  // coarse band keeps the shift and loses only some precision, which the fit over hundreds of
+  // blocks restores.
+  const coarseA = lowPassed(A, w, ht, coarseSigma);
+  const coarseMean = new Float64Array(cols * rows), coarseSs = new Float64Array(cols * rows);
+  for (let k = 0; k < measurable.length; k++) {
+    if (!measurable[k]) continue;
+    const x0 = (k % cols) * s, y0 = Math.floor(k / cols) * s;
+    let m = 0, mm = 0;
+    for (let v = 0; v < s; v++)
+      for (let u = 0, o = (y0 + v) * w + x0; u < s; u++, o++) {
+        m += coarseA[o];
+        mm += coarseA[o] * coarseA[o];
+      }
+    if (m !== m) {
+      measurable[k] = 0;
+      continue;
+    }
+    coarseMean[k] = m / n;
+    coarseSs[k] = mm - (m * m) / n;
   }
+  [PA, PB, PM, PS] = [coarseA, lowPassed(B, w, ht, coarseSigma), coarseMean, coarseSs];
+  const first = fitField();
+  let field = first;
+  // A lens's distortion does not only shift a block: toward the frame's edge it also shrinks it
+  // against the other frame's middle (by 1 + 3 k1 r^2 along the radius, Brown's model: about 18 %
+  // at k1 = -0.15 near a 28 mm frame's side), and a block compared by shifting alone no longer
+  // correlates there. So b is carried along the field onto a's grid, which undoes the local scale
+  // as well as the shift, and what is left is measured and judged against a second field.
+  if (first.terms > 1) {
+    const carried = new Float32Array(w * ht);
+    for (let y = 0, o = 0; y < ht; y++)
+      for (let x = 0; x < w; x++, o++) {
+        fieldAt(first, x, y, at);
+        const px = x + at[0], py = y + at[1];
+        const x0 = Math.floor(px), y0 = Math.floor(py);
+        if (x0 < 0 || y0 < 0 || x0 + 1 >= w || y0 + 1 >= ht) {
+          carried[o] = NaN;
+          continue;
+        }
+        const tx = px - x0, ty = py - y0, q = y0 * w + x0;
+        const top = B[q] + tx * (B[q + 1] - B[q]);
+        carried[o] = top + ty * (B[q + w] + tx * (B[q + w + 1] - B[q + w]) - top);
+      }
+    B = carried;
+    lens = null;
+    PB = lowPassed(B, w, ht, coarseSigma);
+    field = fitField();
+  }
+  [PA, PB, PM, PS] = [A, B, meanA, ssA];
 
   // Pass 2: each compared block against the smooth field. Within a pixel or two of it, the block
   // lines up; otherwise it differs, and is looked for farther off (parallax: near things shift
@@ -231,8 +304,10 @@ export function findMovement(a: GrayImage, b: GrayImage, h: ArrayLike<number>, p
   for (let k = 0; k < compared.length; k++) {
     if (!compared[k]) continue;
     const x0 = (k % cols) * s, y0 = Math.floor(k / cols) * s;
+    fieldAt(first, x0 + (s - 1) / 2, y0 + (s - 1) / 2, at);
+    const sx = at[0], sy = at[1];
     fieldAt(field, x0 + (s - 1) / 2, y0 + (s - 1) / 2, at);
-    smoothShift = Math.max(smoothShift, Math.hypot(at[0], at[1]));
+    smoothShift = Math.max(smoothShift, field === first ? Math.hypot(sx, sy) : Math.hypot(sx + at[0], sy + at[1]));
     const px = Math.round(at[0]), py = Math.round(at[1]);
     const sda = sdAll[k];
     const zncc = compare(k, x0, y0, px, py);
@@ -324,6 +399,7 @@ export function findMovement(a: GrayImage, b: GrayImage, h: ArrayLike<number>, p
     if (count >= p.minBlocks) regions.push({ x: c0 * s, y: r0 * s, width: (c1 - c0 + 1) * s, height: (r1 - r0 + 1) * s });
   }
   const misfit = blocks > 0 ? differing / blocks : 0;
+
   const parallax = displaced > 0 || misfit > parallaxMisfit || regions.length > maxMovedRegions;
   return { blocks, differing, displaced, regions: parallax ? [] : regions, misfit, parallax, displacedRegion, lowPass: band.sigma, smoothShift };
 }
