@@ -30,6 +30,7 @@ function countingPool(): AnalysisPool & { frames: number } {
       return inner.analyseFrame(path, maxSide);
     },
     analysePair: inner.analysePair,
+    judgeThroughLens: inner.judgeThroughLens,
     liveThreads: () => 0,
     destroy: inner.destroy,
   };

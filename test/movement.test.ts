@@ -109,6 +109,17 @@ describe('a rendered sequence with near posts, the camera turned off its pivot',
     expect(report.pairs.flatMap((p) => p.reasons).filter((r) => r !== 'parallax')).toEqual([]);
   }, 240_000);
 
+  it('still flags parallax through a barrel lens (k1 = -0.08), once the lens is taken out', async () => {
+    // The lens is refined over the sequence and the flagged pairs are judged again on the frames
+    // as a pinhole camera would have seen them: that must take out the lens, not the parallax.
+    const demo = await writeDemoShoot(join(tempDir(), 'pivot-off-barrel'), { ...options, pivotOffsetM: 0.1, distortion: { k1: -0.08, k2: 0 } });
+    const report = judge((await runCheck(demo.folder, { pool })).analysis, defaultBudget);
+    const between = report.pairs.filter((p) => p.kind === 'neighbour' || p.kind === 'closure');
+    const parallax = between.filter((p) => p.reasons.includes('parallax'));
+    console.log(`pivot 10 cm off, barrel lens: parallax on ${parallax.length} of ${between.length} pairs, k1 ${report.geometry?.distortion?.k1.toFixed(3)}`);
+    expect(parallax.length).toBeGreaterThanOrEqual(between.length / 2);
+  }, 240_000);
+
   it('flags nothing when the camera turns about its centre', async () => {
     const demo = await writeDemoShoot(join(tempDir(), 'pivot-on'), { ...options, pivotOffsetM: 0 });
     const report = judge((await runCheck(demo.folder, { pool })).analysis, defaultBudget);

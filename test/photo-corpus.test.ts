@@ -9,10 +9,12 @@
 // Size: rendered at SIZE below (900x600) instead of the catalogue's 1500x1000, to keep the file's
 // time down; the angular geometry is the same (the focal length in px scales with the width), and
 // every finding below held at 1500x1000 too (scripts/photo-survey.ts). fault-ae-jump is the
-// exception, kept at 1500x1000 (see there). The stray file
-// and the duplicates are added to a copy of clean-turn-12's frames rather than rendered again.
-// Not pinned here (being fixed elsewhere, or too slow for the suite): clean-two-row and
-// fault-two-row-missing, the lens-* controls, fault-gap-8pc, clean-turn-3000.
+// exception, and lens-barrel-015, both kept at 1500x1000 (see there). The stray file and the
+// duplicates are added to a copy of clean-turn-12's frames rather than rendered again. Of the lens
+// controls, the strongest barrel (k1 = -0.15) is pinned; the milder barrels and the pincushion
+// held too in the survey (test/lens-sequence.test.ts covers them on demo renders). Not pinned here
+// (too slow for the suite, or not passing yet): clean-two-row and fault-two-row-missing,
+// fault-gap-8pc, clean-turn-3000.
 import { copyFile, mkdir, writeFile } from 'node:fs/promises';
 import { rmSync } from 'node:fs';
 import { join } from 'node:path';
@@ -96,13 +98,16 @@ function flagsOf(r: Report): string[] {
   return out.sort();
 }
 
-const fullTurns = new Set(['clean-turn-12', 'clean-bracket-turn', 'clean-soft', 'exif-focal-minus3', 'exif-focal-plus3']);
+const fullTurns = new Set(['clean-turn-12', 'clean-bracket-turn', 'clean-soft', 'exif-focal-minus3', 'exif-focal-plus3', 'lens-barrel-015']);
 
-for (const name of ['clean-turn-12', 'clean-pan-8', 'clean-bracket-turn', 'clean-soft', 'exif-focal-minus3', 'exif-focal-plus3']) {
+for (const name of ['clean-turn-12', 'clean-pan-8', 'clean-bracket-turn', 'clean-soft', 'exif-focal-minus3', 'exif-focal-plus3', 'lens-barrel-015']) {
   describe(`clean control ${name}`, () => {
     let c: Checked;
     beforeAll(async () => {
-      c = name === 'clean-turn-12' ? await cleanTurn12() : await check(name);
+      // lens-barrel-015 at the catalogue's 1500x1000: at 900x600 its neighbour chain alone settles
+      // on a focal length 2.4 % long (717 px for 700), and the closure pair is refused as 8.4
+      // degrees off (measured); at 1500x1000 (the analysis size of any larger frame) it closes.
+      c = name === 'clean-turn-12' ? await cleanTurn12() : await check(name, name === 'lens-barrel-015' ? null : SIZE);
     }, 180_000);
 
     it('gets verdict ok with no flag at all, every frame in the sequence and every station placed', () => {

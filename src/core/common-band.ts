@@ -5,7 +5,7 @@
  * perspective, then stretched back onto a's grid), has lost the fine band; compared in the band both
  * keep, the same content correlates again, while something that moved still differs.
  */
-import type { GrayImage } from './image.js';
+import type { FloatImage, GrayImage } from './image.js';
 import { warpBilinear } from './warp.js';
 
 /** Both frames on a's grid; b is NaN where it has no pixel. */
@@ -138,7 +138,7 @@ export function lowPassed(src: Float32Array, w: number, h: number, sigma: number
  * `lowPassSteps` at which their fine detail agrees over the pixels both see (unclipped in both);
  * the last step when none does.
  */
-export function commonBand(a: GrayImage, b: GrayImage, h: ArrayLike<number>): CommonBand {
+export function commonBand(a: GrayImage | FloatImage, b: GrayImage | FloatImage, h: ArrayLike<number>): CommonBand {
   const w = a.width, ht = a.height, n = w * ht;
   const warped = warpBilinear(b, h, w, ht).data;
   const a0 = new Float32Array(n);

@@ -13,7 +13,7 @@
 import { commonBand, lowPassed } from './common-band.js';
 import type { LensPair, SmoothField } from './displacement-field.js';
 import { fieldAt, fitSmoothField } from './displacement-field.js';
-import type { GrayImage } from './image.js';
+import type { FloatImage, GrayImage } from './image.js';
 
 /** A region of a, analysis pixels. */
 export interface MovedRegion {
@@ -89,8 +89,8 @@ export const parallaxMisfit = 0.2;
 /** More separate differing places than this are misalignment scattered over the overlap, not things that moved. */
 export const maxMovedRegions = 5;
 
-/** Compares a and b block by block where `h` (a -> b, analysis pixels) maps a into b. */
-export function findMovement(a: GrayImage, b: GrayImage, h: ArrayLike<number>, params: Partial<MovementParams> = {}): Movement {
+/** Compares a and b block by block where `h` (a -> b, analysis pixels) maps a into b; NaN pixels (off a lens's ideal image) are skipped. */
+export function findMovement(a: GrayImage | FloatImage, b: GrayImage | FloatImage, h: ArrayLike<number>, params: Partial<MovementParams> = {}): Movement {
   const p = { ...defaultMovementParams, ...params };
   const band = commonBand(a, b, h);
   const A = band.a, use = band.use, w = band.width, ht = band.height;

@@ -2,13 +2,15 @@ import { availableParallelism } from 'node:os';
 import { Piscina } from 'piscina';
 import type { AnalysisTask } from './analysis-worker.js';
 import runTask from './analysis-worker.js';
-import type { FrameAnalysis, PairAnalysis, PairOptions } from './frame-analysis.js';
+import type { AnalysisLens, FrameAnalysis, LensJudgement, PairAnalysis, PairOptions } from './frame-analysis.js';
 
 const defaultPairOptions: PairOptions = { retryAtFullSize: true, overlapBlocks: true };
 
 export interface AnalysisPool {
   analyseFrame(path: string, maxSide: number, signal?: AbortSignal): Promise<FrameAnalysis>;
   analysePair(a: FrameAnalysis, b: FrameAnalysis, options?: PairOptions, signal?: AbortSignal): Promise<PairAnalysis>;
+  /** A measured pair's overlap judged again through the sequence's lens (frame-analysis.ts, judgeThroughLens). */
+  judgeThroughLens(a: FrameAnalysis, b: FrameAnalysis, tiePoints: Float32Array, lens: AnalysisLens, signal?: AbortSignal): Promise<LensJudgement | null>;
   readonly threads: number;
   /** Worker threads alive right now. */
   liveThreads(): number;
@@ -31,6 +33,7 @@ export function createAnalysisPool(threads = availableParallelism(), options: An
       threads: 0,
       analyseFrame: (path, maxSide) => runTask({ kind: 'frame', path, maxSide }) as Promise<FrameAnalysis>,
       analysePair: (a, b, options = defaultPairOptions) => runTask({ kind: 'pair', a, b, options }) as Promise<PairAnalysis>,
+      judgeThroughLens: (a, b, tiePoints, lens) => runTask({ kind: 'lens', a, b, tiePoints, lens }) as Promise<LensJudgement | null>,
       liveThreads: () => 0,
       destroy: async () => {},
     };
@@ -51,6 +54,7 @@ export function createAnalysisPool(threads = availableParallelism(), options: An
     threads,
     analyseFrame: (path, maxSide, signal) => run<FrameAnalysis>({ kind: 'frame', path, maxSide }, signal),
     analysePair: (a, b, options = defaultPairOptions, signal) => run<PairAnalysis>({ kind: 'pair', a, b, options }, signal),
+    judgeThroughLens: (a, b, tiePoints, lens, signal) => run<LensJudgement | null>({ kind: 'lens', a, b, tiePoints, lens }, signal),
     liveThreads: () => pool.threads.length,
     destroy: () => pool.destroy(),
   };

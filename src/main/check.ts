@@ -533,6 +533,7 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
     const closurePair = planned.find((p) => p.kind === 'closure') ?? null;
     let geometry = geometryOf(planned.filter((p) => p.kind === 'neighbour' || p.kind === 'other'), closurePair);
     if (geometry && geometry.rows.length >= 2) geometry = await byRows(geometry);
+    if (geometry) await judgeAgainThroughLens(geometry);
     return assemble(geometry);
 
     /**
@@ -565,15 +566,37 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
      * matched near where it puts them. A pair that still finds no model keeps its predicted overlap
      * for the report. Frames already let go are decoded again, two at a time.
      */
+    /** A frame's analysis for a late step, decoded again when it was let go; not kept (the step holds at most the pair it works on). */
+    async function transientData(k: number): Promise<FrameAnalysis> {
+      const o = ordered[k];
+      return frames[k]!.data ?? (await options.cache?.get(o.scanned, maxSide)) ?? (await pool.analyseFrame(o.scanned.path, maxSide, signal));
+    }
+
+    /**
+     * Pairs whose overlap was found off (parallax, or something moved) are judged again once the
+     * sequence's lens is refined: on frames as an ideal pinhole camera would have seen them, where
+     * a turn about the camera's centre leaves nothing off whatever the lens did. What is off there
+     * is the pair's answer; lens distortion alone no longer reads as parallax or movement.
+     */
+    async function judgeAgainThroughLens(g: SequenceGeometry): Promise<void> {
+      const d = g.distortion;
+      if (!d || (d.k1 === 0 && d.k2 === 0)) return;
+      for (const p of planned) {
+        if (p.kind === 'bracket') continue;
+        const key = `${p.i}:${p.j}`;
+        const r = pairResults.get(key);
+        if (!r?.homography || !(r.parallax || (r.moved?.length ?? 0) > 0)) continue;
+        const sa = frames[p.i]!.summary, sb = frames[p.j]!.summary;
+        const lens = { focalA: (g.focalPx * sa.anWidth) / sa.fullWidth, focalB: (g.focalPx * sb.anWidth) / sb.fullWidth, distortion: { k1: d.k1, k2: d.k2 } };
+        const again = await pool.judgeThroughLens(await transientData(p.i), await transientData(p.j), r.tiePoints, lens, signal);
+        if (again) pairResults.set(key, { ...r, moved: again.moved, misfit: again.misfit, parallax: again.parallax });
+      }
+    }
+
     async function retryGuided(): Promise<void> {
       const predicted = predictedOverlaps;
       const failed = planned.filter((p) => p.kind === 'neighbour' && !pairResults.get(`${p.i}:${p.j}`)?.homography);
       if (failed.length === 0 || stations.length < 3) return;
-      // Not kept: the retry holds at most the pair it works on.
-      const transientData = async (k: number): Promise<FrameAnalysis> => {
-        const o = ordered[k];
-        return frames[k]!.data ?? (await options.cache?.get(o.scanned, maxSide)) ?? (await pool.analyseFrame(o.scanned.path, maxSide, signal));
-      };
       const chain = geometryOf(planned.filter((p) => p.kind === 'neighbour'), null);
       if (!chain) return;
       const sizes = stations.map((st) => ({ width: frames[st.reference]!.summary.fullWidth, height: frames[st.reference]!.summary.fullHeight }));

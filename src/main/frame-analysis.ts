@@ -2,7 +2,9 @@ import { exposureDifference } from '../core/exposure.js';
 import type { Features, FeatureParams } from '../core/features.js';
 import { defaultFeatureParams, detectAndDescribe } from '../core/features.js';
 import type { Homography } from '../core/homography.js';
-import { project, transferErrors } from '../core/homography.js';
+import { fitHomographyDLT, project, transferErrors } from '../core/homography.js';
+import { idealImage, idealPoint } from '../core/ideal-image.js';
+import type { RadialDistortion } from '../core/lens.js';
 import { isPlausible } from '../core/homography-estimator.js';
 import { refineHomography } from '../core/homography-refine.js';
 import type { MovedRegion } from '../core/movement.js';
@@ -231,4 +233,49 @@ export function analysePair(a: FrameAnalysis, b: FrameAnalysis, options: PairOpt
     sharpness: shared,
     noModel: g.noModel,
   };
+}
+
+/** The lens of a sequence at one frame's analysis size. */
+export interface AnalysisLens {
+  /** Focal length in a's and b's analysis pixels. */
+  readonly focalA: number;
+  readonly focalB: number;
+  readonly distortion: RadialDistortion;
+}
+
+/** Movement and parallax judged again on the frames as an ideal pinhole camera would have seen them. */
+export interface LensJudgement {
+  readonly moved: MovedRegion[] | null;
+  readonly misfit: number | null;
+  readonly parallax: boolean | null;
+}
+
+/**
+ * Judges a measured pair's overlap again once the sequence's lens is known (the bundle adjustment
+ * of the whole sequence): both frames are resampled onto their ideal grids, the homography is
+ * refitted to the pair's tie points carried there, and the overlap is compared block by block as
+ * analysePair does. For a camera turning about its centre one homography then fits the overlap
+ * exactly, whatever the lens did; null when the tie points do not carry over or fit.
+ */
+export function judgeThroughLens(a: FrameAnalysis, b: FrameAnalysis, tiePoints: Float32Array, lens: AnalysisLens): LensJudgement | null {
+  const n = tiePoints.length / 4;
+  const c = { count: 0, ax: new Float64Array(n), ay: new Float64Array(n), bx: new Float64Array(n), by: new Float64Array(n) };
+  const pa = new Float64Array(2), pb = new Float64Array(2);
+  for (let k = 0; k < n; k++) {
+    const ok =
+      idealPoint(tiePoints[4 * k], tiePoints[4 * k + 1], a.image.width, a.image.height, lens.focalA, lens.distortion, pa) &&
+      idealPoint(tiePoints[4 * k + 2], tiePoints[4 * k + 3], b.image.width, b.image.height, lens.focalB, lens.distortion, pb);
+    if (!ok) continue;
+    [c.ax[c.count], c.ay[c.count], c.bx[c.count], c.by[c.count]] = [pa[0], pa[1], pb[0], pb[1]];
+    c.count++;
+  }
+  if (c.count < 12) return null;
+  const start = fitHomographyDLT(c, null, c.count);
+  if (!start) return null;
+  const all = Int32Array.from({ length: c.count }, (_, k) => k);
+  const h = refineHomography(start, c, all, c.count, 20);
+  if (!isPlausible(h, c.ax.reduce((t, x) => t + x, 0) / c.count, c.ay.reduce((t, y) => t + y, 0) / c.count)) return null;
+  const m = findMovement(idealImage(a.image, lens.focalA, lens.distortion), idealImage(b.image, lens.focalB, lens.distortion), h);
+  if (m.blocks < minMisfitBlocks) return { moved: null, misfit: null, parallax: null };
+  return { moved: m.regions, misfit: m.misfit, parallax: m.parallax };
 }
