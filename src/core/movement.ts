@@ -321,10 +321,17 @@ export function findMovement(a: GrayImage | FloatImage, b: GrayImage | FloatImag
     // Textured in one frame and flat in the other (something in front of sky) correlates no better
     // than noise does, so the correlation alone decides: a contrast difference with the same
     // structure is not a change.
+    // Within the search, a block flat in a lines up with b's as well when b's is flat there too: a
+    // flat block next to a hard edge (a dark roof line against sky) takes in a row of the edge in b
+    // a pixel or two off, and then correlates like noise at every shift.
     let unlike = !(zncc >= p.minCorrelation);
     if (unlike)
       for (let dy = -p.search; dy <= p.search && unlike; dy++)
-        for (let dx = -p.search; dx <= p.search && unlike; dx++) if ((dx || dy) && compare(k, x0, y0, px + dx, py + dy) >= p.minCorrelation) unlike = false;
+        for (let dx = -p.search; dx <= p.search && unlike; dx++) {
+          if (!dx && !dy) continue;
+          const q = compare(k, x0, y0, px + dx, py + dy);
+          if (q >= p.minCorrelation || (q === q && sda < p.texturedSd && sdOut[0] < p.texturedSd)) unlike = false;
+        }
     if (!unlike) continue;
     differing++;
     differs[k] = 1;
