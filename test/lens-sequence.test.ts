@@ -20,6 +20,7 @@ import { judge } from '../src/core/verdicts.js';
 import { createAnalysisPool } from '../src/main/analysis-pool.js';
 import { runCheck } from '../src/main/check.js';
 import { writeDemoShoot } from '../src/main/demo-writer.js';
+import { formatSummary } from '../src/main/summary.js';
 import { tempDir } from './helpers/cli.js';
 
 const pool = createAnalysisPool(2);
@@ -85,6 +86,15 @@ for (const c of cases) {
       const at = (k1: number, k2: number): number => r2 * (k1 + k2 * r2);
       expect(Math.abs(at(g.distortion!.k1, g.distortion!.k2) - at(d.k1, d.k2))).toBeLessThan(0.01 * r2);
       expect(g.exifFocal35mm).toBe(c.options.exifFocalLengthMm ? 36 : 35);
+      // The terminal summary says it in a photographer's terms: the share the corner moves.
+      const line = formatSummary(report).split('\n').find((l) => l.startsWith('Lens as measured:'));
+      const truePct = 100 * Math.abs(at(d.k1, d.k2));
+      console.log(line);
+      if (truePct < 0.5) expect(line).toMatch(/no distortion to speak of/);
+      else {
+        expect(line).toMatch(d.k1 < 0 ? /barrel distortion of/ : /pincushion distortion of/);
+        expect(Math.abs(Number(/of ([\d.]+) % at the corners/.exec(line!)![1]) - truePct)).toBeLessThan(0.5);
+      }
       expect(g.typicalRmsPx!).toBeLessThan(1);
     });
   });

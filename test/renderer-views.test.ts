@@ -218,6 +218,17 @@ describe('the summary header', () => {
     expect(text(s.querySelector('[data-skipped]'))).toContain('notes.txt: not an image');
   });
 
+  it('shows the lens as measured, with its distortion in words on hover', () => {
+    // A 6000 x 4000 frame (the corner 3606 px from the centre) at 4000 px focal length: k1 = -0.1
+    // moves the corner by k1 r^2 = -0.1 x 0.8125, 8.1 % toward the centre (Brown's model, lens.ts).
+    const frames = report.frames.map((f) => ({ ...f, width: 6000, height: 4000 }));
+    const geometry = { ...report.geometry!, focalPx: 4000, focal35mm: 24, exifFocal35mm: 24, distortion: { k1: -0.1, k2: 0, terms: 1 as const } };
+    const s = renderSummary({ ...report, frames, geometry });
+    const lens = s.querySelector('[data-stat="lens"]')!;
+    expect(text(lens.querySelector('dd'))).toBe('24 mm');
+    expect(lens.getAttribute('title')).toBe('Lens as measured: focal length 24 mm (35 mm equivalent; EXIF says 24 mm), barrel distortion of 8.1 % at the corners (taken out before the pairs were judged)');
+  });
+
   it('leaves the sweep out when it is not known', () => {
     const s = renderSummary({ ...report, sweepDeg: null });
     expect(s.querySelector('[data-stat="sweep"]')).toBeNull();

@@ -1,4 +1,5 @@
 import type { Report, Verdict } from '../core/report.js';
+import { lensSentence } from '../core/lens-words.js';
 import { notChecked } from '../core/verdicts.js';
 
 const word: Record<Verdict, string> = { ok: 'ok', weak: 'WEAK', reshoot: 'RESHOOT' };
@@ -19,6 +20,8 @@ export function formatSummary(report: Report): string {
     : report.sweepDeg === null ? '' : `, sweep about ${Math.round(report.sweepDeg)} deg`;
   out.push(`Seamscout check of ${report.folder}`);
   out.push(`${report.counts.frames} frames in ${report.counts.stations} stations${sweep}`);
+  const lens = lensSentence(report);
+  if (lens) out.push(`Lens as measured: ${lens}`);
   out.push('');
   const w = Math.max(8, ...report.frames.map((f) => f.file.length));
   // Bracket pairs are listed only when flagged; the rest are summed up in one line.

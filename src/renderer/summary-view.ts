@@ -1,4 +1,5 @@
 // The summary header: the numbers a photographer reads first, large, and the overall verdict.
+import { lensSentence, millimetres } from '../core/lens-words.js';
 import type { Report, Verdict } from '../core/report.js';
 import { notChecked } from '../core/verdicts.js';
 import { button, el } from './dom.js';
@@ -11,8 +12,8 @@ const overallWords: Record<Verdict, string> = {
   reshoot: 'Some frames need reshooting.',
 };
 
-function stat(name: string, value: string, label: string, icon: SVGSVGElement | null = null): HTMLElement {
-  return el('div', { class: `stat stat-${name}`, 'data-stat': name }, el('dt', {}, icon, label), el('dd', { class: 'numeral' }, value));
+function stat(name: string, value: string, label: string, icon: SVGSVGElement | null = null, title: string | null = null): HTMLElement {
+  return el('div', { class: `stat stat-${name}`, 'data-stat': name, ...(title ? { title } : {}) }, el('dt', {}, icon, label), el('dd', { class: 'numeral' }, value));
 }
 
 export interface SummaryActions {
@@ -54,6 +55,7 @@ export function renderSummary(report: Report, act: SummaryActions = {}): HTMLEle
       report.sweepDeg !== null ? stat('sweep', `${Math.round(report.sweepDeg)}°`, 'sweep') : null,
       report.geometry ? stat('vertical', `${Math.round(report.geometry.verticalDeg)}°`, 'vertical') : null,
       report.geometry?.closure ? stat('turn', report.geometry.closure.closes ? 'closes' : 'open', 'full turn') : null,
+      report.geometry?.focal35mm !== undefined ? stat('lens', millimetres(report.geometry.focal35mm), 'lens (35 mm eq.)', null, `Lens as measured: ${lensSentence(report)}`) : null,
       stat('weak', String(c.weak), 'weak', verdictIcon('weak', 20)),
       stat('reshoot', String(c.reshoot), 'reshoot', verdictIcon('reshoot', 20)),
     ),
