@@ -19,8 +19,8 @@ const analysis: Analysis = {
   frames: ['A, "first".jpg', 'B <2>.jpg', 'C & D.jpg'].map((file) => ({ file, width: 3000, height: 2000, captureTime: '2026-06-01T05:00:00.000', settings, sharpness: 2, keypoints: 1500 })),
   stations: ['A, "first".jpg', 'B <2>.jpg', 'C & D.jpg'].map((file, index) => ({ index, frames: [file], reference: file, evOffsets: [0], groupedBy: 'single' as const })),
   pairs: [
-    { a: 'A, "first".jpg', b: 'B <2>.jpg', kind: 'neighbour', matches: 320, inliers: 250, matchesInOverlap: 300, overlap: 0.44, homography: [0.9, 0.01, 1700, -0.01, 1, 3, -1e-5, 0, 1], evDiff: 0.1, rmsError: 0.9, shiftPx: null },
-    { a: 'B <2>.jpg', b: 'C & D.jpg', kind: 'neighbour', matches: 12, inliers: 0, matchesInOverlap: 0, overlap: null, homography: null, evDiff: null, rmsError: null, shiftPx: null },
+    { a: 'A, "first".jpg', b: 'B <2>.jpg', kind: 'neighbour', matches: 320, inliers: 250, matchesInOverlap: 300, overlap: 0.44, homography: [0.9, 0.01, 1700, -0.01, 1, 3, -1e-5, 0, 1], evDiff: 0.1, rmsError: 0.9, shiftPx: null, misfit: 0.02, parallax: false, sharpnessRatio: 0.97 },
+    { a: 'B <2>.jpg', b: 'C & D.jpg', kind: 'neighbour', matches: 12, inliers: 0, matchesInOverlap: 0, overlap: null, homography: null, evDiff: null, rmsError: null, shiftPx: null, predictedOverlap: 0.08 },
   ],
   skipped: [],
   sweepDeg: null,
@@ -95,6 +95,9 @@ describe('GraphML export', () => {
     expect(Number(nodes[1].rollDeg)).toBeCloseTo(0.4, 10);
     expect(nodes[2].yawDeg).toBeUndefined();
     expect(Number(fields(d.graphml.graph).focalPx)).toBeCloseTo(2916.7, 10);
+    const edges = d.graphml.graph.edge.map((e: never) => fields(e));
+    expect([edges[0].sharpnessRatio, edges[0].parallax, edges[0].predictedOverlap]).toEqual(['0.97', 'false', undefined]);
+    expect(edges[1].predictedOverlap).toBe('0.08');
   });
 });
 
@@ -110,6 +113,11 @@ describe('CSV export (RFC 4180)', () => {
     expect(rows[1].overlap).toBe('');
     expect(rows[1].verdict).toBe('reshoot');
     expect(rows[1].reasons).toBe('no-match');
+    // Added later, after the first fourteen columns: the predicted overlap of a pair without a
+    // model, and what was measured on a registered pair's overlap.
+    expect(Object.keys(rows[0]).slice(14)).toEqual(['predicted_overlap', 'sharpness_ratio', 'misfit', 'parallax']);
+    expect([rows[0].predicted_overlap, rows[0].sharpness_ratio, rows[0].misfit, rows[0].parallax]).toEqual(['', '0.970', '0.0200', 'no']);
+    expect([rows[1].predicted_overlap, rows[1].sharpness_ratio, rows[1].parallax]).toEqual(['0.0800', '', '']);
   });
 
   it('writes tie points as a, b, xa, ya, xb, yb', () => {

@@ -10,9 +10,18 @@ export function csvRows(rows: readonly (readonly unknown[])[]): string {
   return rows.map((r) => r.map(csvField).join(',')).join('\r\n') + '\r\n';
 }
 
-/** One row per pair (RFC 4180, CRLF line ends, header first). */
+const fixed = (v: number | null | undefined, digits: number): string => (v === null || v === undefined ? '' : v.toFixed(digits));
+const yesNo = (v: boolean | null | undefined): string => (v === null || v === undefined ? '' : v ? 'yes' : 'no');
+
+/**
+ * One row per pair (RFC 4180, CRLF line ends, header first). Columns added later go after the
+ * first fourteen, so that a reader that counts columns keeps working.
+ */
 export function reportToCsv(report: Report): string {
-  const header = ['a', 'b', 'kind', 'verdict', 'reasons', 'matches', 'inliers', 'matches_in_overlap', 'overlap', 'ev_diff', 'rms_error_px', 'shift_px', 'homography', 'advice'];
+  const header = [
+    'a', 'b', 'kind', 'verdict', 'reasons', 'matches', 'inliers', 'matches_in_overlap', 'overlap', 'ev_diff', 'rms_error_px', 'shift_px', 'homography', 'advice',
+    'predicted_overlap', 'sharpness_ratio', 'misfit', 'parallax',
+  ];
   const rows = report.pairs.map((p) => [
     p.a, p.b, p.kind, p.verdict, p.reasons.join(' '), p.matches, p.inliers, p.matchesInOverlap,
     p.overlap === null ? '' : p.overlap.toFixed(4),
@@ -21,6 +30,10 @@ export function reportToCsv(report: Report): string {
     p.shiftPx === null ? '' : p.shiftPx.toFixed(2),
     p.homography === null ? '' : p.homography.map((v) => Number(v.toPrecision(10))).join(' '),
     p.advice.join(' / '),
+    fixed(p.predictedOverlap, 4),
+    fixed(p.sharpnessRatio, 3),
+    fixed(p.misfit, 4),
+    yesNo(p.parallax),
   ]);
   return csvRows([header, ...rows]);
 }

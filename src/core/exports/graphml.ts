@@ -16,6 +16,9 @@ const keys: Key[] = [
   { id: 'g_vertical', for: 'graph', name: 'verticalDeg', type: 'double' },
   { id: 'g_focal', for: 'graph', name: 'focalPx', type: 'double' },
   { id: 'g_closes', for: 'graph', name: 'turnCloses', type: 'boolean' },
+  { id: 'g_focal35', for: 'graph', name: 'focal35mm', type: 'double' },
+  { id: 'g_k1', for: 'graph', name: 'distortionK1', type: 'double' },
+  { id: 'g_k2', for: 'graph', name: 'distortionK2', type: 'double' },
   { id: 'n_file', for: 'node', name: 'file', type: 'string' },
   { id: 'n_station', for: 'node', name: 'station', type: 'int' },
   { id: 'n_reference', for: 'node', name: 'reference', type: 'boolean' },
@@ -39,6 +42,10 @@ const keys: Key[] = [
   { id: 'e_shift', for: 'edge', name: 'shiftPx', type: 'double' },
   { id: 'e_h', for: 'edge', name: 'homography', type: 'string' },
   { id: 'e_advice', for: 'edge', name: 'advice', type: 'string' },
+  { id: 'e_predicted', for: 'edge', name: 'predictedOverlap', type: 'double' },
+  { id: 'e_sharpness', for: 'edge', name: 'sharpnessRatio', type: 'double' },
+  { id: 'e_misfit', for: 'edge', name: 'misfit', type: 'double' },
+  { id: 'e_parallax', for: 'edge', name: 'parallax', type: 'boolean' },
 ];
 
 function data(id: string, v: unknown): string {
@@ -64,7 +71,8 @@ export function reportToGraphml(report: Report): string {
     '<graphml xmlns="http://graphml.graphdrawing.org/xmlns" xmlns:xsi="http://www.w3.org/2001/XMLSchema-instance" xsi:schemaLocation="http://graphml.graphdrawing.org/xmlns http://graphml.graphdrawing.org/xmlns/1.0/graphml.xsd">',
     ...keys.map((k) => `  <key id="${k.id}" for="${k.for}" attr.name="${k.name}" attr.type="${k.type}"/>`),
     '  <graph id="sequence" edgedefault="undirected">',
-    `    ${data('g_verdict', report.verdict)}${data('g_sweep', report.sweepDeg)}${data('g_vertical', g?.verticalDeg)}${data('g_focal', g?.focalPx)}${data('g_closes', g?.closure ? g.closure.closes : null)}`,
+    `    ${data('g_verdict', report.verdict)}${data('g_sweep', report.sweepDeg)}${data('g_vertical', g?.verticalDeg)}${data('g_focal', g?.focalPx)}${data('g_closes', g?.closure ? g.closure.closes : null)}` +
+      `${data('g_focal35', g?.focal35mm)}${data('g_k1', g?.distortion?.k1)}${data('g_k2', g?.distortion?.k2)}`,
   ];
   for (const f of report.frames) {
     out.push(
@@ -79,7 +87,8 @@ export function reportToGraphml(report: Report): string {
     out.push(
       `    <edge id="e${i}" source="${s}" target="${t}">${data('e_kind', p.kind)}${data('e_verdict', p.verdict)}${data('e_reasons', p.reasons.join(' ') || null)}` +
         `${data('e_matches', p.matches)}${data('e_inliers', p.inliers)}${data('e_in_overlap', p.matchesInOverlap)}${data('e_overlap', p.overlap)}${data('e_ev', p.evDiff)}` +
-        `${data('e_rms', p.rmsError)}${data('e_shift', p.shiftPx)}${data('e_h', p.homography ? p.homography.join(' ') : null)}${data('e_advice', p.advice.join(' / ') || null)}</edge>`,
+        `${data('e_rms', p.rmsError)}${data('e_shift', p.shiftPx)}${data('e_h', p.homography ? p.homography.join(' ') : null)}${data('e_advice', p.advice.join(' / ') || null)}` +
+        `${data('e_predicted', p.predictedOverlap)}${data('e_sharpness', p.sharpnessRatio)}${data('e_misfit', p.misfit)}${data('e_parallax', p.parallax)}</edge>`,
     );
   });
   out.push('  </graph>', '</graphml>', '');
