@@ -201,6 +201,47 @@ export interface Analysis {
   /** Degrees of the horizon covered (the geometry's horizontalDeg), or null without geometry. */
   readonly sweepDeg: number | null;
   readonly geometry: SequenceGeometry | null;
+  /**
+   * The card's sequences, each measured on its own; absent for a folder checked as one sequence
+   * (reports written before cards were split). With one sequence, the fields above are its own.
+   */
+  readonly sequences?: readonly SequenceAnalysis[];
+  /** Frames that belong to no sequence. */
+  readonly singleShots?: readonly SingleShot[];
+}
+
+/**
+ * What set a sequence apart from the frames shot before it on the card, as evidence: a pause far
+ * longer than the sequence's own rhythm, a change of camera, lens, focal length or orientation, or
+ * content (consecutive frames that share nothing while each overlaps its own neighbours).
+ */
+export type SequenceSplit =
+  | { readonly by: 'pause'; readonly seconds: number; readonly rhythmSeconds: number }
+  | { readonly by: 'camera'; readonly from: string | null; readonly to: string | null }
+  | { readonly by: 'lens'; readonly from: string | null; readonly to: string | null }
+  | { readonly by: 'focal-length'; readonly fromMm: number; readonly toMm: number }
+  | { readonly by: 'orientation'; readonly from: 'landscape' | 'portrait'; readonly to: 'landscape' | 'portrait' }
+  | { readonly by: 'content'; readonly after: string; readonly before: string };
+
+/** One sequence of a card, measured on its own: what a folder's analysis holds for one sequence. */
+export interface SequenceAnalysis {
+  /** Counting from 1, in shooting order. */
+  readonly index: number;
+  /** Why it is apart from the sequence before it; empty for the first. */
+  readonly splitBy: readonly SequenceSplit[];
+  readonly frames: readonly FrameMeasure[];
+  readonly stations: readonly StationMeasure[];
+  readonly pairs: readonly PairMeasure[];
+  readonly sweepDeg: number | null;
+  readonly geometry: SequenceGeometry | null;
+}
+
+/** A frame of the card that belongs to no sequence: listed, not flagged. */
+export interface SingleShot {
+  readonly file: string;
+  readonly captureTime: string | null;
+  /** Why it stands alone, in words. */
+  readonly reason: string;
 }
 
 /** A stretch of the sphere no frame sees, in a set shot in rows or up to a pole, with where to aim. */
@@ -258,6 +299,27 @@ export interface ReportStation extends StationMeasure, Finding {
 
 export type ReportPair = PairMeasure & Finding;
 
+/** One sequence of a card, judged on its own, as if it were alone in a folder. */
+export interface ReportSequence {
+  readonly index: number;
+  readonly splitBy: readonly SequenceSplit[];
+  /** Its first and last frames in shooting order: a sequence is known by its first file. */
+  readonly firstFile: string;
+  readonly lastFile: string;
+  /** Capture times of its first and last frames (local ISO 8601), or null. */
+  readonly startTime: string | null;
+  readonly endTime: string | null;
+  readonly verdict: Verdict;
+  readonly counts: Report['counts'];
+  readonly sweepDeg: number | null;
+  readonly geometry: SequenceGeometry | null;
+  readonly frames: readonly ReportFrame[];
+  readonly stations: readonly ReportStation[];
+  readonly pairs: readonly ReportPair[];
+  readonly holes: readonly CoverageHole[];
+  readonly coverageNotes: readonly CoverageNote[];
+}
+
 export interface Report {
   readonly schema: typeof reportSchema;
   readonly verdict: Verdict;
@@ -277,6 +339,14 @@ export interface Report {
   readonly holes?: readonly CoverageHole[];
   /** Open zenith or nadir of a set shot in rows that neither reaches toward it nor declares a full sphere. */
   readonly coverageNotes?: readonly CoverageNote[];
+  /**
+   * The card's sequences, each judged on its own (absent in reports written before cards were
+   * split). With several, the frames, stations, pairs and holes above are all of theirs together
+   * (station indices counted across the card) and the geometry above is null.
+   */
+  readonly sequences?: readonly ReportSequence[];
+  /** Frames that belong to no sequence: listed, not flagged. */
+  readonly singleShots?: readonly SingleShot[];
 }
 
 /** The minimum evidence a pair needs, and the other thresholds verdicts are judged by. */

@@ -1,4 +1,4 @@
-import type { Analysis, CoverageHole, FlagCode, SkippedFile, Finding, FolderProblem, FrameSettings, MatchBudget, PairMeasure, Report, ReportFrame, ReportPair, ReportStation, SequenceGeometry, StationMeasure, Verdict } from './report.js';
+import type { Analysis, CoverageHole, FlagCode, SkippedFile, Finding, FolderProblem, FrameSettings, MatchBudget, PairMeasure, Report, ReportFrame, ReportPair, ReportSequence, ReportStation, SequenceAnalysis, SequenceGeometry, StationMeasure, Verdict } from './report.js';
 import { coverageFindings } from './coverage-map.js';
 import { lensMisfitLimitPx } from './lens.js';
 import { reportSchema } from './report.js';
@@ -145,7 +145,49 @@ interface ModalSettings {
  * frame and station, and the overall verdict. Pure: judging again with another budget needs no
  * re-analysis.
  */
+/**
+ * Judges a folder's measurements against the budget. A card of several sequences is judged one
+ * sequence at a time, each as if it were alone in a folder (no setting, size or coverage is compared
+ * across sequences); the folder's lists are then all of theirs together.
+ */
 export function judge(analysis: Analysis, budget: MatchBudget): Report {
+  const sequences = analysis.sequences;
+  const singleShots = analysis.singleShots ?? [];
+  if (!sequences) return judgeOne(analysis, budget);
+  const parts = sequences.map((s) => judgeOne({ folder: analysis.folder, frames: s.frames, stations: s.stations, pairs: s.pairs, sweepDeg: s.sweepDeg, geometry: s.geometry, skipped: [] }, budget));
+  const judged: ReportSequence[] = sequences.map((s, k) => {
+    const r = parts[k];
+    const first = r.frames[0], last = r.frames[r.frames.length - 1];
+    return {
+      index: s.index, splitBy: s.splitBy,
+      firstFile: first?.file ?? '', lastFile: last?.file ?? '', startTime: first?.captureTime ?? null, endTime: last?.captureTime ?? null,
+      verdict: r.verdict, counts: r.counts, sweepDeg: r.sweepDeg, geometry: r.geometry,
+      frames: r.frames, stations: r.stations, pairs: r.pairs, holes: r.holes ?? [], coverageNotes: r.coverageNotes ?? [],
+    };
+  });
+  if (parts.length === 1) return { ...judgeOne(analysis, budget), sequences: judged, singleShots };
+  // Several: the folder's lists are all of the sequences' together, stations counted across the card.
+  const offsets = parts.map((_, k) => parts.slice(0, k).reduce((t, r) => t + r.stations.length, 0));
+  const whole = judgeOne({ ...analysis, frames: [], stations: [], pairs: [], sweepDeg: null, geometry: null }, budget);
+  const frames = parts.flatMap((r, k) => r.frames.map((f) => ({ ...f, station: f.station < 0 ? -1 : f.station + offsets[k] })));
+  const stations = parts.flatMap((r, k) => r.stations.map((st) => ({ ...st, index: st.index + offsets[k] })));
+  const sum = (key: keyof Report['counts']): number => parts.reduce((t, r) => t + r.counts[key], 0);
+  return {
+    ...whole,
+    verdict: worst(...parts.map((r) => r.verdict), missingFromSequence(analysis.skipped).length ? 'weak' : 'ok'),
+    counts: { frames: sum('frames'), stations: sum('stations'), ok: sum('ok'), weak: sum('weak'), reshoot: sum('reshoot') },
+    frames,
+    stations,
+    pairs: parts.flatMap((r) => r.pairs),
+    folderProblems: [],
+    holes: parts.flatMap((r) => r.holes ?? []),
+    coverageNotes: parts.flatMap((r) => r.coverageNotes ?? []),
+    sequences: judged,
+    singleShots,
+  };
+}
+
+function judgeOne(analysis: Analysis, budget: MatchBudget): Report {
   const frameFindings = new Map(analysis.frames.map((f) => [f.file, new Findings()]));
   const stationOf = new Map<string, StationMeasure>();
   for (const s of analysis.stations) for (const file of s.frames) stationOf.set(file, s);
@@ -331,6 +373,25 @@ export function analysisOf(report: Report): Analysis {
       return rest;
     }),
     pairs: report.pairs.map((p) => strip(p)),
+    ...(report.sequences ? { sequences: report.sequences.map((q) => sequenceAnalysisOf(q, strip)), singleShots: report.singleShots ?? [] } : {}),
+  };
+}
+
+function sequenceAnalysisOf(q: ReportSequence, strip: <T extends Finding>(x: T) => Omit<T, keyof Finding>): SequenceAnalysis {
+  return {
+    index: q.index,
+    splitBy: q.splitBy,
+    sweepDeg: q.sweepDeg,
+    geometry: q.geometry,
+    frames: q.frames.map((f) => {
+      const { station: _s, flags: _f, ...rest } = strip(f);
+      return rest;
+    }),
+    stations: q.stations.map((s) => {
+      const { flags: _f, ...rest } = strip(s);
+      return rest;
+    }),
+    pairs: q.pairs.map((p) => strip(p)),
   };
 }
 
