@@ -195,9 +195,68 @@ function slots(n: number): <T>(task: () => Promise<T>) => Promise<T> {
   };
 }
 
+/** A file of the card that may be a frame of a sequence, with what its header says. */
+export interface CardFile {
+  readonly file: string;
+  readonly captureMs: number | null;
+  readonly scanned: ScannedFile;
+  readonly exif: FrameExif;
+  /** Width and height from the header, after EXIF rotation; null when the header does not say. */
+  readonly size: { readonly width: number; readonly height: number } | null;
+}
+
+/** What a folder holds for a check, read once: the frames in shooting order and the files left out. */
+export interface CardContents {
+  readonly folder: string;
+  readonly ordered: readonly CardFile[];
+  readonly skipped: readonly SkippedFile[];
+  readonly rawPlusJpeg: Analysis['rawPlusJpeg'];
+  /** The size, shape and camera most of the card's files share: a decoded frame unlike it is set apart. */
+  readonly look: ReturnType<typeof sequenceLook>;
+}
+
+/**
+ * Reads a folder's file list and headers (never writing to it): one file per shot, byte copies and
+ * files that do not belong to the card's sequences set apart, the rest in shooting order.
+ */
+export async function readCard(folder: string, options: Pick<CheckOptions, 'recursive' | 'prefer' | 'signal'> = {}): Promise<CardContents> {
+  const signal = options.signal;
+  const scan = await scanFolder(folder, options.recursive ?? false);
+  const shots = oneFilePerShot(scan.files, options.prefer ?? 'jpeg');
+  const skipped: SkippedFile[] = [...scan.problems.map((p) => ({ file: p.name, code: 'unreadable' as const, reason: `cannot be read: ${p.reason}` })), ...shots.skipped];
+  const heads = await inOrder(shots.files, 8, (f) => Promise.all([readFrameExif(f.path), readHeaderSize(f.path)]), signal);
+  // Files that are not part of the sequence (another camera, size or shape than most of the card)
+  // are left out before stations are grouped, so they cannot split a station or break a turn.
+  const memberOf = (exif: FrameExif, size: { width: number; height: number } | null) => ({ width: size?.width ?? null, height: size?.height ?? null, make: exif.settings.make, model: exif.settings.model });
+  // Byte-identical copies are left out before stations are grouped (a copy's repeated exposure
+  // would split its station): the first in shooting order, then by name, stays.
+  const copyOf = new Map<number, number>();
+  for (const set of await byteCopies(shots.files)) {
+    const [first, ...rest] = shootingOrder(set.map((i) => ({ i, file: shots.files[i].name, captureMs: heads[i][0].captureMs })));
+    for (const r of rest) copyOf.set(r.i, first.i);
+  }
+  const look = sequenceLook(heads.filter((_, i) => !copyOf.has(i)).map(([exif, size]) => memberOf(exif, size)));
+  const members = shots.files.map((file, i) => ({ file: file.name, captureMs: heads[i][0].captureMs, scanned: file, exif: heads[i][0], size: heads[i][1], copyOf: copyOf.get(i), stray: strayReason(memberOf(...heads[i]), look) }));
+  for (const m of members) {
+    if (m.copyOf !== undefined) skipped.push({ file: m.file, code: 'duplicate', reason: `the same picture as ${shots.files[m.copyOf].name}: left out` });
+    else if (m.stray !== null) skipped.push({ file: m.file, code: 'not-in-sequence', reason: m.stray });
+  }
+  const ordered = shootingOrder(members.filter((m) => m.copyOf === undefined && m.stray === null)).map(({ file, captureMs, scanned, exif, size }) => ({ file, captureMs, scanned, exif, size }));
+  return { folder, ordered, skipped, rawPlusJpeg: shots.rawPlusJpeg, look };
+}
+
 /**
  * The sequence check: reads a folder (never writing to it), analyses every frame in the worker pool,
- * groups stations, matches the pairs that matter and returns the measurements, unjudged.
+ * groups stations, matches the pairs that matter and returns the measurements, unjudged. The whole
+ * folder is one sequence here; a card of several is split first (card-check.ts).
+ */
+export async function runCheck(folder: string, options: CheckOptions = {}): Promise<CheckResult> {
+  return checkFrames(await readCard(folder, options), null, options);
+}
+
+/**
+ * Checks the frames of a card read before (all of them, or the given ones, in shooting order) as
+ * one sequence.
  *
  * It streams: stations are grouped from EXIF before any decoding, a station's pairs are matched as
  * soon as its frames and its neighbour's are decoded, and a frame's pixels and features are let go
@@ -205,32 +264,15 @@ function slots(n: number): <T>(task: () => Promise<T>) => Promise<T> {
  * sequence. (Without EXIF exposure data, stations come from the content, which needs every frame
  * first; with --all-pairs, every reference frame is kept for the pairs between them.)
  */
-export async function runCheck(folder: string, options: CheckOptions = {}): Promise<CheckResult> {
+export async function checkFrames(card: CardContents, only: readonly CardFile[] | null, options: CheckOptions = {}): Promise<CheckResult> {
   const maxSide = options.maxSide ?? defaultMaxSide;
   const pool = options.pool ?? createAnalysisPool(options.threads);
   const signal = options.signal;
+  const folder = card.folder;
   try {
-    const scan = await scanFolder(folder, options.recursive ?? false);
-    const shots = oneFilePerShot(scan.files, options.prefer ?? 'jpeg');
-    const skipped: SkippedFile[] = [...scan.problems.map((p) => ({ file: p.name, code: 'unreadable' as const, reason: `cannot be read: ${p.reason}` })), ...shots.skipped];
-    const heads = await inOrder(shots.files, 8, (f) => Promise.all([readFrameExif(f.path), readHeaderSize(f.path)]), signal);
-    // Files that are not part of the sequence (another camera, size or shape than most of the card)
-    // are left out before stations are grouped, so they cannot split a station or break a turn.
-    const memberOf = (exif: FrameExif, size: { width: number; height: number } | null) => ({ width: size?.width ?? null, height: size?.height ?? null, make: exif.settings.make, model: exif.settings.model });
-    // Byte-identical copies are left out before stations are grouped (a copy's repeated exposure
-    // would split its station): the first in shooting order, then by name, stays.
-    const copyOf = new Map<number, number>();
-    for (const set of await byteCopies(shots.files)) {
-      const [first, ...rest] = shootingOrder(set.map((i) => ({ i, file: shots.files[i].name, captureMs: heads[i][0].captureMs })));
-      for (const r of rest) copyOf.set(r.i, first.i);
-    }
-    const look = sequenceLook(heads.filter((_, i) => !copyOf.has(i)).map(([exif, size]) => memberOf(exif, size)));
-    const members = shots.files.map((file, i) => ({ file: file.name, captureMs: heads[i][0].captureMs, scanned: file, exif: heads[i][0], copyOf: copyOf.get(i), stray: strayReason(memberOf(...heads[i]), look) }));
-    for (const m of members) {
-      if (m.copyOf !== undefined) skipped.push({ file: m.file, code: 'duplicate', reason: `the same picture as ${shots.files[m.copyOf].name}: left out` });
-      else if (m.stray !== null) skipped.push({ file: m.file, code: 'not-in-sequence', reason: m.stray });
-    }
-    const ordered = shootingOrder(members.filter((m) => m.copyOf === undefined && m.stray === null));
+    const skipped: SkippedFile[] = [...card.skipped];
+    const ordered = only ?? card.ordered;
+    const look = card.look;
     const n = ordered.length;
     // Skips found while decoding, by shooting order once all are known, so that the report does not
     // depend on which decode finished first.
@@ -758,7 +800,7 @@ export async function runCheck(folder: string, options: CheckOptions = {}): Prom
         evOffsets: st.offsets,
         groupedBy: st.groupedBy,
       }));
-      return { analysis: { folder, frames: frameMeasures, stations: stationMeasures, pairs, skipped: [...skipped, ...[...decodeSkips].sort((p, q) => p.k - q.k).map((d) => d.skip)], rawPlusJpeg: shots.rawPlusJpeg, sweepDeg: geometry?.horizontalDeg ?? null, geometry }, tiePoints, peakFramesHeld: peakHeld };
+      return { analysis: { folder, frames: frameMeasures, stations: stationMeasures, pairs, skipped: [...skipped, ...[...decodeSkips].sort((p, q) => p.k - q.k).map((d) => d.skip)], rawPlusJpeg: card.rawPlusJpeg, sweepDeg: geometry?.horizontalDeg ?? null, geometry }, tiePoints, peakFramesHeld: peakHeld };
     }
   } finally {
     if (!options.pool) await pool.destroy();
