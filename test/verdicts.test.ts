@@ -83,6 +83,17 @@ describe('frame and station verdicts', () => {
     expect(drifted[0].advice[0]).toMatch(/ISO 400 instead of 100/);
   });
 
+  it('writes drifted settings as a person would, never with floating-point noise (issue 16)', () => {
+    // EXIF RATIONALs (CIPA DC-008): a zoom at 62/3 mm, 1/3 s, and an f-number from the APEX aperture value 5.
+    const base = { ...settings, focalLength: 20 };
+    const odd = { ...base, focalLength: 62 / 3, exposureTime: 1 / 3, fNumber: Math.SQRT2 ** 5 };
+    const frames = ['1', '2', '3', '4'].map((f) => frame(f, { settings: f === '3' ? odd : base }));
+    const r = judge(sequence([pair('1', '2'), pair('2', '3'), pair('3', '4')], frames), defaultBudget);
+    const drift = r.frames.filter((f) => f.flags.includes('settings-drift'));
+    expect(drift.map((f) => f.file)).toEqual(['3']);
+    expect(drift[0].advice[0]).toBe('aperture f/5.7 instead of f/8, shutter 1/3 s instead of 1/250 s, focal length 20.7 mm instead of 20 mm at 3 (station 3): lock these settings for the whole sequence');
+  });
+
   it('gives an exposure jump one flag: the shutter change behind it is not also settings drift, another aperture still is', () => {
     const bright = { ...settings, exposureTime: 1 / 100 };
     const frames = ['1', '2', '3', '4'].map((f) => frame(f, f === '3' ? { settings: bright } : {}));
@@ -132,7 +143,7 @@ describe('frame and station verdicts', () => {
     };
     const r = judge(analysis, defaultBudget);
     expect(r.stations.map((s) => s.flags)).toEqual([[], ['incomplete-bracket'], ['bracket-drift']]);
-    expect(r.stations[1].advice[0]).toMatch(/2 of 3 bracket frames \(missing \+2\.0 EV\)/);
+    expect(r.stations[1].advice[0]).toMatch(/2 of 3 bracket frames \(missing \+2 EV\)/);
     expect(r.frames.find((f) => f.file === '3b')!.flags).toEqual(['bracket-drift']);
     expect(r.frames.find((f) => f.file === '1b')!.flags).toEqual([]);
   });

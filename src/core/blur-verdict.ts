@@ -2,6 +2,7 @@ import type { Analysis, PairMeasure, SharpnessByDirection, Verdict } from './rep
 import type { SharpnessDirection } from './shared-sharpness.js';
 import { sharpnessDirections } from './shared-sharpness.js';
 import { median } from './median.js';
+import { percent as pct } from './number-words.js';
 
 /** A frame judged blurred, and how. */
 export interface BlurFinding {
@@ -37,8 +38,6 @@ const maxRun = 2;
  * 1.18, line kernels of 7 px or more 1.23 to 3.9 (shorter ones are not always told apart).
  */
 const directionalSpread = 1.25;
-
-const pct = (v: number): string => `${Math.round(100 * v)} %`;
 
 const directionWords: Record<SharpnessDirection, string> = {
   horizontal: 'along the horizontal',

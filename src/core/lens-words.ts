@@ -5,9 +5,9 @@
  * per cent; common practice).
  */
 import type { Report } from './report.js';
+import { millimetres } from './number-words.js';
 
-/** A length in mm as a photographer writes it: whole millimetres, a tenth when it has one. */
-export const millimetres = (x: number): string => `${Number(x.toFixed(1))} mm`;
+export { millimetres };
 
 /** Below this share at the corner (half a per cent) distortion is not worth a word. */
 const negligibleCornerShare = 0.005;

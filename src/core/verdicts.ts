@@ -4,6 +4,7 @@ import { lensMisfitLimitPx } from './lens.js';
 import { reportSchema } from './report.js';
 import { modalPattern, patternOf } from './stations.js';
 import { blurredFrames } from './blur-verdict.js';
+import { degrees, fNumber, isoSpeed, millimetres, percent as pct, shutterTime, signedEv } from './number-words.js';
 
 const rank: Record<Verdict, number> = { ok: 0, weak: 1, reshoot: 2 };
 export const worst = (...vs: Verdict[]): Verdict => vs.reduce<Verdict>((w, v) => (rank[v] > rank[w] ? v : w), 'ok');
@@ -21,11 +22,6 @@ class Findings {
     return { verdict: this.verdict, reasons: [...this.reasons], advice: [...this.advice] };
   }
 }
-
-const pct = (v: number): string => `${Math.round(100 * v)} %`;
-const signedEv = (v: number): string => `${v >= 0 ? '+' : ''}${v.toFixed(1)} EV`;
-const shutter = (t: number): string => (t >= 0.3 ? `${Number(t.toPrecision(2))} s` : `1/${Math.round(1 / t)} s`);
-
 
 /** The files left out for a reason worth a look: all skipped but the second file of a RAW+JPEG shot. */
 export const notChecked = (skipped: readonly SkippedFile[]): SkippedFile[] => skipped.filter((s) => s.code !== 'same-shot');
@@ -72,8 +68,8 @@ function lensMisfit(analysis: Analysis, stationOf: Map<string, StationMeasure>):
     const a = reference.get(l.stations[0]), b = reference.get(l.stations[1]);
     if (a !== undefined && b !== undefined && stationOf.has(a) && l.rmsPx > limit) pairs.set(`${a}:${b}`, l.rmsPx);
   }
-  const exif = g.exifFocal35mm ? ` against ${Number(g.exifFocal35mm.toFixed(1))} mm in EXIF` : '';
-  const focal = g.focal35mm !== undefined ? `focal length ${Number(g.focal35mm.toFixed(1))} mm (35 mm equivalent)${exif}` : 'focal length';
+  const exif = g.exifFocal35mm ? ` against ${millimetres(g.exifFocal35mm)} in EXIF` : '';
+  const focal = g.focal35mm !== undefined ? `focal length ${millimetres(g.focal35mm)} (35 mm equivalent)${exif}` : 'focal length';
   const advice = `the frames do not fit one lens turning about one point: with the ${focal} and the lens distortion refined, matching points still miss by ${g.typicalRmsPx.toFixed(1)} px on a typical pair (a good fit stays under ${limit.toFixed(1)} px); the zoom or focus may have changed, the lens may be a fisheye, or the camera moved between frames: lock zoom and focus, turn about the lens and reshoot`;
   return { pairs, advice };
 }
@@ -86,7 +82,7 @@ function judgeStationPair(p: PairMeasure, budget: MatchBudget, sweepDeg: number 
     if (p.kind === 'closure') {
       const gap = geometry ? Math.max(0, ...geometry.gaps.map((g) => g.toYawDeg - g.fromYawDeg)) : 0;
       const deg = Math.round(gap);
-      const missing = gap >= 0.5 ? `about ${deg} degree${deg === 1 ? ' of the turn is' : 's of the turn are'} not covered; ` : '';
+      const missing = gap >= 0.5 ? `about ${degrees(deg)} of the turn ${deg === 1 ? 'is' : 'are'} not covered; ` : '';
       f.add('no-closure', sweepDeg !== null && sweepDeg >= 330 ? 'reshoot' : 'weak', `the turn does not close between ${between}: ${missing}add a frame between them`);
     } else if (p.predictedOverlap != null) {
       f.add('no-match', 'reshoot', `no reliable match between ${between}: overlap about ${pct(p.predictedOverlap)}, predicted from the turn between them; add a frame between them${p.predictedOverlap >= budget.weakOverlap ? ', or aim the overlap at more detail' : ''}`);
@@ -95,7 +91,7 @@ function judgeStationPair(p: PairMeasure, budget: MatchBudget, sweepDeg: number 
   }
   const closure = geometry?.closure;
   if (p.kind === 'closure' && closure && !closure.closes) {
-    const off = closure.misclosureDeg === null ? '' : ` ${closure.misclosureDeg.toFixed(1)} degrees`;
+    const off = closure.misclosureDeg === null ? '' : ` ${degrees(closure.misclosureDeg)}`;
     f.add('no-closure', 'weak', `the turn comes round between ${between} but misses the chain of neighbours by${off || ' too much'}: a pair may be matched wrongly, or the camera moved off its pivot; check the pairs before reshooting`);
   }
   const overlap = p.overlap ?? 0;
@@ -124,10 +120,10 @@ function judgeStationPair(p: PairMeasure, budget: MatchBudget, sweepDeg: number 
 function settingsDrift(ref: FrameSettings, modal: ModalSettings, exposureJumped = false): string[] {
   const out: string[] = [];
   const stops = (a: number, b: number): number => Math.abs(Math.log2(a / b));
-  if (ref.fNumber !== null && modal.fNumber !== null && stops(ref.fNumber * ref.fNumber, modal.fNumber * modal.fNumber) > 0.3) out.push(`aperture f/${ref.fNumber} instead of f/${modal.fNumber}`);
-  if (!exposureJumped && ref.iso !== null && modal.iso !== null && stops(ref.iso, modal.iso) > 0.3) out.push(`ISO ${ref.iso} instead of ${modal.iso}`);
-  if (!exposureJumped && ref.exposureTime !== null && modal.exposureTime !== null && stops(ref.exposureTime, modal.exposureTime) > 0.3) out.push(`shutter ${shutter(ref.exposureTime)} instead of ${shutter(modal.exposureTime)}`);
-  if (ref.focalLength !== null && modal.focalLength !== null && Math.abs(ref.focalLength - modal.focalLength) > 0.02 * modal.focalLength) out.push(`focal length ${ref.focalLength} mm instead of ${modal.focalLength} mm`);
+  if (ref.fNumber !== null && modal.fNumber !== null && stops(ref.fNumber * ref.fNumber, modal.fNumber * modal.fNumber) > 0.3) out.push(`aperture ${fNumber(ref.fNumber)} instead of ${fNumber(modal.fNumber)}`);
+  if (!exposureJumped && ref.iso !== null && modal.iso !== null && stops(ref.iso, modal.iso) > 0.3) out.push(`${isoSpeed(ref.iso)} instead of ${Math.round(modal.iso)}`);
+  if (!exposureJumped && ref.exposureTime !== null && modal.exposureTime !== null && stops(ref.exposureTime, modal.exposureTime) > 0.3) out.push(`shutter ${shutterTime(ref.exposureTime)} instead of ${shutterTime(modal.exposureTime)}`);
+  if (ref.focalLength !== null && modal.focalLength !== null && Math.abs(ref.focalLength - modal.focalLength) > 0.02 * modal.focalLength) out.push(`focal length ${millimetres(ref.focalLength)} instead of ${millimetres(modal.focalLength)}`);
   if (ref.whiteBalance !== null && modal.whiteBalance !== null && ref.whiteBalance !== modal.whiteBalance) out.push(`white balance ${ref.whiteBalance} instead of ${modal.whiteBalance}`);
   return out;
 }
