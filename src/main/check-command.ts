@@ -161,7 +161,7 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
     [v.graphml, () => reportToGraphml(report)],
     [v.csv, () => reportToCsv(report)],
     [v.dot, () => reportToDot(report)],
-    [v['tie-points'], () => tiePointsToCsv(tiePoints)],
+    [v['tie-points'], () => tiePointsToCsv(tiePoints, report)],
     [v['coverage-map'], () => coverageMapContent(report, coverageMapFormat(v['coverage-map']!))],
   ];
   let failed = false;
