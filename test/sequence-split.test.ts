@@ -38,6 +38,17 @@ const ends = (frames: SplitFrame[]): number[][] => splitByEvidence(frames).map((
 const lastTime = (fs: SplitFrame[]): number => fs[fs.length - 1].captureMs!;
 
 describe('splitByEvidence: pauses against the sequence\'s own rhythm', () => {
+  it('does not take the pauses a window reaches across for the rhythm: two pans at 1.5 s, then two single frames', () => {
+    // 10 frames, a 10-minute pause, 12 frames, then single frames about 10 and 5 minutes later: the
+    // window after the first pause holds the two later pauses among eleven 1.5 s steps.
+    const first = shoot(0, Array(9).fill(1.5));
+    const second = shoot(lastTime(first) + 600_000, Array(11).fill(1.5));
+    const a = frame(lastTime(second) + 586_000), b = frame(lastTime(second) + 886_000);
+    const segs = splitByEvidence([...first, ...second, a, b]);
+    expect(segs.map((s) => [s.start, s.end])).toEqual([[0, 10], [10, 22], [22, 23], [23, 24]]);
+    expect(segs[1].splitBy).toEqual([{ by: 'pause', seconds: 600, rhythmSeconds: 1.5 }]);
+  });
+
   it('splits three sequences shot ten minutes apart in three, with the evidence of each split', () => {
     const random = createRandom(16);
     const pan = shoot(0, Array.from({ length: 7 }, () => 1 + 2 * random.next()));

@@ -36,7 +36,7 @@ export interface RawPlusJpeg {
 }
 
 /** Problems of the folder as a whole. */
-export type FolderCode = 'no-frames' | 'one-frame';
+export type FolderCode = 'no-frames' | 'one-frame' | 'sequence-break';
 
 export type PairKind = 'neighbour' | 'closure' | 'bracket' | 'other';
 

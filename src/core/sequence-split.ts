@@ -129,8 +129,13 @@ function attributeSplits(frames: readonly SplitFrame[], tolerance: number): Sequ
  * of single frames, with perhaps a hesitation) the median gap.
  */
 function rhythmOf(gaps: readonly number[], p: SplitParams): number | null {
-  if (gaps.length === 0) return null;
+  // One gap is no rhythm: beside a lone frame it is the pause before the next one.
+  if (gaps.length < minStepsForRhythm) return null;
   const m = median(gaps);
+  // Most gaps longer than a bracket's: one frame a station, and the typical gap is the step. Looking
+  // for steps above it would take the few pauses a window reaches across (the next sequence, the
+  // single shots after it) for the rhythm.
+  if (m > p.bracketGapMs) return m;
   const cut = Math.max(2 * m, p.bracketGapMs);
   const steps = gaps.filter((g) => g > cut);
   return steps.length >= minStepsForRhythm ? median(steps) : m;

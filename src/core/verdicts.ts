@@ -161,7 +161,16 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
       frames: r.frames, stations: r.stations, pairs: r.pairs, holes: r.holes ?? [], coverageNotes: r.coverageNotes ?? [],
     };
   });
-  if (parts.length === 1) return { ...judgeOne(analysis, budget), sequences: judged, singleShots };
+  // A sequence apart from the one before only by its content, shot at the same rhythm with the same
+  // camera: a new panorama begun at once, or one panorama with a frame missing. Only the
+  // photographer knows which, so it is said, and weighs as weak.
+  const breaks: FolderProblem[] = sequences
+    .filter((s) => s.splitBy.length > 0 && s.splitBy.every((e) => e.by === 'content'))
+    .flatMap((s) => s.splitBy.flatMap((e) => (e.by === 'content' ? [{ code: 'sequence-break' as const, advice: `${e.after} and ${e.before} share nothing, while nothing else sets them apart: read as two sequences. If they are one panorama, a frame is missing between them: reshoot it` }] : [])));
+  if (parts.length === 1) {
+    const one = judgeOne(analysis, budget);
+    return { ...one, verdict: worst(one.verdict, breaks.length ? 'weak' : 'ok'), folderProblems: [...one.folderProblems, ...breaks], sequences: judged, singleShots };
+  }
   // Several: the folder's lists are all of the sequences' together, stations counted across the card.
   const offsets = parts.map((_, k) => parts.slice(0, k).reduce((t, r) => t + r.stations.length, 0));
   const whole = judgeOne({ ...analysis, frames: [], stations: [], pairs: [], sweepDeg: null, geometry: null }, budget);
@@ -170,12 +179,12 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
   const sum = (key: keyof Report['counts']): number => parts.reduce((t, r) => t + r.counts[key], 0);
   return {
     ...whole,
-    verdict: worst(...parts.map((r) => r.verdict), missingFromSequence(analysis.skipped).length ? 'weak' : 'ok'),
+    verdict: worst(...parts.map((r) => r.verdict), missingFromSequence(analysis.skipped).length || breaks.length ? 'weak' : 'ok'),
     counts: { frames: sum('frames'), stations: sum('stations'), ok: sum('ok'), weak: sum('weak'), reshoot: sum('reshoot') },
     frames,
     stations,
     pairs: parts.flatMap((r) => r.pairs),
-    folderProblems: [],
+    folderProblems: breaks,
     holes: parts.flatMap((r) => r.holes ?? []),
     coverageNotes: parts.flatMap((r) => r.coverageNotes ?? []),
     sequences: judged,

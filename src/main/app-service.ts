@@ -11,7 +11,8 @@ import { createAnalysisPool } from './analysis-pool.js';
 import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat } from './app-api.js';
 import { loadStoredBudget, loadStoredPreference } from './settings-store.js';
 import type { TiePointSet } from './check.js';
-import { runCheck } from './check.js';
+import { checkCard } from './card-check.js';
+import { isCardLayout } from './scan.js';
 import { frameForDisplay } from './decode.js';
 import { createFeatureCache } from './feature-cache.js';
 import { rememberFolder } from './recent-folders.js';
@@ -92,8 +93,9 @@ export class AppService {
       state.realFolder = await realpath(state.folder);
       if (remember) await rememberFolder(state.folder);
       const [budget, prefer] = await Promise.all([loadStoredBudget(), loadStoredPreference()]);
-      const result = await runCheck(state.folder, {
+      const result = await checkCard(state.folder, {
         prefer,
+        recursive: await isCardLayout(state.folder),
         pool: this.getPool(),
         cache: createFeatureCache(),
         signal: state.controller.signal,

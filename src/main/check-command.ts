@@ -7,7 +7,9 @@ import { reportToDot } from '../core/exports/dot.js';
 import { reportToGraphml } from '../core/exports/graphml.js';
 import type { Report } from '../core/report.js';
 import { judge } from '../core/verdicts.js';
-import { commandLineThreads, defaultMaxSide, runCheck } from './check.js';
+import { commandLineThreads, defaultMaxSide } from './check.js';
+import { checkCard } from './card-check.js';
+import { isCardLayout } from './scan.js';
 import { coverageMapContent, coverageMapFormat } from './coverage-map-file.js';
 import { createFeatureCache } from './feature-cache.js';
 import { readSettings } from './settings.js';
@@ -19,7 +21,11 @@ export const checkUsage = `Usage: seamscout check [folder] [options]
 Checks a shot sequence: which frames to reshoot and why. Without a folder, checks the demo shoot.
 
 Options:
-  --recursive              look in sub-folders too
+  --recursive              look in sub-folders too (the default for a camera card: a folder that is,
+                           or holds, DCIM with numbered folders such as 100CAMERA)
+  --no-recursive           look only in the folder itself, even on a camera card
+  --sequence N             check only one sequence of the card: its number in the summary, or the
+                           name of its first file
   --all-pairs              match every plausible pair (multi-row or unordered sets)
   --size N                 longest side of the analysis image in px (default ${defaultMaxSide})
   --prefer jpeg|raw        of a RAW+JPEG pair (one shot written twice), check this one (default jpeg;
@@ -65,7 +71,7 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
       args,
       allowPositionals: true,
       options: {
-        recursive: { type: 'boolean' }, 'all-pairs': { type: 'boolean' }, size: { type: 'string' }, threads: { type: 'string' },
+        recursive: { type: 'boolean' }, 'no-recursive': { type: 'boolean' }, sequence: { type: 'string' }, 'all-pairs': { type: 'boolean' }, size: { type: 'string' }, threads: { type: 'string' },
         json: { type: 'string' }, graphml: { type: 'string' }, csv: { type: 'string' }, dot: { type: 'string' }, 'tie-points': { type: 'string' }, 'coverage-map': { type: 'string' }, prefer: { type: 'string' },
         force: { type: 'boolean' }, 'no-cache': { type: 'boolean' }, settings: { type: 'string' }, 'no-progress': { type: 'boolean' }, help: { type: 'boolean' },
         'min-inliers': { type: 'string' }, 'reshoot-overlap': { type: 'string' }, 'weak-overlap': { type: 'string' }, 'max-ev': { type: 'string' },
@@ -134,8 +140,11 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
   let report: Report;
   let tiePoints;
   try {
-    const result = await runCheck(folder, {
-      recursive: v.recursive,
+    // A camera card's layout (DCIM and numbered folders) is read through all its folders.
+    const recursive = v.recursive ?? (v['no-recursive'] ? false : await isCardLayout(folder));
+    const result = await checkCard(folder, {
+      recursive,
+      sequence: v.sequence ?? null,
       allPairs: v['all-pairs'],
       maxSide: size,
       threads: threads ?? commandLineThreads(),

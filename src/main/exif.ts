@@ -12,13 +12,15 @@ export interface FrameExif {
   readonly orientation: number | null;
   /** ExposureMode (CIPA DC-008: 0 auto exposure, 1 manual, 2 auto bracket), or null. */
   readonly exposureMode: number | null;
+  /** The lens as EXIF names it (LensModel, EXIF 2.3), or null: a change of lens starts a new sequence. */
+  readonly lens: string | null;
 }
 
 /** The tags a check reads, by name and by number (EXIF 2.32, CIPA DC-008, section 4.6; TIFF 6.0). */
 const tagIds: Record<string, number> = {
   ExposureTime: 0x829a, FNumber: 0x829d, ISO: 0x8827, ExposureCompensation: 0x9204, FocalLength: 0x920a,
   FocalLengthIn35mmFormat: 0xa405, WhiteBalance: 0xa403, Make: 0x010f, Model: 0x0110, DateTimeOriginal: 0x9003,
-  SubSecTimeOriginal: 0x9291, Orientation: 0x0112, ExposureMode: 0xa402,
+  SubSecTimeOriginal: 0x9291, Orientation: 0x0112, ExposureMode: 0xa402, LensModel: 0xa434,
 };
 const tags = [...Object.keys(tagIds), 'ISOSpeedRatings', 'PhotographicSensitivity'];
 
@@ -99,6 +101,7 @@ export async function readFrameExif(path: string): Promise<FrameExif> {
     captureTime: date?.iso ?? null,
     orientation: orientation !== null && Number.isInteger(orientation) ? orientation : null,
     exposureMode: mode !== null && Number.isInteger(mode) && mode >= 0 ? mode : null,
+    lens: text(raw.LensModel),
   };
 }
 

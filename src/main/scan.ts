@@ -57,6 +57,27 @@ export async function scanFolder(folder: string, recursive: boolean): Promise<Sc
   return { files, problems };
 }
 
+/**
+ * A camera card's folder layout (DCF, "Design rule for Camera File system", JEITA CP-3461: images
+ * under DCIM in folders named by three digits from 100 and five more characters, e.g. 100CANON;
+ * (memory)): the folder is a DCIM folder, or holds one, or holds such numbered folders itself.
+ * A card is read through its numbered folders, since a sequence may run from one into the next.
+ */
+export async function isCardLayout(folder: string): Promise<boolean> {
+  const dcf = /^[1-9]\d{2}[0-9A-Za-z_]{5}$/;
+  const subfolders = async (dir: string): Promise<string[]> => {
+    try {
+      return (await readdir(dir, { withFileTypes: true })).filter((e) => e.isDirectory() && !e.name.startsWith('.')).map((e) => e.name);
+    } catch {
+      return [];
+    }
+  };
+  const here = await subfolders(folder);
+  if (here.some((n) => dcf.test(n))) return true;
+  const dcim = here.find((n) => n.toUpperCase() === 'DCIM');
+  return dcim !== undefined && (await subfolders(join(folder, dcim))).some((n) => dcf.test(n));
+}
+
 /** Bytes compared first, from the start of each file: a camera's files differ there (EXIF capture time, counters). */
 const headBytes = 64 * 1024;
 

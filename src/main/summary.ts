@@ -1,4 +1,6 @@
-import type { Report, Verdict } from '../core/report.js';
+import type { Report, ReportSequence, Verdict } from '../core/report.js';
+import { millimetres } from '../core/number-words.js';
+import { sequenceReport } from '../core/sequence-report.js';
 import { lensSentence } from '../core/lens-words.js';
 import { notChecked } from '../core/verdicts.js';
 
@@ -9,8 +11,71 @@ function pad(s: string, n: number): string {
   return s.length >= n ? s : s + ' '.repeat(n - s.length);
 }
 
+/** Why a sequence is apart from the one before it, in words. */
+function apartWords(splitBy: ReportSequence['splitBy']): string {
+  const words = splitBy.map((e) => {
+    switch (e.by) {
+      case 'pause':
+        return `a pause of ${duration(e.seconds)}`;
+      case 'camera':
+        return `another camera${e.to ? ` (${e.to})` : ''}`;
+      case 'lens':
+        return `another lens${e.to ? ` (${e.to})` : ''}`;
+      case 'focal-length':
+        return `focal length ${millimetres(e.fromMm)} to ${millimetres(e.toMm)}`;
+      case 'orientation':
+        return `${e.to} instead of ${e.from}`;
+      case 'content':
+        return `${e.after} and ${e.before} share nothing`;
+    }
+  });
+  return words.join(', ');
+}
+
+const duration = (s: number): string => (s < 90 ? `${Math.round(s)} s` : s < 5400 ? `${Math.round(s / 60)} min` : `${(s / 3600).toFixed(1)} h`);
+/** "19:12" from a local ISO 8601 time. */
+const clock = (iso: string | null): string | null => (iso ? iso.slice(11, 16) : null);
+
+/**
+ * The summary of a card of several sequences (or of one with single shots beside it): a block per
+ * sequence, headed by its frames, time span, stations and verdict, each as if it were checked alone;
+ * then the single shots, the files not checked, and the card's count and verdict.
+ */
+function formatCard(report: Report): string {
+  const seqs = report.sequences ?? [];
+  const singles = report.singleShots ?? [];
+  const out: string[] = [`Seamscout check of ${report.folder}`];
+  out.push(`${seqs.length} sequence${seqs.length === 1 ? '' : 's'}${singles.length ? ` and ${singles.length} single shot${singles.length === 1 ? '' : 's'}` : ''} on the card`);
+  for (const q of seqs) {
+    const span = [clock(q.startTime), clock(q.endTime)].filter(Boolean);
+    const when = span.length === 2 ? (span[0] === span[1] ? `, ${span[0]}` : `, ${span[0]} to ${span[1]}`) : '';
+    out.push('', `Sequence ${q.index} of ${seqs.length}: ${q.firstFile} to ${q.lastFile}, ${q.frames.length} frames, ${q.stations.length} stations${when}, ${word[q.verdict]}`);
+    if (q.splitBy.length) out.push(`  apart from the sequence before: ${apartWords(q.splitBy)}`);
+    const body = formatOne(sequenceReport(report, q.index)).trimEnd().split('\n').slice(1);
+    out.push(...body.map((l) => (l ? `  ${l}` : l)));
+  }
+  if (singles.length) {
+    const w = Math.max(...singles.map((s) => s.file.length));
+    out.push('', 'Single shots (not part of a sequence, not judged):', ...singles.map((s) => `  ${pad(s.file, w)}  ${clock(s.captureTime) ?? '     '}  ${s.reason}`));
+  }
+  for (const p of report.folderProblems) out.push('', `! ${p.advice}`);
+  const left = notChecked(report.skipped);
+  if (left.length) out.push('', 'Not checked:', ...left.map((s) => `! ${s.file}: ${s.reason}`));
+  if (report.rawPlusJpeg) out.push('', rawPlusJpegLine(report.rawPlusJpeg));
+  const by = (v: string): number => seqs.filter((q) => q.verdict === v).length;
+  const tally = [by('ok') ? `${by('ok')} ok` : '', by('weak') ? `${by('weak')} weak` : '', by('reshoot') ? `${by('reshoot')} to reshoot` : ''].filter(Boolean).join(', ');
+  out.push('', `${seqs.length} sequence${seqs.length === 1 ? '' : 's'}${tally ? `: ${tally}` : ''}${singles.length ? `; ${singles.length} single shot${singles.length === 1 ? '' : 's'}` : ''}.`);
+  out.push(`Verdict: ${word[report.verdict]}.${report.verdict === 'ok' ? ' Every sequence is within the match budget.' : ` ${report.counts.reshoot} to reshoot, ${report.counts.weak} weak, over the sequences above.`}`);
+  return out.join('\n') + '\n';
+}
+
 /** The summary a photographer reads in the terminal: pairs in shooting order, then what to reshoot. */
 export function formatSummary(report: Report): string {
+  if ((report.sequences?.length ?? 0) > 1 || (report.singleShots?.length ?? 0) > 0) return formatCard(report);
+  return formatOne(report);
+}
+
+function formatOne(report: Report): string {
   const out: string[] = [];
   const g = report.geometry;
   const openTurn = report.pairs.some((p) => p.kind === 'closure' && p.homography === null);
