@@ -119,12 +119,14 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   const adviceSlot = el('div', { class: 'advice-slot' });
   const exportSlot = el('div', { class: 'export-slot' });
   const budgetStatusEl = el('p', { class: 'budget-status', role: 'status', 'data-budget-status': '' });
+  const wide = el('div', { class: 'results-wide' }, stripSection, coverageSlot, detailSlot);
   const results = el(
     'div',
     { class: 'results' },
     summarySlot,
-    el('div', { class: 'results-wide' }, listSlot, stripSection, coverageSlot, detailSlot),
-    el('div', { class: 'results-main' }, adviceSlot),
+    wide,
+    // The card's list sits beside the budget, where a sequence's advice goes.
+    el('div', { class: 'results-main' }, listSlot, adviceSlot),
     el('aside', { class: 'results-side' }, panel.element, budgetStatusEl, exportSlot),
   );
 
@@ -189,6 +191,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     replaceChildren(summarySlot, renderSummary(report, { switchPreference: running ? undefined : switchPreference }));
     replaceChildren(listSlot, renderSequenceList(report, { thumbnail, selected: listSelected, onOpen: openSequence, onSelect: (i) => selectSequence(i, false) }));
     listSlot.hidden = false;
+    wide.hidden = true;
     replaceChildren(stripSlot);
     stripSection.hidden = true;
     replaceChildren(coverageSlot);
@@ -204,6 +207,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   function fillSequence(card: Report, report: Report): void {
     replaceChildren(listSlot);
     listSlot.hidden = true;
+    wide.hidden = false;
     const hadFocus = stripSlot.contains(doc.activeElement) ? doc.activeElement?.getAttribute('data-pair') ?? null : null;
     const bar = isCard(card) && openSeq !== null ? renderSequenceBar(card, openSeq, backToList) : null;
     replaceChildren(summarySlot, bar, renderSummary(report, { switchPreference: running ? undefined : switchPreference }));
