@@ -10,9 +10,12 @@ import { chromium } from 'playwright-core';
 import { build } from 'vite';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { DemoTruth } from '../src/core/demo-truth.js';
+import { defaultBudget } from '../src/core/report.js';
+import { judge } from '../src/core/verdicts.js';
 import type { BrowserHost } from '../src/main/browser-host.js';
 import { startBrowserHost } from '../src/main/browser-host.js';
 import { writeDemoShoot } from '../src/main/demo-writer.js';
+import { cardAnalysis } from './helpers/card-analysis.js';
 import { projectRoot, tempDir } from './helpers/cli.js';
 
 const chromiumPath = '/usr/bin/chromium';
@@ -142,5 +145,50 @@ describe('the app in a real browser', () => {
     expect(xml).toContain('<graphml xmlns="http://graphml.graphdrawing.org/xmlns"');
     expect((xml.match(/<node /g) ?? []).length).toBe(truth.frames.length);
     await expect.poll(() => page.locator('[data-export-result]').innerText()).toMatch(/graphml/i);
+  }, 60_000);
+});
+
+// No check splits a card into sequences yet: this case gives the page the same built assets but a
+// stand-in API (put where the desktop bridge puts it) that hands over a hand-made card of three
+// sequences, to see the list laid out by a real browser at the smallest screen we support.
+describe('a card of several sequences in a real browser', () => {
+  it('opens on the list, opens a sequence from the keyboard, and fits 1366x768 without scrolling sideways', async () => {
+    const report = judge(cardAnalysis, defaultBudget);
+    const standIn = `window.seamscout = (() => {
+      const done = [];
+      const report = ${JSON.stringify(report)};
+      const thumb = (file) => 'data:image/svg+xml,' + encodeURIComponent('<svg xmlns="http://www.w3.org/2000/svg" width="300" height="200"><rect width="300" height="200" fill="#8a9aa8"/><text x="10" y="30" font-size="24">' + file + '</text></svg>');
+      return {
+        hostInfo: async () => ({ shell: 'desktop', version: 'e2e', initialTarget: { demo: true } }),
+        chooseFolder: async () => null, recentFolders: async () => [], cancelCheck: async () => undefined,
+        startCheck: async () => { setTimeout(() => done.forEach((l) => l({ checkId: 1, report, error: null, cancelled: false })), 20); return 1; },
+        loadBudget: async () => report.budget, saveBudget: async (b) => b,
+        loadShotPreference: async () => 'jpeg', saveShotPreference: async (p) => p,
+        exportReport: async () => null, tiePoints: async () => [],
+        frameUrl: (id, file) => thumb(file),
+        onProgress: () => () => undefined, onPartial: () => () => undefined,
+        onDone: (l) => { done.push(l); return () => undefined; },
+      };
+    })();`;
+    const context = await browser.newContext({ viewport: { width: 1366, height: 768 }, deviceScaleFactor: 1 });
+    const p = await context.newPage();
+    p.on('pageerror', (err) => console.error('page error:', err.message));
+    await p.addInitScript({ content: standIn });
+    await p.goto(host.url);
+    await p.locator('[data-sequence="3"]').waitFor({ timeout: 20_000 });
+    const sideways = (): Promise<number> => p.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
+    expect(await p.locator('[data-sequence]').evaluateAll((n) => n.map((x) => x.getAttribute('data-verdict')))).toEqual(['reshoot', 'ok', 'weak']);
+    expect(await sideways()).toBe(0);
+    await p.screenshot({ path: join(shots, 'card-list.png'), fullPage: true });
+    await p.keyboard.press('ArrowDown');
+    await p.keyboard.press('ArrowDown');
+    await p.keyboard.press('Enter');
+    await p.locator('[data-back-to-list]').waitFor();
+    expect((await p.locator('[data-pair]').evaluateAll((n) => n.map((x) => x.getAttribute('data-pair')))).sort()).toEqual(['S2_01.jpg|S2_02.jpg', 'S2_01.jpg|S2_03.jpg', 'S2_01.jpg|S2_04.jpg', 'S2_04.jpg|S2_05.jpg', 'S2_04.jpg|S2_06.jpg']);
+    expect(await sideways()).toBe(0);
+    await p.screenshot({ path: join(shots, 'card-sequence.png') });
+    await p.keyboard.press('Escape');
+    await p.locator('[data-sequence="2"]:focus').waitFor();
+    await context.close();
   }, 60_000);
 });

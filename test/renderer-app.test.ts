@@ -9,6 +9,7 @@ import { defaultBudget } from '../src/core/report.js';
 import { judge } from '../src/core/verdicts.js';
 import type { MountedApp } from '../src/renderer/app.js';
 import { mountApp } from '../src/renderer/app.js';
+import { cardAnalysis } from './helpers/card-analysis.js';
 
 const W = 4000, H = 6000; // portrait frames
 const pair = (a: string, b: string, overlap: number, extra: Partial<PairMeasure> = {}): PairMeasure => ({
@@ -551,5 +552,111 @@ describe('hooks for the end-to-end tests', () => {
     expect(document.querySelectorAll(`[data-pair="${K12}"]`).length).toBe(1);
     // The thumbnails come back as the same elements, so they do not load again.
     expect($('[data-frame="F2.jpg"] img')).toBe(thumb);
+  });
+});
+
+describe('a card of several sequences', () => {
+  // Three sequences (reshoot, ok, weak) and two single shots: see test/helpers/card-analysis.ts.
+  const card: Report = judge(cardAnalysis, defaultBudget);
+  const sequenceOf = (n: Element): string | null => n.getAttribute('data-sequence');
+
+  it('opens on the list, not on a strip, with the card summed up above it', async () => {
+    const f = fakeApi();
+    await withResults(f, card);
+    expect([...document.querySelectorAll('[data-sequence]')].map(sequenceOf)).toEqual(['1', '2', '3']);
+    expect(document.querySelectorAll('[data-pair], [data-frame], .coverage, [data-back-to-list]').length).toBe(0);
+    expect($('[data-summary] [data-verdict]')?.getAttribute('data-verdict')).toBe('reshoot');
+    expect(text($('[data-summary] .overall-words'))).toBe('3 sequences: 1 ok, 1 weak, 1 to reshoot; 2 single shots.');
+    expect(document.querySelectorAll('[data-single-shot]').length).toBe(2);
+    expect($<HTMLImageElement>('[data-sequence="2"] img')?.getAttribute('src')).toBe('seamscout-frame://frames/7/S2_01.jpg?max=320');
+    expect($('[data-export="json"]')).not.toBeNull();
+    expect($('[name="weakOverlap"]')).not.toBeNull();
+  });
+
+  it('walks the list with the arrows, opens a sequence with Enter, and comes back with Escape', async () => {
+    const f = fakeApi();
+    await withResults(f, card);
+    press('ArrowDown');
+    expect(sequenceOf(document.activeElement!)).toBe('1');
+    press('ArrowDown');
+    press('ArrowDown');
+    press('ArrowDown');
+    expect(sequenceOf(document.activeElement!)).toBe('3');
+    press('ArrowUp');
+    expect(sequenceOf(document.activeElement!)).toBe('2');
+    press('ArrowRight');
+    expect(sequenceOf(document.activeElement!)).toBe('3');
+    expect([...document.querySelectorAll('.is-selected')].map(sequenceOf)).toEqual(['3']);
+
+    press('Enter');
+    // The sequence alone: its strip, its verdict, and the way back focused.
+    expect(document.activeElement?.hasAttribute('data-back-to-list')).toBe(true);
+    expect(text($('[data-sequence-bar] h2'))).toBe('Sequence 3 of 3: S3_01.jpg to S3_03.jpg');
+    expect($('[data-sequence]')).toBeNull();
+    expect([...document.querySelectorAll('[data-pair]')].map((n) => [n.getAttribute('data-pair'), n.getAttribute('data-verdict')])).toEqual([['S3_01.jpg|S3_02.jpg', 'weak'], ['S3_02.jpg|S3_03.jpg', 'ok']]);
+    expect([...document.querySelectorAll('[data-station]')].map((n) => n.getAttribute('aria-label'))).toEqual(['Station 1, 1 frame', 'Station 2, 1 frame', 'Station 3, 1 frame']);
+    expect($('[data-summary] [data-verdict]')?.getAttribute('data-verdict')).toBe('weak');
+    expect(text($('[data-stat="frames"] dd'))).toBe('3');
+
+    // Inside, the strip's keys work as before; Escape steps back one level at a time.
+    press('ArrowRight');
+    expect(document.activeElement?.getAttribute('data-pair')).toBe('S3_01.jpg|S3_02.jpg');
+    press('Enter');
+    expect($('[data-detail]')?.getAttribute('data-pair')).toBe('S3_01.jpg|S3_02.jpg');
+    expect(f.calls.at(-1)).toEqual({ name: 'tiePoints', args: [7, 'S3_01.jpg', 'S3_02.jpg'] });
+    press('Escape');
+    expect(document.activeElement?.getAttribute('data-pair')).toBe('S3_01.jpg|S3_02.jpg');
+    press('Escape');
+    expect(sequenceOf(document.activeElement!)).toBe('3');
+    expect(document.querySelectorAll('[data-pair]').length).toBe(0);
+    press('Escape');
+    expect($('[data-choose-folder]')).not.toBeNull();
+  });
+
+  it('opens a sequence on click, goes back with "All sequences", and re-judges the whole card when the budget changes', async () => {
+    const f = fakeApi();
+    await withResults(f, card);
+    ($('[data-sequence="2"]') as HTMLElement).click();
+    expect($('[data-pair="S2_01.jpg|S2_04.jpg"]')?.getAttribute('data-verdict')).toBe('ok');
+    type('weakOverlap', '50');
+    // Re-judged at once: the open sequence's 45 % pair is now weak, and so is the sequence.
+    expect($('[data-pair="S2_01.jpg|S2_04.jpg"]')?.getAttribute('data-verdict')).toBe('weak');
+    expect($('[data-summary] [data-verdict]')?.getAttribute('data-verdict')).toBe('weak');
+    buttonNamed('All sequences').click();
+    expect(sequenceOf(document.activeElement!)).toBe('2');
+    expect([...document.querySelectorAll('[data-sequence]')].map((n) => n.getAttribute('data-verdict'))).toEqual(['reshoot', 'weak', 'weak']);
+    await tick(5);
+    expect(f.calls.filter((c) => c.name === 'saveBudget').at(-1)?.args[0]).toEqual({ ...defaultBudget, weakOverlap: 0.5 });
+  });
+
+  it('keeps an opened sequence when a fuller report of the same check has it, and goes back to the list when not', async () => {
+    const f = fakeApi();
+    await mount(f);
+    buttonNamed('Try the demo shoot').click();
+    await tick();
+    f.emitPartial({ checkId: 7, report: card });
+    await tick();
+    ($('[data-sequence="3"]') as HTMLElement).click();
+    f.emitPartial({ checkId: 7, report: card });
+    expect($('[data-sequence-bar]')?.getAttribute('data-sequence-bar')).toBe('3');
+    const twoOnly = judge({ ...cardAnalysis, sequences: cardAnalysis.sequences!.slice(0, 2) }, defaultBudget);
+    f.emitDone({ checkId: 7, report: twoOnly, error: null, cancelled: false });
+    await tick();
+    expect($('[data-sequence-bar]')).toBeNull();
+    expect([...document.querySelectorAll('[data-sequence]')].map(sequenceOf)).toEqual(['1', '2']);
+  });
+
+  it('looks and behaves as before with one sequence on the card', async () => {
+    const f = fakeApi();
+    await withResults(f);
+    const before = root.innerHTML;
+    app?.destroy();
+    const g = fakeApi();
+    const one: Report = judge({ ...analysis, sequences: [{ index: 1, splitBy: [], frames: analysis.frames, stations: analysis.stations, pairs: analysis.pairs, sweepDeg: null, geometry: null }], singleShots: [] }, defaultBudget);
+    await withResults(g, one);
+    expect(root.innerHTML).toBe(before);
+    expect($('[data-sequence], [data-back-to-list]')).toBeNull();
+    press('Escape');
+    expect($('[data-choose-folder]')).not.toBeNull();
   });
 });

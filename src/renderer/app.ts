@@ -3,6 +3,7 @@
 import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat, HostInfo, SeamscoutApi, ShotPreference } from '../main/app-api.js';
 import type { MatchBudget, Report } from '../core/report.js';
 import { defaultBudget } from '../core/report.js';
+import { sequenceReport } from '../core/sequence-report.js';
 import { rejudge } from '../core/verdicts.js';
 import { renderAdvice } from './advice-view.js';
 import { createBudgetPanel } from './budget-panel.js';
@@ -17,6 +18,7 @@ import { createProgressView, emptyProgress, withEvent } from './progress-view.js
 import type { StartModel } from './start-view.js';
 import { renderStart } from './start-view.js';
 import { renderCoverage } from './coverage-view.js';
+import { isCard, renderSequenceBar, renderSequenceList } from './sequence-list-view.js';
 import { renderStrip } from './strip-view.js';
 import { renderSummary } from './summary-view.js';
 import { applyStoredTheme, themeToggle } from './theme.js';
@@ -80,6 +82,9 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   let raw: Report | null = null;
   let report: Report | null = null;
   let selected: string | null = null;
+  // A card of several sequences opens on its list; `openSeq` is the sequence shown (its index), or null for the list.
+  let openSeq: number | null = null;
+  let listSelected: number | null = null;
   let detail: string | null = null;
   let lines = true;
   let ties = new Map<string, TiePointState>();
@@ -106,6 +111,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     scheduleSave(b);
   });
   const summarySlot = el('div', { class: 'summary-slot' });
+  const listSlot = el('div', { class: 'list-slot' });
   const stripSlot = el('div', { class: 'strip-slot' });
   const stripSection = el('section', { class: 'strip-section', 'aria-label': 'Strip' }, el('h2', { class: 'visually-hidden' }, 'Strip'), stripSlot);
   const coverageSlot = el('div', { class: 'coverage-slot' });
@@ -113,12 +119,14 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   const adviceSlot = el('div', { class: 'advice-slot' });
   const exportSlot = el('div', { class: 'export-slot' });
   const budgetStatusEl = el('p', { class: 'budget-status', role: 'status', 'data-budget-status': '' });
+  const wide = el('div', { class: 'results-wide' }, stripSection, coverageSlot, detailSlot);
   const results = el(
     'div',
     { class: 'results' },
     summarySlot,
-    el('div', { class: 'results-wide' }, stripSection, coverageSlot, detailSlot),
-    el('div', { class: 'results-main' }, adviceSlot),
+    wide,
+    // The card's list sits beside the budget, where a sequence's advice goes.
+    el('div', { class: 'results-main' }, listSlot, adviceSlot),
     el('aside', { class: 'results-side' }, panel.element, budgetStatusEl, exportSlot),
   );
 
@@ -161,10 +169,48 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     return { shell: host?.shell ?? null, recent, showPathField, canDrop: typeof bridge.pathForFile === 'function', message, hasResults: report !== null, prefer };
   }
 
+  /** The card shows its list; a sequence opened from it, or a report of one sequence, shows the strip. */
+  const listing = (): boolean => report !== null && isCard(report) && openSeq === null;
+
+  /** The report the strip, detail, coverage and advice are built from: the opened sequence alone, or the whole report. */
+  function shown(): Report | null {
+    if (!report) return null;
+    return isCard(report) && openSeq !== null ? sequenceReport(report, openSeq) : report;
+  }
+
   function fillResults(): void {
+    const one = shown();
+    if (!report || !one) return;
+    if (listing()) fillList();
+    else fillSequence(report, one);
+  }
+
+  function fillList(): void {
     if (!report) return;
-    const hadFocus = stripSlot.contains(doc.activeElement) ? doc.activeElement?.getAttribute('data-pair') ?? null : null;
+    const hadFocus = listSlot.contains(doc.activeElement) ? doc.activeElement?.getAttribute('data-sequence') ?? null : null;
     replaceChildren(summarySlot, renderSummary(report, { switchPreference: running ? undefined : switchPreference }));
+    replaceChildren(listSlot, renderSequenceList(report, { thumbnail, selected: listSelected, onOpen: openSequence, onSelect: (i) => selectSequence(i, false) }));
+    listSlot.hidden = false;
+    wide.hidden = true;
+    replaceChildren(stripSlot);
+    stripSection.hidden = true;
+    replaceChildren(coverageSlot);
+    replaceChildren(detailSlot);
+    // Advice names stations, counted within each sequence: it is read in the sequence it belongs to.
+    replaceChildren(adviceSlot);
+    adviceSlot.hidden = true;
+    replaceChildren(exportSlot, renderExport(exportResult, doExport));
+    budgetStatusEl.textContent = budgetStatus;
+    if (hadFocus) listSlot.querySelector<HTMLElement>(`[data-sequence="${cssEscape(hadFocus)}"]`)?.focus();
+  }
+
+  function fillSequence(card: Report, report: Report): void {
+    replaceChildren(listSlot);
+    listSlot.hidden = true;
+    wide.hidden = false;
+    const hadFocus = stripSlot.contains(doc.activeElement) ? doc.activeElement?.getAttribute('data-pair') ?? null : null;
+    const bar = isCard(card) && openSeq !== null ? renderSequenceBar(card, openSeq, backToList) : null;
+    replaceChildren(summarySlot, bar, renderSummary(report, { switchPreference: running ? undefined : switchPreference }));
     // While the detail is open the strip is out of the document, so that [data-pair="a|b"] names
     // one element only (the detail); thumbnails are kept and come back without reloading.
     if (detail) replaceChildren(stripSlot);
@@ -213,6 +259,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   }
 
   function move(step: 1 | -1): void {
+    const report = shown();
     if (!report) return;
     const chain = chainPairs(report).map(pairKey);
     if (chain.length === 0) return;
@@ -226,6 +273,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   }
 
   function openDetail(key: string): void {
+    const report = shown();
     if (!report || checkId === null) return;
     const p = findPair(report, key);
     if (!p) return;
@@ -257,6 +305,44 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     fillResults();
     const target = (selected && stripSlot.querySelector<HTMLElement>(`[data-pair="${cssEscape(selected)}"]`)) || (key && stripSlot.querySelector<HTMLElement>(`[data-pair="${cssEscape(key)}"]`));
     if (target) target.focus();
+  }
+
+  // The card's list.
+  function selectSequence(index: number, focus: boolean): void {
+    listSelected = index;
+    for (const n of listSlot.querySelectorAll<HTMLElement>('[data-sequence]')) {
+      const on = Number(n.getAttribute('data-sequence')) === index;
+      n.classList.toggle('is-selected', on);
+      if (on) n.setAttribute('aria-current', 'true');
+      else n.removeAttribute('aria-current');
+    }
+    if (focus) listSlot.querySelector<HTMLElement>(`[data-sequence="${index}"]`)?.focus();
+  }
+
+  function moveInList(step: 1 | -1): void {
+    const order = (report?.sequences ?? []).map((q) => q.index);
+    if (order.length === 0) return;
+    const at = listSelected !== null ? order.indexOf(listSelected) : -1;
+    const next = at < 0 ? (step > 0 ? 0 : order.length - 1) : Math.max(0, Math.min(order.length - 1, at + step));
+    selectSequence(order[next], true);
+  }
+
+  function openSequence(index: number): void {
+    if (!report || !(report.sequences ?? []).some((q) => q.index === index)) return;
+    openSeq = index;
+    listSelected = index;
+    selected = null;
+    detail = null;
+    fillResults();
+    summarySlot.querySelector<HTMLElement>('[data-back-to-list]')?.focus();
+  }
+
+  function backToList(): void {
+    openSeq = null;
+    selected = null;
+    detail = null;
+    fillResults();
+    if (listSelected !== null) listSlot.querySelector<HTMLElement>(`[data-sequence="${listSelected}"]`)?.focus();
   }
 
   // Budget.
@@ -373,6 +459,8 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
       checkId = id;
       selected = null;
       detail = null;
+      openSeq = null;
+      listSelected = null;
       ties = new Map();
       thumbs = new Map();
       fulls = new Map();
@@ -380,6 +468,12 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     }
     raw = r;
     report = sameBudget(r.budget, budget) ? r : rejudge(r, budget);
+    // A fuller report may have found the card's sequences otherwise: an opened sequence that is gone goes back to the list.
+    if (openSeq !== null && !(isCard(report) && report.sequences?.some((q) => q.index === openSeq))) {
+      openSeq = null;
+      selected = null;
+      detail = null;
+    }
     screen = 'results';
     render();
   }
@@ -483,6 +577,24 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
       if (e.key === 'Escape') (t as HTMLElement).blur();
       return;
     }
+    if (listing()) {
+      if (e.key === 'ArrowDown' || e.key === 'ArrowRight' || e.key === 'ArrowUp' || e.key === 'ArrowLeft') {
+        e.preventDefault();
+        moveInList(e.key === 'ArrowDown' || e.key === 'ArrowRight' ? 1 : -1);
+      } else if (e.key === 'Enter') {
+        const onEntry = t?.closest('[data-sequence]')?.getAttribute('data-sequence') ?? null;
+        if (!onEntry && t?.closest('button, a, summary')) return;
+        const index = onEntry !== null ? Number(onEntry) : listSelected;
+        if (index !== null) {
+          e.preventDefault();
+          openSequence(index);
+        }
+      } else if (e.key === 'Escape') {
+        e.preventDefault();
+        goStart();
+      }
+      return;
+    }
     if (e.key === 'ArrowRight' || e.key === 'ArrowLeft') {
       e.preventDefault();
       move(e.key === 'ArrowRight' ? 1 : -1);
@@ -498,6 +610,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     } else if (e.key === 'Escape') {
       e.preventDefault();
       if (detail) closeDetail();
+      else if (openSeq !== null && isCard(report)) backToList();
       else goStart();
     }
   };

@@ -5,6 +5,7 @@ import { notChecked } from '../core/verdicts.js';
 import { button, el } from './dom.js';
 import { plural } from './format.js';
 import { verdictBadge, verdictIcon } from './icons.js';
+import { cardWords, isCard } from './sequence-list-view.js';
 
 const overallWords: Record<Verdict, string> = {
   ok: 'The sequence looks complete.',
@@ -37,6 +38,8 @@ export function renderSummary(report: Report, act: SummaryActions = {}): HTMLEle
   const c = report.counts;
   const left = notChecked(report.skipped);
   const folderName = report.folder.split(/[\\/]/).filter(Boolean).pop() ?? report.folder;
+  // A card of several sequences is summed up by its sequences' verdicts; its frames and stations are all of theirs.
+  const card = isCard(report);
   return el(
     'section',
     { class: `summary summary-${report.verdict}`, 'data-summary': '', 'aria-label': 'Summary' },
@@ -44,12 +47,13 @@ export function renderSummary(report: Report, act: SummaryActions = {}): HTMLEle
       'div',
       { class: `overall overall-${report.verdict}`, 'data-verdict': report.verdict },
       verdictBadge(report.verdict, 44),
-      el('p', { class: 'overall-words' }, overallWords[report.verdict]),
+      el('p', { class: 'overall-words' }, card ? `${cardWords(report)}.` : overallWords[report.verdict]),
       el('p', { class: 'folder', title: report.folder }, folderName),
     ),
     el(
       'dl',
       { class: 'stats' },
+      card ? stat('sequences', String(report.sequences?.length ?? 0), 'sequences') : null,
       stat('frames', String(c.frames), 'frames'),
       stat('stations', String(c.stations), 'stations'),
       report.sweepDeg !== null ? stat('sweep', `${Math.round(report.sweepDeg)}°`, 'sweep') : null,
