@@ -97,17 +97,18 @@ describe('a card of two panoramas ten minutes apart and two single shots', () =>
 });
 
 describe('a new panorama begun at once, with no pause and the same camera', () => {
-  // A hand-held pan of 8 frames at the horizon, then, at the same rhythm, six frames turning
-  // round the ground below the camera (pitch -75 degrees, 40 degrees apart): the pan sees the
-  // walls from -23 to +23 degrees of pitch, the second set the floor from -98 to -52, so nothing
-  // is seen by both and only the content sets them apart.
+  // A hand-held pan of 8 frames at the horizon (1.5 s a frame), then, 8 s later (re-aiming; far
+  // under any pause), six frames turning round the ground below the camera (pitch -75 degrees,
+  // 40 degrees apart, 1.5 s a frame): the pan sees the walls from -23 to +23 degrees of pitch, the
+  // second set the floor from -98 to -52, so nothing is seen by both and only the content, with a
+  // step out of the rhythm, sets them apart.
   let report: Report;
   beforeAll(async () => {
     const card = join(root, 'at-once');
     const pan = spec('clean-pan-8', 101, 0);
     const end = pan.frames[pan.frames.length - 1].time;
     await shoot(card, 'at-once-1', pan);
-    await shoot(card, 'at-once-2', spec('clean-pan-8', 201, 0, (f) => f.slice(0, 6).map((x, i) => ({ ...x, yawDeg: 40 * i, pitchDeg: -75, rollDeg: 0, time: end + 1.5 * (i + 1) }))));
+    await shoot(card, 'at-once-2', spec('clean-pan-8', 201, 0, (f) => f.slice(0, 6).map((x, i) => ({ ...x, yawDeg: 40 * i, pitchDeg: -75, rollDeg: 0, time: end + 8 + 1.5 * i }))));
     report = await check(card);
   }, 240_000);
 
@@ -118,6 +119,20 @@ describe('a new panorama begun at once, with no pause and the same camera', () =
     expect(report.sequences!.map((q) => q.verdict)).toEqual(['ok', 'ok']);
     expect(report.verdict).toBe('weak');
   });
+});
+
+describe('a pan with a frame missing, shot in its rhythm', () => {
+  // The hand-held pan of 8 frames 35 degrees apart without its fifth frame: frames 4 and 6 are 70
+  // degrees apart and share nothing (the field of view is 65 degrees), 3 s apart in a 1.5 s rhythm.
+  // A gap in one panorama, the fault the check is for, not a new sequence.
+  it('stays one sequence, and the pair across the gap is to be reshot', async () => {
+    const card = join(root, 'missing');
+    await shoot(card, 'missing-frame', spec('clean-pan-8', 101, 0, (f) => f.filter((_, i) => i !== 4)));
+    const report = await check(card);
+    expect(report.sequences).toHaveLength(1);
+    expect(report.singleShots).toEqual([]);
+    expect(report.pairs.filter((p) => p.reasons.length).map((p) => `${p.a}~${p.b} ${p.verdict} ${p.reasons}`)).toEqual(['IMG_0104.jpg~IMG_0105.jpg reshoot no-match']);
+  }, 240_000);
 });
 
 describe('one turn with a long wait in the middle, over two numbered folders of a camera card', () => {

@@ -7,8 +7,9 @@
  * longer than the sequence's rhythm, a change of camera, lens, focal length or orientation. Then the
  * content, which wins over time: frames either side of a pause that overlap are one sequence (a
  * wait for a cloud in the middle of a turn), and a sequence whose neighbour pair found nothing in
- * common while no other pair joins its two sides is two (a new panorama begun at once from another
- * spot). A sequence of one frame, or of one station, is a single shot.
+ * common while no other pair joins its two sides, at a step out of its rhythm, is two (a new
+ * panorama begun at once from another spot). A sequence of one frame, or of one station, is a
+ * single shot.
  */
 import type { Analysis, SequenceAnalysis, SequenceSplit, SingleShot, SkippedFile, StationMeasure } from '../core/report.js';
 import type { SplitFrame } from '../core/sequence-split.js';
@@ -44,20 +45,43 @@ function splitFrameOf(f: CardFile): SplitFrame {
 }
 
 /**
+ * A step between stations this many times the run's typical step is out of its rhythm. Our own: a
+ * hand-held pan varies by a factor of two or three from step to step; re-aiming for another
+ * panorama takes longer than that, even with no pause.
+ */
+export const outOfRhythm = 3;
+
+/**
  * Where a checked run comes apart by content: the first boundary between stations whose neighbour
- * pair found no model while no matched pair joins a station before it to one after it. The index
- * of the first frame after it in the run's files, or -1.
+ * pair found no model while no matched pair joins a station before it to one after it, and whose
+ * step is out of the run's rhythm. The index of the first frame after it in the run's files, or -1.
+ *
+ * A boundary with nothing in common but shot in the rhythm of the rest is a frame missing from one
+ * panorama (the fault the check is for), not a new one: it stays, and its pair is flagged. Without
+ * capture times nothing tells the two apart, and the run stays whole for the same reason.
  */
 export function contentBreak(analysis: Pick<Analysis, 'stations' | 'pairs'>, files: readonly CardFile[]): number {
   const stations: readonly StationMeasure[] = analysis.stations;
   if (stations.length < 2) return -1;
   const stationOf = new Map<string, number>();
   stations.forEach((s, k) => s.frames.forEach((f) => stationOf.set(f, k)));
+  const timeOf = new Map(files.map((f) => [f.file, f.captureMs]));
+  const times = stations.map((s) => s.frames.map((f) => timeOf.get(f) ?? null));
+  // Step k: from the last frame of station k to the first of station k + 1; null without times.
+  const steps = stations.slice(1).map((_, k) => {
+    const end = times[k], start = times[k + 1];
+    if (end.some((t) => t === null) || start.some((t) => t === null)) return null;
+    return Math.min(...(start as number[])) - Math.max(...(end as number[]));
+  });
+  const known = steps.filter((t): t is number => t !== null).sort((x, y) => x - y);
+  const rhythm = known.length ? known[known.length >> 1] : null;
   const joined = analysis.pairs.filter((p) => p.homography !== null).map((p) => [stationOf.get(p.a) ?? -1, stationOf.get(p.b) ?? -1].sort((x, y) => x - y));
   for (let k = 0; k + 1 < stations.length; k++) {
     const between = analysis.pairs.find((p) => p.kind === 'neighbour' && stationOf.get(p.a) === k && stationOf.get(p.b) === k + 1);
     if (!between || between.homography !== null) continue;
     if (joined.some(([x, y]) => x >= 0 && x <= k && y > k)) continue;
+    const step = steps[k];
+    if (step === null || rhythm === null || !(step >= outOfRhythm * Math.max(rhythm, 1))) continue;
     const first = stations[k + 1].frames[0];
     const at = files.findIndex((f) => f.file === first);
     // Frames between the two stations that no station took (decoding failed) stay with the first.
