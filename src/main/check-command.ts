@@ -9,6 +9,7 @@ import type { Report } from '../core/report.js';
 import { judge } from '../core/verdicts.js';
 import { commandLineThreads, defaultMaxSide } from './check.js';
 import { checkCard } from './card-check.js';
+import { sequenceReport } from '../core/sequence-report.js';
 import { isCardLayout } from './scan.js';
 import { coverageMapContent, coverageMapFormat } from './coverage-map-file.js';
 import { createFeatureCache } from './feature-cache.js';
@@ -18,7 +19,8 @@ import { writeFileAtomic } from './write-file.js';
 
 export const checkUsage = `Usage: seamscout check [folder] [options]
 
-Checks a shot sequence: which frames to reshoot and why. Without a folder, checks the demo shoot.
+Checks the shot sequences in a folder or on a card, each on its own: which frames to reshoot and
+why. Without a folder, checks the demo shoot.
 
 Options:
   --recursive              look in sub-folders too (the default for a camera card: a folder that is,
@@ -38,7 +40,8 @@ Options:
   --dot FILE               write the pair graph in the DOT language
   --tie-points FILE        write the inlier correspondences (CSV: a,b,xa,ya,xb,yb, full-resolution px)
   --coverage-map FILE      write the coverage map: every frame's footprint on the sphere around the
-                           camera and what no frame sees (.svg, or .png)
+                           camera and what no frame sees (.svg, or .png); on a card of several
+                           sequences, one file each, numbered (map-1.svg, map-2.svg, ...)
   --force                  overwrite existing output files
   --no-cache               analyse every frame again (the cache lives in the user's cache folder)
   --settings FILE          settings file (default: the user settings file, if present)
@@ -171,8 +174,14 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
     [v.csv, () => reportToCsv(report)],
     [v.dot, () => reportToDot(report)],
     [v['tie-points'], () => tiePointsToCsv(tiePoints, report)],
-    [v['coverage-map'], () => coverageMapContent(report, coverageMapFormat(v['coverage-map']!))],
   ];
+  // The coverage map is of one sequence: on a card of several, one file each, numbered.
+  const sequences = report.sequences ?? [];
+  if (v['coverage-map'] && sequences.length > 1) {
+    const path = v['coverage-map'];
+    const dot = path.lastIndexOf('.');
+    for (const q of sequences) outputs.push([`${path.slice(0, dot)}-${q.index}${path.slice(dot)}`, () => coverageMapContent(sequenceReport(report, q.index), coverageMapFormat(path))]);
+  } else outputs.push([v['coverage-map'], () => coverageMapContent(report, coverageMapFormat(v['coverage-map']!))]);
   let failed = false;
   for (const [path, make] of outputs) {
     if (!path) continue;
