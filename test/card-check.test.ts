@@ -13,6 +13,7 @@ import { judge } from '../src/core/verdicts.js';
 import { createAnalysisPool } from '../src/main/analysis-pool.js';
 import { checkCard } from '../src/main/card-check.js';
 import { runCheck } from '../src/main/check.js';
+import { createFeatureCache } from '../src/main/feature-cache.js';
 import { isCardLayout } from '../src/main/scan.js';
 import { formatSummary } from '../src/main/summary.js';
 import { tempDir } from './helpers/cli.js';
@@ -52,35 +53,38 @@ const verdicts = (r: Report): unknown => ({
 });
 
 describe('a card of two panoramas ten minutes apart and two single shots', () => {
-  // The first: a turn that stops short (10 frames 30 degrees apart, a planted no-closure); the
-  // second, ten minutes later in another scene: a clean full turn of 12 frames with soft frames
-  // (sky, fog, water). Then two frames aimed at the ceiling and the floor, 20 and 25 minutes on.
+  // The first: the hand-held pan of 8 frames 35 degrees apart without its fifth frame: frames 4 and
+  // 6 are 70 degrees apart and share nothing (the field of view is 65 degrees), 3 s apart in a 1.5 s
+  // rhythm: a gap in one panorama, the fault the check is for, not a new sequence. The second, ten
+  // minutes later in another scene: six frames of a clean turn with soft frames (sky, fog, water).
+  // Then two frames aimed at the ceiling and the floor, 20 and 25 minutes on.
   const card = join(root, 'card');
   let report: Report;
   let first: Report, second: Report;
   beforeAll(async () => {
-    const a = await shoot(card, 'short-turn', spec('fault-short-turn', 101, 0));
-    const b = await shoot(card, 'soft-turn', spec('clean-soft', 201, 600));
+    const a = await shoot(card, 'gap-pan', spec('clean-pan-8', 101, 0, (f) => f.filter((_, i) => i !== 4)));
+    const b = await shoot(card, 'soft-pan', spec('clean-soft', 201, 600, (f) => f.slice(0, 6)));
     await shoot(card, 'singles', spec('clean-soft', 301, 1200, (f) => [{ ...f[0], pitchDeg: 80, time: 0 }, { ...f[3], pitchDeg: -80, time: 300 }]));
     report = await check(card);
     [first, second] = [await alone(a), await alone(b)];
   }, 240_000);
 
-  it('finds the two sequences and lists the single shots apart', () => {
+  it('finds the two sequences, keeps the pan with a frame missing whole, and lists the single shots apart', () => {
     expect(report.sequences!.map((q) => [q.firstFile, q.lastFile, q.frames.length])).toEqual([
-      ['IMG_0101.jpg', 'IMG_0110.jpg', 10],
-      ['IMG_0201.jpg', 'IMG_0212.jpg', 12],
+      ['IMG_0101.jpg', 'IMG_0107.jpg', 7],
+      ['IMG_0201.jpg', 'IMG_0206.jpg', 6],
     ]);
     expect(report.sequences![1].splitBy.map((e) => e.by)).toEqual(['pause']);
     expect(report.singleShots!.map((s) => s.file)).toEqual(['IMG_0301.jpg', 'IMG_0302.jpg']);
     expect(report.frames.map((f) => f.file)).not.toContain('IMG_0301.jpg');
+    expect(report.folderProblems).toEqual([]);
   });
 
-  it("judges each sequence as checking it alone does", () => {
+  it('judges each sequence as checking it alone does', () => {
     expect(verdicts(sequenceReport(report, 1))).toEqual(verdicts(first));
     expect(verdicts(sequenceReport(report, 2))).toEqual(verdicts(second));
-    // The planted fault is the first sequence's own, and nothing crosses from one to the other.
-    expect(first.pairs.filter((p) => p.reasons.length).map((p) => `${p.a}~${p.b} ${p.reasons}`)).toEqual(['IMG_0110.jpg~IMG_0101.jpg no-closure']);
+    // The planted fault is the first sequence's own: the pair across the gap, to reshoot.
+    expect(first.pairs.filter((p) => p.reasons.length).map((p) => `${p.a}~${p.b} ${p.verdict} ${p.reasons}`)).toEqual(['IMG_0104.jpg~IMG_0105.jpg reshoot no-match']);
     expect(second.verdict).toBe('ok');
     expect(report.verdict).toBe('reshoot');
   });
@@ -88,8 +92,8 @@ describe('a card of two panoramas ten minutes apart and two single shots', () =>
   it('says so in the terminal: a block per sequence, the single shots, then the card', () => {
     const text = formatSummary(report);
     expect(text).toMatch(/^2 sequences and 2 single shots on the card$/m);
-    expect(text).toMatch(/^Sequence 1 of 2: IMG_0101\.jpg to IMG_0110\.jpg, 10 frames, 10 stations, 10:00, RESHOOT$/m);
-    expect(text).toMatch(/^Sequence 2 of 2: IMG_0201\.jpg to IMG_0212\.jpg, 12 frames, 12 stations, 10:10, ok$/m);
+    expect(text).toMatch(/^Sequence 1 of 2: IMG_0101\.jpg to IMG_0107\.jpg, 7 frames, 7 stations, 10:00, RESHOOT$/m);
+    expect(text).toMatch(/^Sequence 2 of 2: IMG_0201\.jpg to IMG_0206\.jpg, 6 frames, 6 stations, 10:10, ok$/m);
     expect(text).toMatch(/apart from the sequence before: a pause of 10 min/);
     expect(text).toMatch(/^2 sequences: 1 ok, 1 to reshoot; 2 single shots\.$/m);
     expect(text).not.toMatch(/\d\.\d{4,}/);
@@ -103,13 +107,14 @@ describe('a new panorama begun at once, with no pause and the same camera', () =
   // second set the floor from -98 to -52, so nothing is seen by both and only the content, with a
   // step out of the rhythm, sets them apart.
   let report: Report;
+  const cache = createFeatureCache(join(root, 'cache'));
   beforeAll(async () => {
     const card = join(root, 'at-once');
     const pan = spec('clean-pan-8', 101, 0);
     const end = pan.frames[pan.frames.length - 1].time;
     await shoot(card, 'at-once-1', pan);
     await shoot(card, 'at-once-2', spec('clean-pan-8', 201, 0, (f) => f.slice(0, 6).map((x, i) => ({ ...x, yawDeg: 40 * i, pitchDeg: -75, rollDeg: 0, time: end + 8 + 1.5 * i }))));
-    report = await check(card);
+    report = judge((await checkCard(card, { pool, cache })).analysis, defaultBudget);
   }, 240_000);
 
   it('is split by content, and the break is said, since it may be a missing frame', () => {
@@ -119,19 +124,14 @@ describe('a new panorama begun at once, with no pause and the same camera', () =
     expect(report.sequences!.map((q) => q.verdict)).toEqual(['ok', 'ok']);
     expect(report.verdict).toBe('weak');
   });
-});
 
-describe('a pan with a frame missing, shot in its rhythm', () => {
-  // The hand-held pan of 8 frames 35 degrees apart without its fifth frame: frames 4 and 6 are 70
-  // degrees apart and share nothing (the field of view is 65 degrees), 3 s apart in a 1.5 s rhythm.
-  // A gap in one panorama, the fault the check is for, not a new sequence.
-  it('stays one sequence, and the pair across the gap is to be reshot', async () => {
-    const card = join(root, 'missing');
-    await shoot(card, 'missing-frame', spec('clean-pan-8', 101, 0, (f) => f.filter((_, i) => i !== 4)));
-    const report = await check(card);
-    expect(report.sequences).toHaveLength(1);
-    expect(report.singleShots).toEqual([]);
-    expect(report.pairs.filter((p) => p.reasons.length).map((p) => `${p.a}~${p.b} ${p.verdict} ${p.reasons}`)).toEqual(['IMG_0104.jpg~IMG_0105.jpg reshoot no-match']);
+  it('checks one sequence when asked, by its number or its first file, and names the ones there are otherwise', async () => {
+    const card = join(root, 'at-once');
+    const one = judge((await checkCard(card, { pool, cache, sequence: 'IMG_0201' })).analysis, defaultBudget);
+    expect(one.sequences!.map((q) => [q.index, q.firstFile])).toEqual([[2, 'IMG_0201.jpg']]);
+    expect(one.frames.map((f) => f.file)).toEqual(report.sequences![1].frames.map((f) => f.file));
+    expect(verdicts(one)).toEqual(verdicts(sequenceReport(report, 2)));
+    await expect(checkCard(card, { pool, sequence: '9' })).rejects.toThrow('no sequence 9 on this card: it has 1 (IMG_0101.jpg), 2 (IMG_0201.jpg)');
   }, 240_000);
 });
 

@@ -14,7 +14,8 @@
 // controls, the strongest barrel (k1 = -0.15) is pinned; the milder barrels and the pincushion
 // held too in the survey (test/lens-sequence.test.ts covers them on demo renders). Not pinned here
 // (too slow for the suite, or not passing yet): clean-two-row and fault-two-row-missing,
-// fault-gap-8pc, clean-turn-3000.
+// fault-gap-8pc, clean-turn-3000, and exif-focal-minus3 (the EXIF focal length 3 % short; the 3 %
+// long case is pinned here and in test/lens-sequence.test.ts, and both held in the survey).
 import { copyFile, mkdir, writeFile } from 'node:fs/promises';
 import { rmSync } from 'node:fs';
 import { join } from 'node:path';
@@ -98,9 +99,9 @@ function flagsOf(r: Report): string[] {
   return out.sort();
 }
 
-const fullTurns = new Set(['clean-turn-12', 'clean-bracket-turn', 'clean-soft', 'exif-focal-minus3', 'exif-focal-plus3', 'lens-barrel-015']);
+const fullTurns = new Set(['clean-turn-12', 'clean-bracket-turn', 'clean-soft', 'exif-focal-plus3', 'lens-barrel-015']);
 
-for (const name of ['clean-turn-12', 'clean-pan-8', 'clean-bracket-turn', 'clean-soft', 'exif-focal-minus3', 'exif-focal-plus3', 'lens-barrel-015']) {
+for (const name of ['clean-turn-12', 'clean-pan-8', 'clean-bracket-turn', 'clean-soft', 'exif-focal-plus3', 'lens-barrel-015']) {
   describe(`clean control ${name}`, () => {
     let c: Checked;
     beforeAll(async () => {

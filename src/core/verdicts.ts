@@ -165,7 +165,7 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
   // camera: a new panorama begun at once, or one panorama with a frame missing. Only the
   // photographer knows which, so it is said, and weighs as weak.
   const breaks: FolderProblem[] = sequences
-    .filter((s) => s.splitBy.length > 0 && s.splitBy.every((e) => e.by === 'content'))
+    .filter((s) => sequences.length > 1 && s.splitBy.length > 0 && s.splitBy.every((e) => e.by === 'content'))
     .flatMap((s) => s.splitBy.flatMap((e) => (e.by === 'content' ? [{ code: 'sequence-break' as const, advice: `${e.after} and ${e.before} share nothing, while nothing else sets them apart: read as two sequences. If they are one panorama, a frame is missing between them: reshoot it` }] : [])));
   if (parts.length === 1) {
     const one = judgeOne(analysis, budget);
