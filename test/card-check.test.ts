@@ -12,7 +12,7 @@ import { sequenceReport } from '../src/core/sequence-report.js';
 import { judge } from '../src/core/verdicts.js';
 import { createAnalysisPool } from '../src/main/analysis-pool.js';
 import { checkCard } from '../src/main/card-check.js';
-import { runCheck } from '../src/main/check.js';
+import { readCard, runCheck } from '../src/main/check.js';
 import { createFeatureCache } from '../src/main/feature-cache.js';
 import { isCardLayout } from '../src/main/scan.js';
 import { formatSummary } from '../src/main/summary.js';
@@ -160,4 +160,19 @@ describe('one turn with a long wait in the middle, over two numbered folders of 
     expect(report.verdict).toBe('ok');
     expect(formatSummary(report)).not.toMatch(/^Sequence /m);
   });
+});
+
+describe('a card holding another camera\'s run of frames and one lone phone shot', () => {
+  // Five frames of the card's camera (most of the card), then three of another camera (a phone
+  // panorama), then one frame of a third: headers only are read, tiny frames are enough.
+  it('keeps the other camera\'s run for a sequence of its own and sets the lone file apart', async () => {
+    const card = join(root, 'cameras');
+    const small = (first: number, offsetS: number, count: number, make: string, model: string): SequenceSpec => ({ ...spec('clean-pan-8', first, offsetS, (f) => f.slice(0, count)), width: 360, height: 240, make, model });
+    await shoot(card, 'cam-a', small(101, 0, 5, 'Maker', 'Camera One'));
+    await shoot(card, 'cam-b', small(201, 600, 3, 'Other', 'Phone Two'));
+    await shoot(card, 'cam-c', small(301, 1200, 1, 'Third', 'Phone Three'));
+    const read = await readCard(card);
+    expect(read.ordered.map((f) => f.file)).toEqual(['IMG_0101.jpg', 'IMG_0102.jpg', 'IMG_0103.jpg', 'IMG_0104.jpg', 'IMG_0105.jpg', 'IMG_0201.jpg', 'IMG_0202.jpg', 'IMG_0203.jpg']);
+    expect(read.skipped.map((s) => [s.file, s.code])).toEqual([['IMG_0301.jpg', 'not-in-sequence']]);
+  }, 60_000);
 });

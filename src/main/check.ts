@@ -195,6 +195,9 @@ function slots(n: number): <T>(task: () => Promise<T>) => Promise<T> {
   };
 }
 
+/** Frames smaller than this on their long side are no frames of a panorama (a thumbnail, a 1x1 placeholder). Our own. */
+const minSequenceSide = 256;
+
 /** A file of the card that may be a frame of a sequence, with what its header says. */
 export interface CardFile {
   readonly file: string;
@@ -237,6 +240,18 @@ export async function readCard(folder: string, options: Pick<CheckOptions, 'recu
   }
   const look = sequenceLook(heads.filter((_, i) => !copyOf.has(i)).map(([exif, size]) => memberOf(exif, size)));
   const members = shots.files.map((file, i) => ({ file: file.name, captureMs: heads[i][0].captureMs, scanned: file, exif: heads[i][0], size: heads[i][1], copyOf: copyOf.get(i), stray: strayReason(memberOf(...heads[i]), look) }));
+  // Another camera's run of frames (a phone panorama on a camera's card) is a sequence of its own,
+  // which the split finds by the change of camera; only a lone file unlike the card stays apart.
+  const byTime = shootingOrder(members.filter((m) => m.copyOf === undefined));
+  const lookKey = (m: (typeof members)[number]): string | null =>
+    m.stray !== null && m.size && Math.max(m.size.width, m.size.height) >= minSequenceSide ? `${m.exif.settings.make}|${m.exif.settings.model}|${Math.max(m.size.width, m.size.height)}x${Math.min(m.size.width, m.size.height)}` : null;
+  for (let a = 0; a < byTime.length; ) {
+    const key = lookKey(byTime[a]);
+    let b = a + 1;
+    while (key !== null && b < byTime.length && lookKey(byTime[b]) === key) b++;
+    if (key !== null && b - a >= 2) for (let k = a; k < b; k++) byTime[k].stray = null;
+    a = b;
+  }
   for (const m of members) {
     if (m.copyOf !== undefined) skipped.push({ file: m.file, code: 'duplicate', reason: `the same picture as ${shots.files[m.copyOf].name}: left out` });
     else if (m.stray !== null) skipped.push({ file: m.file, code: 'not-in-sequence', reason: m.stray });
@@ -272,7 +287,8 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
   try {
     const skipped: SkippedFile[] = [...card.skipped];
     const ordered = only ?? card.ordered;
-    const look = card.look;
+    // A run is judged by its own look: another camera's sequence is unlike the card's majority.
+    const look = only ? sequenceLook(only.map((o) => ({ width: o.size?.width ?? null, height: o.size?.height ?? null, make: o.exif.settings.make, model: o.exif.settings.model }))) : card.look;
     const n = ordered.length;
     // Skips found while decoding, by shooting order once all are known, so that the report does not
     // depend on which decode finished first.
