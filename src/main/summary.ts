@@ -52,6 +52,9 @@ function formatCard(report: Report): string {
     out.push('', `Sequence ${q.index} of ${seqs.length}: ${q.firstFile} to ${q.lastFile}, ${q.frames.length} frames, ${q.stations.length} stations${when}, ${word[q.verdict]}`);
     if (q.splitBy.length) out.push(`  apart from the sequence before: ${apartWords(q.splitBy)}`);
     const body = formatOne(sequenceReport(report, q.index)).trimEnd().split('\n').slice(1);
+    // The heading has the counts already: what the sequence covers is left of that line.
+    const rest = body[0].replace(/^\d+ frames in \d+ stations(, )?/, '');
+    body[0] = rest.charAt(0).toUpperCase() + rest.slice(1);
     out.push(...body.map((l) => (l ? `  ${l}` : l)));
   }
   if (singles.length) {
