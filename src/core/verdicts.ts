@@ -357,47 +357,42 @@ function judgeOne(analysis: Analysis, budget: MatchBudget): Report {
   };
 }
 
+/** A finding's measurement alone: what was judged, without the judgement. */
+function strip<T extends Finding>(x: T): Omit<T, keyof Finding> {
+  const { verdict: _v, reasons: _r, advice: _a, ...rest } = x;
+  return rest;
+}
+
+/** The frames, stations and pairs a report's lists were judged from. */
+function measuresOf(r: Pick<Report, 'frames' | 'stations' | 'pairs'>): Pick<Analysis, 'frames' | 'stations' | 'pairs'> {
+  return {
+    frames: r.frames.map((f) => {
+      const { station: _s, flags: _f, ...rest } = strip(f);
+      return rest;
+    }),
+    stations: r.stations.map((s) => {
+      const { flags: _f, ...rest } = strip(s);
+      return rest;
+    }),
+    pairs: r.pairs.map((p) => strip(p)),
+  };
+}
+
 /** The measurements a report was judged from, to judge them again against another budget. */
 export function analysisOf(report: Report): Analysis {
-  const strip = <T extends Finding>(x: T): Omit<T, keyof Finding> => {
-    const { verdict: _v, reasons: _r, advice: _a, ...rest } = x;
-    return rest;
-  };
   return {
     folder: report.folder,
     sweepDeg: report.sweepDeg,
     geometry: report.geometry ?? null,
     skipped: report.skipped,
     rawPlusJpeg: report.rawPlusJpeg ?? null,
-    frames: report.frames.map((f) => {
-      const { station: _s, flags: _f, ...rest } = strip(f);
-      return rest;
-    }),
-    stations: report.stations.map((s) => {
-      const { flags: _f, ...rest } = strip(s);
-      return rest;
-    }),
-    pairs: report.pairs.map((p) => strip(p)),
-    ...(report.sequences ? { sequences: report.sequences.map((q) => sequenceAnalysisOf(q, strip)), singleShots: report.singleShots ?? [] } : {}),
+    ...measuresOf(report),
+    ...(report.sequences ? { sequences: report.sequences.map(sequenceAnalysisOf), singleShots: report.singleShots ?? [] } : {}),
   };
 }
 
-function sequenceAnalysisOf(q: ReportSequence, strip: <T extends Finding>(x: T) => Omit<T, keyof Finding>): SequenceAnalysis {
-  return {
-    index: q.index,
-    splitBy: q.splitBy,
-    sweepDeg: q.sweepDeg,
-    geometry: q.geometry,
-    frames: q.frames.map((f) => {
-      const { station: _s, flags: _f, ...rest } = strip(f);
-      return rest;
-    }),
-    stations: q.stations.map((s) => {
-      const { flags: _f, ...rest } = strip(s);
-      return rest;
-    }),
-    pairs: q.pairs.map((p) => strip(p)),
-  };
+function sequenceAnalysisOf(q: ReportSequence): SequenceAnalysis {
+  return { index: q.index, splitBy: q.splitBy, sweepDeg: q.sweepDeg, geometry: q.geometry, ...measuresOf(q) };
 }
 
 export function rejudge(report: Report, budget: MatchBudget): Report {
