@@ -59,13 +59,14 @@ describe('a card of two panoramas ten minutes apart and two single shots', () =>
   // minutes later in another scene: six frames of a clean turn with soft frames (sky, fog, water).
   // Then two frames aimed at the ceiling and the floor, 20 and 25 minutes on.
   const card = join(root, 'card');
+  const cache = createFeatureCache(join(root, 'cache'));
   let report: Report;
   let first: Report, second: Report;
   beforeAll(async () => {
     const a = await shoot(card, 'gap-pan', spec('clean-pan-8', 101, 0, (f) => f.filter((_, i) => i !== 4)));
     const b = await shoot(card, 'soft-pan', spec('clean-soft', 201, 600, (f) => f.slice(0, 6)));
     await shoot(card, 'singles', spec('clean-soft', 301, 1200, (f) => [{ ...f[0], pitchDeg: 80, time: 0 }, { ...f[3], pitchDeg: -80, time: 300 }]));
-    report = await check(card);
+    report = judge((await checkCard(card, { pool, cache })).analysis, defaultBudget);
     [first, second] = [await alone(a), await alone(b)];
   }, 240_000);
 
@@ -98,6 +99,15 @@ describe('a card of two panoramas ten minutes apart and two single shots', () =>
     expect(text).toMatch(/^2 sequences: 1 ok, 1 to reshoot; 2 single shots\.$/m);
     expect(text).not.toMatch(/\d\.\d{4,}/);
   });
+
+  it('checks one sequence when asked, by its number or its first file, and names the ones there are otherwise', async () => {
+    const one = judge((await checkCard(card, { pool, cache, sequence: 'IMG_0201' })).analysis, defaultBudget);
+    expect(one.sequences!.map((q) => [q.index, q.firstFile])).toEqual([[2, 'IMG_0201.jpg']]);
+    expect(one.singleShots).toEqual([]);
+    expect(verdicts(one)).toEqual(verdicts(sequenceReport(report, 2)));
+    expect(verdicts(judge((await checkCard(card, { pool, cache, sequence: '1' })).analysis, defaultBudget))).toEqual(verdicts(sequenceReport(report, 1)));
+    await expect(checkCard(card, { pool, cache, sequence: '9' })).rejects.toThrow('no sequence 9 on this card: it has 1 (IMG_0101.jpg), 2 (IMG_0201.jpg)');
+  }, 240_000);
 });
 
 describe('a new panorama begun at once, with no pause and the same camera', () => {
@@ -107,14 +117,13 @@ describe('a new panorama begun at once, with no pause and the same camera', () =
   // second set the floor from -98 to -52, so nothing is seen by both and only the content, with a
   // step out of the rhythm, sets them apart.
   let report: Report;
-  const cache = createFeatureCache(join(root, 'cache'));
   beforeAll(async () => {
     const card = join(root, 'at-once');
     const pan = spec('clean-pan-8', 101, 0);
     const end = pan.frames[pan.frames.length - 1].time;
     await shoot(card, 'at-once-1', pan);
     await shoot(card, 'at-once-2', spec('clean-pan-8', 201, 0, (f) => f.slice(0, 6).map((x, i) => ({ ...x, yawDeg: 40 * i, pitchDeg: -75, rollDeg: 0, time: end + 8 + 1.5 * i }))));
-    report = judge((await checkCard(card, { pool, cache })).analysis, defaultBudget);
+    report = await check(card);
   }, 240_000);
 
   it('is split by content, and the break is said, since it may be a missing frame', () => {
@@ -124,15 +133,6 @@ describe('a new panorama begun at once, with no pause and the same camera', () =
     expect(report.sequences!.map((q) => q.verdict)).toEqual(['ok', 'ok']);
     expect(report.verdict).toBe('weak');
   });
-
-  it('checks one sequence when asked, by its number or its first file, and names the ones there are otherwise', async () => {
-    const card = join(root, 'at-once');
-    const one = judge((await checkCard(card, { pool, cache, sequence: 'IMG_0201' })).analysis, defaultBudget);
-    expect(one.sequences!.map((q) => [q.index, q.firstFile])).toEqual([[2, 'IMG_0201.jpg']]);
-    expect(one.frames.map((f) => f.file)).toEqual(report.sequences![1].frames.map((f) => f.file));
-    expect(verdicts(one)).toEqual(verdicts(sequenceReport(report, 2)));
-    await expect(checkCard(card, { pool, sequence: '9' })).rejects.toThrow('no sequence 9 on this card: it has 1 (IMG_0101.jpg), 2 (IMG_0201.jpg)');
-  }, 240_000);
 });
 
 describe('one turn with a long wait in the middle, over two numbered folders of a camera card', () => {
