@@ -9,6 +9,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Report } from '../src/core/report.js';
 import { defaultBudget } from '../src/core/report.js';
 import { sequenceReport } from '../src/core/sequence-report.js';
+import { cardCoverageMapSvg } from '../src/core/card-coverage-map.js';
+import { XMLParser } from 'fast-xml-parser';
 import { judge } from '../src/core/verdicts.js';
 import { createAnalysisPool } from '../src/main/analysis-pool.js';
 import { checkCard } from '../src/main/card-check.js';
@@ -98,6 +100,18 @@ describe('a card of two panoramas ten minutes apart and two single shots', () =>
     expect(text).toMatch(/apart from the sequence before: a pause of 10 min/);
     expect(text).toMatch(/^2 sequences: 1 ok, 1 to reshoot; 2 single shots\.$/m);
     expect(text).not.toMatch(/\d\.\d{4,}/);
+  });
+
+  it('draws the card\'s coverage map as one map per sequence, each under its name', () => {
+    const svg = cardCoverageMapSvg(report)!;
+    // Parsed back with an outside XML parser (fast-xml-parser): well-formed, one nested map each.
+    const doc = new XMLParser({ ignoreAttributes: false }).parse(svg);
+    const maps = [doc.svg.svg].flat();
+    expect(maps).toHaveLength(2);
+    expect([doc.svg.text].flat().map((t: { '#text': string }) => t['#text'])).toEqual(['Sequence 1 of 2: IMG_0101.jpg to IMG_0107.jpg', 'Sequence 2 of 2: IMG_0201.jpg to IMG_0206.jpg']);
+    const ids = [...svg.matchAll(/id="([^"]+)"/g)].map((m) => m[1]);
+    expect(new Set(ids).size).toBe(ids.length);
+    for (const m of svg.matchAll(/url\(#([^)]+)\)/g)) expect(ids).toContain(m[1]);
   });
 
   it('checks one sequence when asked, by its number or its first file, and names the ones there are otherwise', async () => {

@@ -1,6 +1,6 @@
 import { realpath } from 'node:fs/promises';
 import { isAbsolute, relative, resolve, sep } from 'node:path';
-import { coverageMapSvg } from '../core/coverage-map.js';
+import { cardCoverageMapSvg } from '../core/card-coverage-map.js';
 import { reportToCsv } from '../core/exports/csv.js';
 import { reportToDot } from '../core/exports/dot.js';
 import { reportToGraphml } from '../core/exports/graphml.js';
@@ -50,7 +50,7 @@ export function exportContent(report: Report, format: ExportFormat): { text: str
     case 'dot':
       return { text: reportToDot(report), name: 'seamscout-pairs.dot' };
     case 'coverage': {
-      const svg = coverageMapSvg(report);
+      const svg = cardCoverageMapSvg(report);
       if (svg === null) throw new Error('no coverage map: the frames could not be placed (no pair between stations matched, or no focal length could be had)');
       return { text: svg, name: 'seamscout-coverage.svg' };
     }
