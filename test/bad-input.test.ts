@@ -2,6 +2,7 @@
 // nothing on the card. Every bad file here is made by the test (nothing downloaded); the good frames
 // are two real photographs (test/fixtures/external/SOURCES.md) and renders of the demo generator.
 import { chmodSync, copyFileSync, mkdirSync, readFileSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
+import { execFileSync } from 'node:child_process';
 import { join } from 'node:path';
 import sharp from 'sharp';
 import { beforeAll, describe, expect, it } from 'vitest';
@@ -10,6 +11,7 @@ import { defaultBudget } from '../src/core/report.js';
 import { judge } from '../src/core/verdicts.js';
 import { createAnalysisPool } from '../src/main/analysis-pool.js';
 import { runCheck, skipOf } from '../src/main/check.js';
+import { scanFolder } from '../src/main/scan.js';
 import { runCli, tempDir } from './helpers/cli.js';
 import { externalFixture } from './helpers/images.js';
 import { snapshot } from './helpers/snapshot.js';
@@ -152,4 +154,24 @@ describe('permissions and the command line', () => {
     expect(r.stdout).toMatch(/zero\.jpg: empty file/);
     expect(snapshot(card)).toEqual(before);
   }, 120_000);
+});
+
+describe('entries that are no regular file', () => {
+  it('lists a pipe, a link to a device and a folder named like a picture, never opening them', async () => {
+    const dir = tempDir('seamscout-odd-');
+    copyFileSync(externalFixture('leuvenA.jpg'), join(dir, 'good.jpg'));
+    // A named pipe (coreutils mkfifo): opening it would wait for a writer for ever.
+    execFileSync('mkfifo', [join(dir, 'pipe.jpg')]);
+    symlinkSync('/dev/null', join(dir, 'device.jpg'));
+    mkdirSync(join(dir, 'x.jpg'));
+    const scan = await scanFolder(dir, false);
+    expect(scan.files.map((f) => f.name)).toEqual(['good.jpg']);
+    expect(scan.problems).toEqual([
+      { name: 'device.jpg', reason: 'it is not a regular file (a pipe, a device or a socket): not read' },
+      { name: 'pipe.jpg', reason: 'it is not a regular file (a pipe, a device or a socket): not read' },
+      { name: 'x.jpg', reason: 'it is a folder, not a picture' },
+    ]);
+    const r = judge((await runCheck(dir, { pool })).analysis, defaultBudget);
+    expect(r.skipped.map((s) => s.file).sort()).toEqual(['device.jpg', 'pipe.jpg', 'x.jpg']);
+  }, 60_000);
 });

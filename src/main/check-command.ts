@@ -14,7 +14,7 @@ import { isCardLayout } from './scan.js';
 import { coverageMapContent, coverageMapFormat } from './coverage-map-file.js';
 import { createFeatureCache } from './feature-cache.js';
 import { readSettings } from './settings.js';
-import { progressLine, formatSummary } from './summary.js';
+import { forTerminal, progressLine, formatSummary } from './summary.js';
 import { writeFileAtomic } from './write-file.js';
 
 export const checkUsage = `Usage: seamscout check [folder] [options]
@@ -119,7 +119,7 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
       fullSphere: v['full-sphere'] ? true : undefined,
     });
   } catch (err) {
-    process.stderr.write(`seamscout: ${(err as Error).message}\n`);
+    process.stderr.write(`seamscout: ${forTerminal((err as Error).message)}\n`);
     return 2;
   }
 
@@ -135,7 +135,7 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
   try {
     if (!(await stat(folder)).isDirectory()) throw new Error('not a folder');
   } catch {
-    process.stderr.write(`seamscout: Expected a readable folder but received ${folder}\n`);
+    process.stderr.write(`seamscout: Expected a readable folder but received ${forTerminal(folder)}\n`);
     return 2;
   }
 
@@ -160,11 +160,11 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
     tiePoints = result.tiePoints;
   } catch (err) {
     if (showProgress) process.stderr.write('\n');
-    process.stderr.write(`seamscout: ${(err as Error).message}\n`);
+    process.stderr.write(`seamscout: ${forTerminal((err as Error).message)}\n`);
     return 2;
   }
   if (report.frames.length === 0 && report.skipped.length === 0) {
-    process.stderr.write(`seamscout: no image files in ${folder}\n`);
+    process.stderr.write(`seamscout: no image files in ${forTerminal(folder)}\n`);
   }
   process.stdout.write(formatSummary(report));
 
@@ -187,9 +187,9 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
     if (!path) continue;
     try {
       await writeFileAtomic(resolve(path), await make(), v.force ?? false);
-      process.stderr.write(`wrote ${path}\n`);
+      process.stderr.write(`wrote ${forTerminal(path)}\n`);
     } catch (err) {
-      process.stderr.write(`seamscout: ${(err as Error).message}\n`);
+      process.stderr.write(`seamscout: ${forTerminal((err as Error).message)}\n`);
       failed = true;
     }
   }

@@ -40,12 +40,18 @@ export async function scanFolder(folder: string, recursive: boolean): Promise<Sc
       const path = join(dir, e.name);
       const name = relative(folder, path);
       try {
+        const image = imageExtensions.has(extname(e.name).toLowerCase());
         if (e.isDirectory() || (e.isSymbolicLink() && recursive && (await stat(path)).isDirectory())) {
           if (recursive) await walk(path);
+          // A folder named like a picture is said, not passed over: the photographer looks for it.
+          else if (image) problems.push({ name, reason: 'it is a folder, not a picture' });
           continue;
         }
-        if (!imageExtensions.has(extname(e.name).toLowerCase())) continue;
+        if (!image) continue;
+        // Never opened unless a regular file: a pipe would wait for ever, a device would be read.
         const st = await stat(path);
+        if (st.isDirectory()) problems.push({ name, reason: 'it is a folder, not a picture' });
+        else if (!st.isFile()) problems.push({ name, reason: 'it is not a regular file (a pipe, a device or a socket): not read' });
         if (!st.isFile()) continue;
         files.push({ path, name, size: st.size, mtimeMs: st.mtimeMs });
       } catch (err) {

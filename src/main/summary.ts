@@ -11,6 +11,19 @@ function pad(s: string, n: number): string {
   return s.length >= n ? s : s + ' '.repeat(n - s.length);
 }
 
+/**
+ * A line as a terminal may show it: control characters (ESC, CR, a newline inside a file name) and
+ * the bidirectional overrides that reorder what is displayed are written as escapes, so that a file
+ * name cannot move the cursor, rewrite a line or hide what it says.
+ */
+export function forTerminal(line: string): string {
+  // eslint-disable-next-line no-control-regex -- control characters are what this finds
+  return line.replace(/[\u0000-\u001f\u007f-\u009f\u200e\u200f\u202a-\u202e\u2066-\u2069]/g, (c) => {
+    const code = c.charCodeAt(0);
+    return code <= 0xff ? `\\x${code.toString(16).padStart(2, '0')}` : `\\u${code.toString(16).padStart(4, '0')}`;
+  });
+}
+
 /** Why a sequence is apart from the one before it, in words. */
 function apartWords(splitBy: ReportSequence['splitBy']): string {
   const words = splitBy.map((e) => {
@@ -69,7 +82,7 @@ function formatCard(report: Report): string {
   const tally = [by('ok') ? `${by('ok')} ok` : '', by('weak') ? `${by('weak')} weak` : '', by('reshoot') ? `${by('reshoot')} to reshoot` : ''].filter(Boolean).join(', ');
   out.push('', `${seqs.length} sequence${seqs.length === 1 ? '' : 's'}${tally ? `: ${tally}` : ''}${singles.length ? `; ${singles.length} single shot${singles.length === 1 ? '' : 's'}` : ''}.`);
   out.push(`Verdict: ${word[report.verdict]}.${report.verdict === 'ok' ? ' Every sequence is within the match budget.' : ` ${report.counts.reshoot} to reshoot, ${report.counts.weak} weak, over the sequences above.`}`);
-  return out.join('\n') + '\n';
+  return out.map(forTerminal).join('\n') + '\n';
 }
 
 /** The summary a photographer reads in the terminal: pairs in shooting order, then what to reshoot. */
@@ -135,7 +148,7 @@ function formatOne(report: Report): string {
     out.push(`Verdict: ${word[report.verdict]}. ${report.counts.reshoot} to reshoot, ${report.counts.weak} weak${holesOut}${leftOut}.`);
     if (advice.length) out.push('', 'What to do:', ...advice.map((a) => `  - ${a}`));
   }
-  return out.join('\n') + '\n';
+  return out.map(forTerminal).join('\n') + '\n';
 }
 
 /** One line on the shots written as RAW and JPEG: which file of each was checked, and how to check the other. */

@@ -1,8 +1,14 @@
 import type { Report, ReportPair } from '../report.js';
 
-/** One CSV field per RFC 4180: quoted when it holds a comma, a quote or a line break. */
+/**
+ * One CSV field per RFC 4180: quoted when it holds a comma, a quote or a line break. Text that a
+ * spreadsheet would take for a formula (it begins with =, +, -, @, a tab or a carriage return: a
+ * file name such as "=HYPERLINK(...).jpg") gets a leading apostrophe, as the OWASP advice on CSV
+ * injection says; a number keeps its sign.
+ */
 export function csvField(v: unknown): string {
-  const s = v === null || v === undefined ? '' : String(v);
+  let s = v === null || v === undefined ? '' : String(v);
+  if (/^[=+\-@\t\r]/.test(s) && !(typeof v === 'number' || /^[+-]?(\d+\.?\d*|\.\d+)(e[+-]?\d+)?$/i.test(s))) s = `'${s}`;
   return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
 }
 
