@@ -16,7 +16,7 @@ import { runCli, tempDir } from './helpers/cli.js';
 import { externalFixture } from './helpers/images.js';
 import { snapshot } from './helpers/snapshot.js';
 
-const pool = createAnalysisPool(2);
+const pool = createAnalysisPool(0);
 const check = async (folder: string, recursive = false): Promise<Report> => judge((await runCheck(folder, { pool, recursive })).analysis, defaultBudget);
 
 let card: string;

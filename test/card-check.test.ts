@@ -22,7 +22,7 @@ import { tempDir } from './helpers/cli.js';
 import type { FrameSpec, SequenceSpec } from './helpers/photo-sequences.js';
 import { scenarios, writeSequence } from './helpers/photo-sequences.js';
 
-const pool = createAnalysisPool(2);
+const pool = createAnalysisPool(0);
 afterAll(() => pool.destroy());
 const root = tempDir();
 const SIZE = { width: 900, height: 600 };

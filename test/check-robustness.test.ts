@@ -20,7 +20,7 @@ import { demoExif, writeDemoShoot } from '../src/main/demo-writer.js';
 import { progressLine } from '../src/main/summary.js';
 import { projectRoot, tempDir } from './helpers/cli.js';
 
-const pool = createAnalysisPool(2);
+const pool = createAnalysisPool(0);
 afterAll(() => pool.destroy());
 
 /** The command under a pseudo-terminal (util-linux `script -qec`, GUIDE section 10), with temporary cache and settings folders. */

@@ -24,7 +24,7 @@ import { writeDemoShoot } from '../src/main/demo-writer.js';
 import { formatSummary } from '../src/main/summary.js';
 import { tempDir } from './helpers/cli.js';
 
-const pool = createAnalysisPool(2);
+const pool = createAnalysisPool(0);
 afterAll(() => pool.destroy());
 
 const geometryCodes: FlagCode[] = ['no-closure', 'lens-misfit', 'coverage-hole'];

@@ -32,7 +32,7 @@ import { scenarios, trueOverlap, writeSequence } from './helpers/photo-sequences
 
 const SIZE = { width: 900, height: 600 } as const;
 const root = tempDir('seamscout-corpus-');
-const pool = createAnalysisPool(2);
+const pool = createAnalysisPool(0);
 afterAll(async () => {
   await pool.destroy();
   rmSync(root, { recursive: true, force: true });

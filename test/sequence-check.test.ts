@@ -19,7 +19,7 @@ import { writeDemoShoot } from '../src/main/demo-writer.js';
 import { tempDir } from './helpers/cli.js';
 import { copyWithoutExif, meanCornerError } from './helpers/images.js';
 
-const pool = createAnalysisPool(2);
+const pool = createAnalysisPool(0);
 
 function maxPointError(h1: readonly number[], h2: readonly number[], x: number, y: number): number {
   const p = (m: readonly number[]): [number, number] => {

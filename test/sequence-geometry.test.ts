@@ -19,7 +19,7 @@ import { coverageMapContent } from '../src/main/coverage-map-file.js';
 import { writeDemoShoot } from '../src/main/demo-writer.js';
 import { tempDir } from './helpers/cli.js';
 
-const pool = createAnalysisPool(2);
+const pool = createAnalysisPool(0);
 afterAll(() => pool.destroy());
 
 const wrap = (d: number): number => ((((d + 180) % 360) + 360) % 360) - 180;
