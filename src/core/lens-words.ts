@@ -7,7 +7,6 @@
 import type { Report } from './report.js';
 import { millimetres } from './number-words.js';
 
-export { millimetres };
 
 /** Below this share at the corner (half a per cent) distortion is not worth a word. */
 const negligibleCornerShare = 0.005;

@@ -224,16 +224,11 @@ export type SequenceSplit =
   | { readonly by: 'content'; readonly after: string; readonly before: string };
 
 /** One sequence of a card, measured on its own: what a folder's analysis holds for one sequence. */
-export interface SequenceAnalysis {
+export interface SequenceAnalysis extends Pick<Analysis, 'frames' | 'stations' | 'pairs' | 'sweepDeg' | 'geometry'> {
   /** Counting from 1, in shooting order. */
   readonly index: number;
   /** Why it is apart from the sequence before it; empty for the first. */
   readonly splitBy: readonly SequenceSplit[];
-  readonly frames: readonly FrameMeasure[];
-  readonly stations: readonly StationMeasure[];
-  readonly pairs: readonly PairMeasure[];
-  readonly sweepDeg: number | null;
-  readonly geometry: SequenceGeometry | null;
 }
 
 /** A frame of the card that belongs to no sequence: listed, not flagged. */

@@ -1,5 +1,6 @@
 // The summary header: the numbers a photographer reads first, large, and the overall verdict.
-import { lensSentence, millimetres } from '../core/lens-words.js';
+import { lensSentence } from '../core/lens-words.js';
+import { millimetres } from '../core/number-words.js';
 import type { Report, Verdict } from '../core/report.js';
 import { notChecked } from '../core/verdicts.js';
 import { button, el } from './dom.js';
