@@ -44,38 +44,113 @@ beforeAll(async () => {
   writeFileSync(join(card, 'absurd-exif.jpg'), await sharp(good).withExif({ IFD0: { Make: 'x' }, IFD2: { ExposureTime: '0/1', FocalLength: '-35/1', DateTimeOriginal: '1900:01:01 00:00:00', ISOSpeedRatings: 'lots' } }).jpeg().toBuffer());
   mkdirSync(join(card, 'sub'));
   symlinkSync('..', join(card, 'sub', 'loop'));
+  // Files a camera or a computer leaves beside the photographs.
+  writeFileSync(join(card, '._IMG 0001 copy.jpg'), Buffer.concat([Buffer.from([0, 5, 22, 7, 0, 2, 0, 0]), Buffer.alloc(4000)]));
+  writeFileSync(join(card, 'MVI_0003.MOV'), Buffer.alloc(5000, 7));
+  await sharp(good).resize(160).jpeg().toFile(join(card, 'IMG_0001.THM'));
+  // Good pictures in odd wrappers, each a view of its own (a shifted crop) so that none is a copy.
+  const view = (k: number) => sharp(good).extract({ left: 9 * k, top: 4 * k, width: 680, height: 510 }).resize(751, 563);
+  writeFileSync(join(card, 'VIEW1.JPEG'), await view(1).jpeg().toBuffer());
+  // Data after the end-of-image marker (some cameras append their own).
+  writeFileSync(join(card, 'tail-after-end.jpg'), Buffer.concat([await view(2).jpeg().toBuffer(), Buffer.from('maker trailer '.repeat(60))]));
+  // An EXIF block whose TIFF header is garbage, right after the start-of-image marker.
+  const exif = Buffer.concat([Buffer.from([0xff, 0xe1, 0x00, 0x22]), Buffer.from('Exif\0\0XX*\0garbage, not a TIFF header')]);
+  const plain = await view(3).jpeg().toBuffer();
+  writeFileSync(join(card, 'garbled-exif.jpg'), Buffer.concat([plain.subarray(0, 2), exif, plain.subarray(2)]));
+  await view(4).ensureAlpha(0.5).png().toFile(join(card, 'with-alpha.png'));
+  await view(5).webp().toFile(join(card, 'phone.webp'));
+  writeFileSync(join(card, 'png-inside.jpg'), await view(6).png().toBuffer());
+  writeFileSync(join(card, `long-${'x'.repeat(240)}.jpg`), await view(7).jpeg().toBuffer());
+  // Bad ones.
+  await sharp({ create: { width: 1, height: 1, channels: 3, background: '#888' } }).jpeg().toFile(join(card, 'one-pixel.jpg'));
+  writeFileSync(join(card, 'noise.CR2'), Buffer.from(Array.from({ length: 9000 }, (_, i) => (i * 7919) & 255)));
+  writeFileSync(join(card, 'header-only.jpg'), good.subarray(0, 600));
+  writeFileSync(join(card, 'words.tif'), 'II* this only looks like a TIFF for four bytes\n');
+  symlinkSync(join(card, 'deleted.jpg'), join(card, 'dangling.jpg'));
   before = snapshot(card);
   report = await check(card, true);
 }, 120_000);
 
 describe('bad input on a card', () => {
   const skip = (file: string) => report.skipped.find((s) => s.file === file);
+  const frame = (file: string) => report.frames.find((f) => f.file === file);
 
-  it('names each bad file with a plain reason and checks the rest', () => {
+  it('names an empty file as empty', () => {
     expect(skip('zero.jpg')?.reason).toMatch(/empty file/);
+  });
+
+  it('names a file cut in half as damaged or cut short', () => {
     expect(skip('half.jpg')?.reason).toMatch(/damaged or cut short/);
+  });
+
+  it('names a JPEG that stops after its header as damaged or cut short', () => {
+    expect(skip('header-only.jpg')?.reason).toMatch(/damaged or cut short/);
+  });
+
+  it('names a text file with a picture\'s ending as not an image', () => {
     expect(skip('notes.jpg')?.code).toBe('not-an-image');
+  });
+
+  it('names a file that only starts like a TIFF as not an image', () => {
+    expect(skip('words.tif')?.code).toBe('not-an-image');
+  });
+
+  it('refuses a picture whose header claims 3.6 gigapixels', () => {
     expect(skip('bomb.png')?.code).toBe('too-large');
-    // The first copy counts; the second is named as a copy.
+  });
+
+  it('names a RAW file with nothing readable inside as holding no preview', () => {
+    expect(skip('noise.CR2')).toMatchObject({ code: 'no-preview', reason: expect.stringMatching(/RAW\+JPEG/) });
+  });
+
+  it('leaves out a 1x1 image as not part of the sequence', () => {
+    expect(skip('one-pixel.jpg')).toMatchObject({ code: 'not-in-sequence', reason: expect.stringMatching(/1x1 px/) });
+  });
+
+  it('names a link whose target is gone, in words', () => {
+    expect(skip('dangling.jpg')?.reason).toMatch(/links to .*deleted\.jpg.* which is not there/);
+  });
+
+  it('names the second of two byte-identical files as a copy of the first', () => {
     expect(report.skipped.filter((s) => s.code === 'duplicate').map((s) => s.reason)).toEqual([expect.stringMatching(/the same picture as IMG 0001/)]);
-    const checked = report.frames.map((f) => f.file).sort();
-    for (const f of ['deep-16bit.tif', 'print-cmyk.jpg', 'grey.jpg', '海岸 0002.jpg', 'small.jpg', 'absurd-exif.jpg']) expect(checked).toContain(f);
-    expect(report.frames.length + report.skipped.length).toBe(12);
+  });
+
+  it('reads names with spaces, dashes and non-Latin letters', () => {
+    expect(frame('IMG 0001 copy.jpg')).toBeDefined();
+    expect(skip('IMG 0001 – bord de mer.jpg')?.reason).toBe('the same picture as IMG 0001 copy.jpg: left out');
+    expect(frame('海岸 0002.jpg')).toBeDefined();
+  });
+
+  it('reads a name of 245 characters', () => {
+    expect(frame(`long-${'x'.repeat(240)}.jpg`)).toBeDefined();
+  });
+
+  it('reads an upper-case .JPEG ending', () => {
+    expect(frame('VIEW1.JPEG')).toBeDefined();
+  });
+
+  it('reads a JPEG with data after its end marker', () => {
+    expect(frame('tail-after-end.jpg')).toBeDefined();
+  });
+
+  it('reads a JPEG whose EXIF block is garbage, without its settings', () => {
+    expect(frame('garbled-exif.jpg')?.settings.exposureTime).toBeNull();
+  });
+
+  it('reads a PNG with an alpha channel, a WebP, and a PNG named .jpg by its content', () => {
+    for (const f of ['with-alpha.png', 'phone.webp', 'png-inside.jpg']) expect(frame(f)?.width).toBe(751);
   });
 
   it('decodes 16-bit, CMYK and greyscale frames to the same geometry', () => {
-    for (const f of ['deep-16bit.tif', 'print-cmyk.jpg', 'grey.jpg']) {
-      const frame = report.frames.find((x) => x.file === f)!;
-      expect([frame.width, frame.height]).toEqual([751, 563]);
-    }
+    for (const f of ['deep-16bit.tif', 'print-cmyk.jpg', 'grey.jpg']) expect([frame(f)!.width, frame(f)!.height]).toEqual([751, 563]);
   });
 
   it('flags a frame of another size than the sequence', () => {
-    expect(report.frames.find((f) => f.file === 'small.jpg')!.flags).toContain('size-mismatch');
+    expect(frame('small.jpg')!.flags).toContain('size-mismatch');
   });
 
   it('drops absurd EXIF values instead of trusting them', () => {
-    const s = report.frames.find((f) => f.file === 'absurd-exif.jpg')!;
+    const s = frame('absurd-exif.jpg')!;
     expect(s.settings.exposureTime).toBeNull();
     expect(s.settings.focalLength).toBeNull();
     expect(s.settings.iso).toBeNull();
@@ -85,6 +160,15 @@ describe('bad input on a card', () => {
   it('ends a symbolic-link loop under --recursive', () => {
     // The loop leads back to the card itself, which is read once.
     expect(report.frames.filter((f) => f.file.includes('loop')).length).toBe(0);
+  });
+
+  it('passes over the hidden files, videos and thumbnails a camera or computer leaves', () => {
+    const named = [...report.frames.map((f) => f.file), ...report.skipped.map((s) => s.file)];
+    for (const f of ['._IMG 0001 copy.jpg', 'MVI_0003.MOV', 'IMG_0001.THM']) expect(named).not.toContain(f);
+  });
+
+  it('accounts for every picture file on the card, checked or named', () => {
+    expect(report.frames.length + report.skipped.length).toBe(24);
   });
 
   it('changes not a byte of the card, its listing or its times', () => {

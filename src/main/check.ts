@@ -226,7 +226,7 @@ export async function readCard(folder: string, options: Pick<CheckOptions, 'recu
   const signal = options.signal;
   const scan = await scanFolder(folder, options.recursive ?? false);
   const shots = oneFilePerShot(scan.files, options.prefer ?? 'jpeg');
-  const skipped: SkippedFile[] = [...scan.problems.map((p) => ({ file: p.name, code: 'unreadable' as const, reason: `cannot be read: ${p.reason}` })), ...shots.skipped];
+  const skipped: SkippedFile[] = [...scan.problems.map((p) => ({ file: p.name, code: 'unreadable' as const, reason: p.reason })), ...shots.skipped];
   const heads = await inOrder(shots.files, 8, (f) => Promise.all([readFrameExif(f.path), readHeaderSize(f.path)]), signal);
   // Files that are not part of the sequence (another camera, size or shape than most of the card)
   // are left out before stations are grouped, so they cannot split a station or break a turn.

@@ -1,5 +1,5 @@
 import { createHash } from 'node:crypto';
-import { open, readdir, realpath, stat } from 'node:fs/promises';
+import { open, readdir, readlink, realpath, stat } from 'node:fs/promises';
 import { extname, join, relative } from 'node:path';
 import { rawExtensions, unreadRawExtensions } from './raw-file.js';
 
@@ -55,12 +55,24 @@ export async function scanFolder(folder: string, recursive: boolean): Promise<Sc
         if (!st.isFile()) continue;
         files.push({ path, name, size: st.size, mtimeMs: st.mtimeMs });
       } catch (err) {
-        problems.push({ name, reason: (err as NodeJS.ErrnoException).code ?? (err as Error).message });
+        problems.push({ name, reason: await entryProblem(path, err) });
       }
     }
   };
   await walk(folder);
   return { files, problems };
+}
+
+/** Why an entry could not be looked at, in words: a link to nothing says where it leads. */
+async function entryProblem(path: string, err: unknown): Promise<string> {
+  const code = (err as NodeJS.ErrnoException).code;
+  if (code === 'ENOENT' || code === 'ELOOP') {
+    const target = await readlink(path).catch(() => null);
+    if (target !== null) return code === 'ELOOP' ? `it is a link that leads round in a loop (${target}): not read` : `it links to ${target}, which is not there: not read`;
+    return 'the file went away during the check';
+  }
+  if (code === 'EACCES' || code === 'EPERM') return 'no permission to read it';
+  return `cannot be read: ${code ?? (err as Error).message}`;
 }
 
 /**
