@@ -4,12 +4,18 @@
 //   address of its own, checked with Chromium's own cookie jar (Debian's chromium via playwright-core).
 // - A refused request is answered before its body is read and its connection closed; bodies are capped.
 // - Frames are rendered a few at a time; the rest get 503 with Retry-After (RFC 9110 sections 15.6.4 and 10.2.3, memory).
+// - Electron: every web contents hardened, and the fuses electron's security guide advises
+//   (electron docs, tutorial/security and tutorial/fuses). No Electron binary can be had here, so
+//   the fuses are checked in the configuration as electron-builder itself reads and validates it.
+import { EventEmitter } from 'node:events';
 import { existsSync, mkdirSync, writeFileSync } from 'node:fs';
 import type { IncomingMessage, Server } from 'node:http';
 import { createServer, request } from 'node:http';
 import type { AddressInfo, Socket } from 'node:net';
 import { connect } from 'node:net';
 import { join } from 'node:path';
+import { getConfig, validateConfiguration } from 'app-builder-lib/out/util/config/config.js';
+import { DebugLogger } from 'builder-util';
 import type { Browser } from 'playwright-core';
 import { chromium } from 'playwright-core';
 import sharp from 'sharp';
@@ -18,8 +24,10 @@ import { AppService } from '../src/main/app-service.js';
 import type { BrowserHost } from '../src/main/browser-host.js';
 import { frameRenders, maxBodyBytes, startBrowserHost } from '../src/main/browser-host.js';
 import { createFrameGate } from '../src/main/frame-gate.js';
+import type { HardenableWebContents, NavigationEvent } from '../src/main/window-options.js';
+import { hardenEveryContents } from '../src/main/window-options.js';
 import { frameRetries, retryUrl, showFrame } from '../src/renderer/frame-image.js';
-import { tempDir } from './helpers/cli.js';
+import { projectRoot, tempDir } from './helpers/cli.js';
 import { externalFixture } from './helpers/images.js';
 
 const chromiumPath = '/usr/bin/chromium';
@@ -349,5 +357,86 @@ describe('frame renders', () => {
     expect(image.values).toEqual(['/frame/3/a.jpg?max=320&t=x', ...Array.from({ length: frameRetries.attempts }, (_, i) => retryUrl('/frame/3/a.jpg?max=320&t=x', i + 1))]);
     expect(image.values[1]).toBe('/frame/3/a.jpg?max=320&t=x&retry=1');
     expect(waits).toEqual([500, 1000, 2000, 4000, 8000, 8000]);
+  });
+});
+
+describe('desktop shell hardening (no Electron binary: the handlers with stand-ins)', () => {
+  /** A stand-in web contents and its session, noting what was set on them. */
+  function fakeContents(): HardenableWebContents & { listeners: Map<string, ((e: NavigationEvent, url?: string) => void)[]>; open?: (d: { url: string }) => { action: string }; request?: (wc: unknown, p: string, cb: (g: boolean) => void) => void; check?: (...a: unknown[]) => boolean } {
+    const fake = {
+      listeners: new Map<string, ((e: NavigationEvent, url?: string) => void)[]>(),
+      open: undefined as ((d: { url: string }) => { action: string }) | undefined,
+      request: undefined as ((wc: unknown, p: string, cb: (g: boolean) => void) => void) | undefined,
+      check: undefined as ((...a: unknown[]) => boolean) | undefined,
+      setWindowOpenHandler(h: (d: { url: string }) => { action: 'deny' } | { action: 'allow' }) {
+        fake.open = h;
+      },
+      on(event: string, l: (e: NavigationEvent, url?: string) => void) {
+        fake.listeners.set(event, [...(fake.listeners.get(event) ?? []), l]);
+        return fake;
+      },
+      session: {
+        setPermissionRequestHandler(h: (wc: unknown, p: string, cb: (g: boolean) => void) => void) {
+          fake.request = h;
+        },
+        setPermissionCheckHandler(h: (...a: unknown[]) => boolean) {
+          fake.check = h;
+        },
+      },
+    };
+    return fake;
+  }
+  const prevented = (c: ReturnType<typeof fakeContents>, event: string, details: { url?: string }, url?: string): boolean => {
+    let stopped = false;
+    const listeners = c.listeners.get(event) ?? [];
+    expect(listeners.length, event).toBeGreaterThan(0);
+    for (const l of listeners) l({ preventDefault: () => (stopped = true), ...details }, url);
+    return stopped;
+  };
+
+  it('hardens every web contents the app creates, not only the first window', () => {
+    const app = new EventEmitter();
+    hardenEveryContents(app as unknown as Parameters<typeof hardenEveryContents>[0]);
+    const window = fakeContents();
+    const later = fakeContents();
+    app.emit('web-contents-created', {}, window);
+    app.emit('web-contents-created', {}, later);
+    for (const c of [window, later]) {
+      expect(c.open?.({ url: 'https://example.com/' })).toEqual({ action: 'deny' });
+      expect(prevented(c, 'will-navigate', { url: 'https://example.com/' })).toBe(true);
+      expect(prevented(c, 'will-redirect', { url: 'http://127.0.0.1:9/' })).toBe(true);
+      expect(prevented(c, 'will-navigate', { url: 'seamscout-app://app/index.html' })).toBe(false);
+      expect(prevented(c, 'will-attach-webview', {})).toBe(true);
+      const granted: boolean[] = [];
+      for (const p of ['media', 'geolocation', 'notifications', 'clipboard-read', 'openExternal']) c.request?.(null, p, (g) => granted.push(g));
+      expect(granted).toEqual([false, false, false, false, false]);
+      expect(c.check?.()).toBe(false);
+    }
+  });
+
+  it('keeps a frame inside the page from navigating away (will-frame-navigate), by the url on the event', () => {
+    const app = new EventEmitter();
+    hardenEveryContents(app as unknown as Parameters<typeof hardenEveryContents>[0]);
+    const c = fakeContents();
+    app.emit('web-contents-created', {}, c);
+    expect(prevented(c, 'will-frame-navigate', { url: 'file:///etc/passwd' })).toBe(true);
+    expect(prevented(c, 'will-frame-navigate', { url: 'seamscout-app://evil/' })).toBe(true);
+    expect(prevented(c, 'will-frame-navigate', {})).toBe(true);
+    expect(prevented(c, 'will-frame-navigate', { url: 'seamscout-app://app/index.html' })).toBe(false);
+  });
+
+  it('sets every fuse the security guide advises, in a configuration electron-builder reads and accepts', async () => {
+    // electron-builder's own loader and schema: a misspelt fuse fails validation instead of being ignored.
+    const config = await getConfig(projectRoot, null, null);
+    await validateConfiguration(config, new DebugLogger(false));
+    expect(config.electronFuses).toEqual({
+      runAsNode: false,
+      enableNodeOptionsEnvironmentVariable: false,
+      enableNodeCliInspectArguments: false,
+      enableEmbeddedAsarIntegrityValidation: true,
+      onlyLoadAppFromAsar: true,
+      enableCookieEncryption: true,
+      grantFileProtocolExtraPrivileges: false,
+    });
   });
 });
