@@ -17,6 +17,9 @@ import { frameForDisplay } from './decode.js';
 import { createFeatureCache } from './feature-cache.js';
 import { rememberFolder } from './recent-folders.js';
 
+/** Bytes of rendered frames kept for the page to show again (a strip of thumbnails is a few megabytes). */
+const frameCacheLimit = 48 * 1024 * 1024;
+
 interface CheckState {
   readonly id: number;
   readonly folder: string;
@@ -67,6 +70,7 @@ export class AppService {
   private nextId = 1;
   private pool: AnalysisPool | null = null;
   private readonly frameCache = new Map<string, Buffer>();
+  private frameCacheBytes = 0;
 
   constructor(private readonly options: AppServiceOptions) {}
 
@@ -157,7 +161,9 @@ export class AppService {
     const s = this.checks.get(id);
     if (!s || !s.realFolder || !s.files.has(file)) return null;
     if (isAbsolute(file) || file.split(/[\\/]/).includes('..')) return null;
-    const side = Math.max(32, Math.min(4096, Math.round(maxSide) || 320));
+    // The page asks for 320 px (strip) and 1200 px (detail); twice the larger is the most served. A
+    // JPEG then decodes shrunk on load, where a 24 MP frame at full size holds 72 MB per render.
+    const side = Math.max(32, Math.min(2400, Math.round(maxSide) || 320));
     const key = `${id}:${file}:${side}`;
     const cached = this.frameCache.get(key);
     if (cached) return cached;
@@ -170,8 +176,16 @@ export class AppService {
     const rel = relative(s.realFolder, real);
     if (rel === '' || rel.startsWith('..' + sep) || rel === '..' || isAbsolute(rel)) return null;
     const jpeg = await frameForDisplay(real, side);
-    if (this.frameCache.size > 200) this.frameCache.clear();
+    // Two requests for the same frame may both have rendered it.
+    this.frameCacheBytes -= this.frameCache.get(key)?.length ?? 0;
     this.frameCache.set(key, jpeg);
+    this.frameCacheBytes += jpeg.length;
+    // Kept by bytes, not by count: two hundred frames at full size would hold most of a gigabyte.
+    for (const [k, v] of this.frameCache) {
+      if (this.frameCacheBytes <= frameCacheLimit) break;
+      this.frameCache.delete(k);
+      this.frameCacheBytes -= v.length;
+    }
     return jpeg;
   }
 

@@ -3,11 +3,13 @@ import { readFile } from 'node:fs/promises';
 import type { IncomingMessage, Server, ServerResponse } from 'node:http';
 import { createServer } from 'node:http';
 import type { AddressInfo } from 'node:net';
+import { isIPv4 } from 'node:net';
 import { extname, isAbsolute, join, normalize, relative, sep } from 'node:path';
 import type { MatchBudget } from '../core/report.js';
 import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent } from './app-api.js';
 import { expectExportFormat } from './app-api.js';
 import { AppService } from './app-service.js';
+import { createFrameGate } from './frame-gate.js';
 import { loadStoredBudget, loadStoredPreference, storeBudget, storePreference } from './settings-store.js';
 import { readRecentFolders } from './recent-folders.js';
 
@@ -26,6 +28,10 @@ const types: Record<string, string> = {
 
 export interface BrowserHost {
   readonly url: string;
+  /** The loopback address this run listens on (random in 127.0.0.0/8 unless binding there failed). */
+  readonly address: string;
+  /** True when no address of its own could be bound and the host shares 127.0.0.1 with every other local server. */
+  readonly sharedAddress: boolean;
   readonly port: number;
   readonly token: string;
   readonly server: Server;
@@ -42,6 +48,30 @@ export interface BrowserHostOptions {
   readonly initialTarget?: { folder: string } | { demo: true } | null;
   /** Fixed port for tests; 0 (default) lets the system choose. */
   readonly port?: number;
+  /** The loopback address to try first (tests); by default a random one of 127.0.0.0/8. */
+  readonly address?: string;
+}
+
+/** Largest request body taken with the token: the API's arguments are a few small JSON values. */
+export const maxBodyBytes = 1_000_000;
+/** Frames rendered at once, and requests that may wait for a turn; more are answered 503. */
+export const frameRenders = { running: 3, waiting: 8 };
+
+/**
+ * A random address of the loopback network 127.0.0.0/8 (RFC 1122 section 3.2.1.3, memory: all of
+ * it loops back; Linux and Windows route all of it to the loopback interface, macOS only 127.0.0.1
+ * unless aliased). Cookies are kept per host, not per port (RFC 6265 section 8.5, memory), so a
+ * cookie set on 127.0.0.1 goes to every server there; on an address of its own, the run's cookie
+ * reaches only this run. Leaves out 127.0.0.0/16's first two blocks (127.0.0.1, and 127.0.1.1
+ * which Debian gives the host name) and host parts 0 and 255.
+ */
+export function randomLoopbackAddress(): string {
+  for (;;) {
+    const [a, b, c] = randomBytes(3);
+    if (a === 0 && b! <= 1) continue;
+    if (c === 0 || c === 255) continue;
+    return `127.${a}.${b}.${c}`;
+  }
 }
 
 function sameSecret(a: string | null | undefined, b: string): boolean {
@@ -58,22 +88,44 @@ function cookieToken(req: IncomingMessage, name: string): string | null {
   return null;
 }
 
-async function readJsonBody(req: IncomingMessage, limit = 1_000_000): Promise<unknown> {
+class TooLarge extends Error {}
+
+/** Whether the request says a body follows (a length above zero, or chunks). */
+function hasBody(req: IncomingMessage): boolean {
+  return Number(req.headers['content-length'] ?? 0) > 0 || req.headers['transfer-encoding'] !== undefined;
+}
+
+async function readJsonBody(req: IncomingMessage, res: ServerResponse, limit: number): Promise<unknown> {
+  // A client that asked before sending its body is told to go on only now that it may.
+  if (/100-continue/i.test(req.headers.expect ?? '')) res.writeContinue();
   let size = 0;
   const chunks: Buffer[] = [];
   for await (const chunk of req) {
     size += (chunk as Buffer).length;
-    if (size > limit) throw new Error('request too large');
+    if (size > limit) throw new TooLarge('request too large');
     chunks.push(chunk as Buffer);
   }
   return chunks.length ? JSON.parse(Buffer.concat(chunks).toString('utf8')) : [];
 }
 
+async function listenOn(server: Server, port: number, address: string): Promise<void> {
+  await new Promise<void>((resolveListen, reject) => {
+    const failed = (err: Error): void => reject(err);
+    server.once('error', failed);
+    server.listen(port, address, () => {
+      server.off('error', failed);
+      resolveListen();
+    });
+  });
+}
+
 /**
- * The same page as the desktop window, served on 127.0.0.1 only, for machines without the Electron
- * binary. Every request must name this run's secret token (query `t`, header, or the cookie the
- * first page load sets) and carry our own Host (and Origin, when sent), which shuts out other sites
- * and DNS rebinding. It serves its own assets, the API, and frames of the check in progress only.
+ * The same page as the desktop window, served on a loopback address of its own (random per run) for
+ * machines without the Electron binary. Every request must name this run's secret token (query `t`,
+ * header, or the cookie the first page load sets) and carry our own Host (and Origin, when sent),
+ * which shuts out other sites and DNS rebinding. A request refused is answered before its body is
+ * read, and its connection closed; a body with the token is capped. Frames are rendered a few at a
+ * time. It serves its own assets, the API, and frames of the check in progress only.
  */
 export async function startBrowserHost(options: BrowserHostOptions): Promise<BrowserHost> {
   const token = randomBytes(24).toString('base64url');
@@ -90,6 +142,9 @@ export async function startBrowserHost(options: BrowserHostOptions): Promise<Bro
     onPartial: (e) => broadcast('partial', e),
   });
   let port = 0;
+  let address = options.address ?? randomLoopbackAddress();
+  if (!isIPv4(address) || address === '0.0.0.0') throw new TypeError(`Expected one IPv4 address for address but received ${address}`);
+  const frameGate = createFrameGate(frameRenders.running, frameRenders.waiting);
   const cookieName = (): string => `seamscout-${port}`;
 
   const api: Record<string, (args: unknown[]) => Promise<unknown> | unknown> = {
@@ -125,17 +180,29 @@ export async function startBrowserHost(options: BrowserHostOptions): Promise<Bro
     res.end(body);
   };
 
+  /**
+   * Refuses without reading the body: `Connection: close` makes Node close the socket once the
+   * answer is out, instead of reading whatever body the client still sends to keep the connection.
+   */
+  const refuse = (res: ServerResponse, status: number, body: string, extra: Record<string, string> = {}): void => {
+    send(res, status, body, 'text/plain; charset=utf-8', { Connection: 'close', ...extra });
+  };
+
   const handle = async (req: IncomingMessage, res: ServerResponse): Promise<void> => {
-    const allowedHosts = [`127.0.0.1:${port}`, `localhost:${port}`];
-    if (!allowedHosts.includes(req.headers.host ?? '')) return send(res, 421, 'wrong host');
+    // localhost names 127.0.0.1, so it is ours only where we share that address.
+    const allowedHosts = address === '127.0.0.1' ? [`127.0.0.1:${port}`, `localhost:${port}`] : [`${address}:${port}`];
+    if (!allowedHosts.includes(req.headers.host ?? '')) return refuse(res, 421, 'wrong host');
     const origin = req.headers.origin;
-    if (origin !== undefined && !allowedHosts.some((h) => origin === `http://${h}`)) return send(res, 403, 'foreign origin');
-    const url = new URL(req.url ?? '/', `http://127.0.0.1:${port}`);
+    if (origin !== undefined && !allowedHosts.some((h) => origin === `http://${h}`)) return refuse(res, 403, 'foreign origin');
+    const url = new URL(req.url ?? '/', `http://${address}:${port}`);
     const queryToken = url.searchParams.get('t');
     const headerToken = req.headers['x-seamscout-token'];
     const authorised =
       sameSecret(queryToken, token) || sameSecret(typeof headerToken === 'string' ? headerToken : null, token) || sameSecret(cookieToken(req, cookieName()), token);
-    if (!authorised) return send(res, 401, 'missing or wrong token');
+    if (!authorised) return refuse(res, 401, 'missing or wrong token');
+    const apiCall = url.pathname.startsWith('/api/') && req.method === 'POST';
+    if (hasBody(req) && !apiCall) return refuse(res, 413, 'no body expected');
+    if (Number(req.headers['content-length'] ?? 0) > maxBodyBytes) return refuse(res, 413, 'request too large');
 
     if (url.pathname.startsWith('/api/')) {
       const method = url.pathname.slice(5);
@@ -147,11 +214,17 @@ export async function startBrowserHost(options: BrowserHostOptions): Promise<Bro
         return;
       }
       // State-changing calls need the header (a page of ours sets it; a form elsewhere cannot).
-      if (req.method !== 'POST' || !sameSecret(typeof headerToken === 'string' ? headerToken : null, token)) return send(res, 403, 'API calls are POST with the token header');
+      if (req.method !== 'POST' || !sameSecret(typeof headerToken === 'string' ? headerToken : null, token)) return refuse(res, 403, 'API calls are POST with the token header');
       const fn = Object.hasOwn(api, method) ? api[method] : undefined;
-      if (!fn) return send(res, 404, 'no such call');
+      if (!fn) return refuse(res, 404, 'no such call');
+      let args: unknown;
       try {
-        const args = await readJsonBody(req);
+        args = await readJsonBody(req, res, maxBodyBytes);
+      } catch (err) {
+        if (err instanceof TooLarge) return refuse(res, 413, 'request too large');
+        return refuse(res, 400, 'the body is not JSON');
+      }
+      try {
         const result = await fn(Array.isArray(args) ? args : [args]);
         return send(res, 200, JSON.stringify({ ok: result ?? null }), 'application/json');
       } catch (err) {
@@ -167,12 +240,18 @@ export async function startBrowserHost(options: BrowserHostOptions): Promise<Bro
       } catch {
         return send(res, 400, 'bad name');
       }
-      const image = await service.frameImage(Number(id), file, Number(url.searchParams.get('max') ?? 320)).catch(() => null);
+      // A frame holds tens of megabytes while it is decoded and scaled: a few at a time, a few more
+      // waiting, the rest asked to come back (the page retries).
+      const rendering = frameGate.run(() =>
+        req.socket.destroyed ? Promise.resolve(null) : service.frameImage(Number(id), file, Number(url.searchParams.get('max') ?? 320)).catch(() => null),
+      );
+      if (!rendering) return send(res, 503, 'busy rendering other frames: try again', 'text/plain; charset=utf-8', { 'Retry-After': '1' });
+      const image = await rendering;
       if (!image) return send(res, 404, 'no such frame');
       return send(res, 200, image, 'image/jpeg');
     }
 
-    if (req.method !== 'GET') return send(res, 405, 'method not allowed');
+    if (req.method !== 'GET') return refuse(res, 405, 'method not allowed');
     const path = url.pathname === '/' ? 'index.html' : decodeURIComponent(url.pathname.slice(1));
     const target = normalize(join(options.assets, path));
     const rel = relative(options.assets, target);
@@ -188,19 +267,33 @@ export async function startBrowserHost(options: BrowserHostOptions): Promise<Bro
     return send(res, 200, body, types[extname(target)] ?? 'application/octet-stream', extra);
   };
 
-  const server = createServer((req, res) => {
+  const onRequest = (req: IncomingMessage, res: ServerResponse): void => {
     handle(req, res).catch((err) => {
       if (!res.headersSent) send(res, 500, (err as Error).message);
       else res.end();
     });
-  });
-  await new Promise<void>((resolveListen, reject) => {
-    server.once('error', reject);
-    server.listen(options.port ?? 0, '127.0.0.1', () => resolveListen());
-  });
+  };
+  const server = createServer(onRequest);
+  // Without this Node answers "100 Continue" itself, inviting the body before anything is checked.
+  server.on('checkContinue', onRequest);
+  // A slow client may not hold a connection open with a request that never ends.
+  server.headersTimeout = 10_000;
+  server.requestTimeout = 30_000;
+  let sharedAddress = false;
+  try {
+    await listenOn(server, options.port ?? 0, address);
+  } catch (err) {
+    // macOS routes only 127.0.0.1 to its loopback interface unless more addresses are aliased.
+    if ((err as NodeJS.ErrnoException).code !== 'EADDRNOTAVAIL' || address === '127.0.0.1') throw err;
+    address = '127.0.0.1';
+    sharedAddress = true;
+    await listenOn(server, options.port ?? 0, address);
+  }
   port = (server.address() as AddressInfo).port;
   return {
-    url: `http://127.0.0.1:${port}/?t=${token}`,
+    url: `http://${address}:${port}/?t=${token}`,
+    address,
+    sharedAddress,
     port,
     token,
     server,

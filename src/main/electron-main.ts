@@ -3,7 +3,7 @@
 import { readFile, writeFile } from 'node:fs/promises';
 import { dirname, extname, join, normalize, relative, isAbsolute } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { app, BrowserWindow, dialog, ipcMain, protocol, session } from 'electron';
+import { app, BrowserWindow, dialog, ipcMain, protocol } from 'electron';
 import type { IpcMainInvokeEvent } from 'electron';
 import type { MatchBudget } from '../core/report.js';
 import { channels, expectExportFormat, frameProtocol } from './app-api.js';
@@ -11,8 +11,7 @@ import { AppService } from './app-service.js';
 import { loadStoredBudget, loadStoredPreference, storeBudget, storePreference } from './settings-store.js';
 import { ensureDemoShoot } from './demo-shoot.js';
 import { readRecentFolders } from './recent-folders.js';
-import type { HardenableContents, HardenableSession } from './window-options.js';
-import { appOrigin, appScheme, desktopContentSecurityPolicy, harden, isTrustedSender, windowOptions } from './window-options.js';
+import { appOrigin, appScheme, desktopContentSecurityPolicy, hardenEveryContents, isTrustedSender, windowOptions } from './window-options.js';
 
 const here = dirname(fileURLToPath(import.meta.url));
 const assets = join(here, '..', 'renderer');
@@ -22,6 +21,9 @@ protocol.registerSchemesAsPrivileged([
   { scheme: appScheme, privileges: { standard: true, secure: true, supportFetchAPI: true } },
   { scheme: frameProtocol, privileges: { standard: true, secure: true } },
 ]);
+
+// Before anything is created: the window's contents, and any other, are hardened as they appear.
+hardenEveryContents(app);
 
 let win: BrowserWindow | null = null;
 const initial = process.argv.slice(app.isPackaged ? 1 : 2).find((a) => !a.startsWith('-')) ?? null;
@@ -90,7 +92,6 @@ app.whenReady().then(async () => {
   });
 
   win = new BrowserWindow(windowOptions(join(here, 'preload.cjs')));
-  harden(session.defaultSession as unknown as HardenableSession, win.webContents as unknown as HardenableContents);
   win.once('ready-to-show', () => win?.show());
   await win.loadURL(`${appOrigin}/index.html`);
 });

@@ -36,6 +36,9 @@ async function main(): Promise<void> {
   if (!forceBrowser) process.stdout.write('The Electron binary is not installed here: serving the app to your browser instead.\n');
   const host = await startBrowserHost({ assets: join(root, 'dist', 'renderer'), demoFolder: ensureDemoShoot, version, initialTarget: folder ? { folder: resolve(folder) } : { demo: true } });
   process.stdout.write(`Seamscout is at ${host.url}\n(only this computer can reach it; press Ctrl+C to stop)\n`);
+  if (host.sharedAddress) {
+    process.stdout.write('Note: no loopback address of its own could be had here, so it shares 127.0.0.1 with other local servers; close the page when done.\n');
+  }
   if (!args.includes('--no-open') && !process.env.SEAMSCOUT_NO_BROWSER) openInBrowser(host.url);
   const stop = (): void => {
     void host.close().finally(() => process.exit(0));

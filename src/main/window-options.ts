@@ -57,9 +57,41 @@ export interface HardenableSession {
   setPermissionRequestHandler(handler: (wc: unknown, permission: string, callback: (granted: boolean) => void) => void): void;
   setPermissionCheckHandler(handler: (...args: unknown[]) => boolean): void;
 }
+/** A navigation event: Electron passes the target as `url` on the event (and, deprecated, as a second argument). */
+export interface NavigationEvent {
+  preventDefault(): void;
+  readonly url?: string;
+}
 export interface HardenableContents {
   setWindowOpenHandler(handler: (details: { url: string }) => { action: 'deny' } | { action: 'allow' }): void;
-  on(event: 'will-navigate' | 'will-attach-webview' | 'will-redirect', listener: (event: { preventDefault(): void }, url?: string) => void): unknown;
+  on(event: 'will-navigate' | 'will-frame-navigate' | 'will-attach-webview' | 'will-redirect', listener: (event: NavigationEvent, url?: string) => void): unknown;
+}
+/** A web contents with its session, as `web-contents-created` hands it over. */
+export interface HardenableWebContents extends HardenableContents {
+  readonly session: HardenableSession;
+}
+/** The part of Electron's `app` that announces every new web contents. */
+export interface WebContentsSource {
+  on(event: 'web-contents-created', listener: (event: unknown, contents: HardenableWebContents) => void): unknown;
+}
+
+/** Every permission request and check denied: the page needs no camera, location or notification. */
+export function hardenSession(session: HardenableSession): void {
+  session.setPermissionRequestHandler((_wc, _permission, callback) => callback(false));
+  session.setPermissionCheckHandler(() => false);
+}
+
+/** No new windows; the page and every frame in it navigate and redirect only within our own page; no webviews. */
+export function hardenContents(contents: HardenableContents): void {
+  contents.setWindowOpenHandler(() => ({ action: 'deny' }));
+  const stay = (event: NavigationEvent, url?: string): void => {
+    const target = event.url ?? url;
+    if (!target || !isAllowedNavigation(target)) event.preventDefault();
+  };
+  contents.on('will-navigate', stay);
+  contents.on('will-frame-navigate', stay);
+  contents.on('will-redirect', stay);
+  contents.on('will-attach-webview', (event) => event.preventDefault());
 }
 
 /**
@@ -67,13 +99,15 @@ export interface HardenableContents {
  * windows, navigation and redirects only within our own page, no webviews.
  */
 export function harden(session: HardenableSession, contents: HardenableContents): void {
-  session.setPermissionRequestHandler((_wc, _permission, callback) => callback(false));
-  session.setPermissionCheckHandler(() => false);
-  contents.setWindowOpenHandler(() => ({ action: 'deny' }));
-  const stay = (event: { preventDefault(): void }, url?: string): void => {
-    if (!url || !isAllowedNavigation(url)) event.preventDefault();
-  };
-  contents.on('will-navigate', stay);
-  contents.on('will-redirect', stay);
-  contents.on('will-attach-webview', (event) => event.preventDefault());
+  hardenSession(session);
+  hardenContents(contents);
+}
+
+/**
+ * The same rules for every web contents the app ever makes (its window, and any other a page or a
+ * bug might open), the moment it exists (electron docs, tutorial/security: permission requests,
+ * webview options, navigation and new windows limited).
+ */
+export function hardenEveryContents(app: WebContentsSource): void {
+  app.on('web-contents-created', (_event, contents) => harden(contents.session, contents));
 }

@@ -18,6 +18,7 @@ import { createProgressView, emptyProgress, withEvent } from './progress-view.js
 import type { StartModel } from './start-view.js';
 import { renderStart } from './start-view.js';
 import { renderCoverage } from './coverage-view.js';
+import { showFrame } from './frame-image.js';
 import { isCard, renderSequenceBar, renderSequenceList } from './sequence-list-view.js';
 import { renderStrip } from './strip-view.js';
 import { renderSummary } from './summary-view.js';
@@ -133,7 +134,8 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   const thumbnail = (file: string): HTMLImageElement => {
     let img = thumbs.get(file);
     if (!img) {
-      img = el('img', { src: api.frameUrl(checkId ?? 0, file, thumbSide), loading: 'lazy', decoding: 'async', draggable: 'false', alt: file });
+      img = el('img', { loading: 'lazy', decoding: 'async', draggable: 'false', alt: file });
+      showFrame(img, 'src', api.frameUrl(checkId ?? 0, file, thumbSide));
       thumbs.set(file, img);
     }
     return img;
@@ -141,7 +143,8 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   const fullImage = (file: string): SVGImageElement => {
     let img = fulls.get(file);
     if (!img) {
-      img = svg('image', { href: api.frameUrl(checkId ?? 0, file, detailSide) });
+      img = svg('image');
+      showFrame(img, 'href', api.frameUrl(checkId ?? 0, file, detailSide));
       fulls.set(file, img);
     }
     return img;

@@ -1,5 +1,5 @@
 // The page's side of the local browser host: the same SeamscoutApi as the desktop bridge, over HTTP
-// to 127.0.0.1 with this run's token (given in the address the host printed).
+// to this run's own loopback address with its token (given in the address the host printed).
 import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat, HostInfo, SeamscoutApi, ShotPreference } from '../main/app-api.js';
 import type { MatchBudget } from '../core/report.js';
 
