@@ -4,6 +4,7 @@ import { lensMisfitLimitPx } from './lens.js';
 import { reportSchema } from './report.js';
 import { modalPattern, patternOf } from './stations.js';
 import { blurredFrames } from './blur-verdict.js';
+import { reshootPlan } from './reshoot-plan.js';
 import { degrees, fNumber, isoSpeed, millimetres, percent as pct, shutterTime, signedEv } from './number-words.js';
 
 const rank: Record<Verdict, number> = { ok: 0, weak: 1, reshoot: 2 };
@@ -159,6 +160,7 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
       firstFile: first?.file ?? '', lastFile: last?.file ?? '', startTime: first?.captureTime ?? null, endTime: last?.captureTime ?? null,
       verdict: r.verdict, counts: r.counts, sweepDeg: r.sweepDeg, geometry: r.geometry,
       frames: r.frames, stations: r.stations, pairs: r.pairs, holes: r.holes ?? [], coverageNotes: r.coverageNotes ?? [],
+      plan: r.plan ?? [],
     };
   });
   // A sequence apart from the one before only by its content, shot at the same rhythm with the same
@@ -187,6 +189,8 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
     folderProblems: breaks,
     holes: parts.flatMap((r) => r.holes ?? []),
     coverageNotes: parts.flatMap((r) => r.coverageNotes ?? []),
+    // Each sequence's plan again, saying its sequence, with stations counted across the card.
+    plan: parts.flatMap((r, k) => reshootPlan({ ...r, budget }, sequences[k].index, offsets[k])),
     sequences: judged,
     singleShots,
   };
@@ -331,6 +335,7 @@ function judgeOne(analysis: Analysis, budget: MatchBudget): Report {
   });
   const verdicts = [...pairs.map((p) => p.verdict), ...frames.map((f) => f.verdict), ...stations.map((s) => s.verdict), ...holes.map((h) => h.verdict)];
   const problems = [...pairs.map((p) => p.verdict), ...frames.map((f) => f.verdict)];
+  const plan = reshootPlan({ frames, stations, pairs, holes, geometry: analysis.geometry, budget });
   return {
     schema: reportSchema,
     // A file left out that the sequence may miss is worth a look; a RAW+JPEG twin, a copy or a stray is not.
@@ -354,6 +359,7 @@ function judgeOne(analysis: Analysis, budget: MatchBudget): Report {
     folderProblems,
     holes,
     coverageNotes: notes,
+    plan,
   };
 }
 
