@@ -191,6 +191,8 @@ export function reshootPlan(source: PlanSource, sequence: number | null = null, 
         return p.verdict;
     }
   };
+  /** A pair's frames, the one of station `first` first. */
+  const pairFiles = (p: ReportPair, first: number): string[] => (stationOfFile.get(p.a)?.index === first ? [p.a, p.b] : [p.b, p.a]).map(shortName);
   const betweenDraft = (p: ReportPair, i: number, j: number): Draft => {
     const key = `b${i}:${j}`;
     let d = drafts.get(key);
@@ -201,7 +203,7 @@ export function reshootPlan(source: PlanSource, sequence: number | null = null, 
       const [first, second] = closing ? [j, i] : [i, j];
       d = {
         order, closing, action: 'look', verdict: 'ok', stations: [first, second], files: new Set([p.a, p.b]), reasons: [],
-        where: `Between stations ${first + 1} and ${second + 1} (${shortName(p.a)} and ${shortName(p.b)})${closing ? ', where the turn closes' : ''}`,
+        where: `Between stations ${first + 1} and ${second + 1} (${andList(pairFiles(p, first))})${closing ? ', where the turn closes' : ''}`,
         why: [], actions: [], settings: false, aim: [],
       };
       drafts.set(key, d);
@@ -347,7 +349,7 @@ export function reshootPlan(source: PlanSource, sequence: number | null = null, 
         note(d, code, reasonVerdict(p, code), missesChain ? 'the turn comes round but misses the chain of neighbours' : 'the turn does not close');
         if (missesChain) d.actions.push('check the pairs for a wrong match, or whether the camera moved off its pivot, before reshooting');
       } else if (code === 'parallax') {
-        note(d, code, reasonVerdict(p, code), `near and far things do not line up (${percent(p.misfit ?? 0)} of the overlap off)`);
+        note(d, code, reasonVerdict(p, code), `near and far things do not line up, ${percent(p.misfit ?? 0)} of the overlap off`);
         d.actions.push("turn the camera about the lens's entrance pupil and reshoot if the seam crosses near things");
       } else if (code === 'movement') {
         note(d, code, reasonVerdict(p, code), 'something moved between them');
