@@ -165,6 +165,16 @@ describe('the reshoot plan', () => {
     expect(plan[0].text).toBe('The zenith: the sky straight up is not covered above pitch +70 degrees: add a frame aimed straight up.');
   });
 
+  it('merges a hole between two stations with their failed pair into one item, aimed at the hole', () => {
+    const r = judge(singles(4), defaultBudget);
+    const hole: CoverageHole = { code: 'coverage-hole', verdict: 'reshoot', yawDeg: 70, pitchDeg: 12, widthDeg: 9, heightDeg: 30, pole: null, advice: 'nothing covers about 9° x 30° at yaw 70°, pitch +12 degrees (between stations 3 and 4): add a frame aimed there', between: [2, 3] };
+    const pairs = r.pairs.map((p) => (p.a === '3' ? { ...p, homography: null, overlap: null, inliers: 0, verdict: 'reshoot' as const, reasons: ['coverage-hole' as const], advice: [hole.advice] } : p));
+    const plan = reshootPlan({ ...r, pairs, holes: [hole] });
+    expect(plan).toHaveLength(1);
+    expect(plan[0]).toMatchObject({ action: 'add-stations', stationIndices: [2, 3], reasons: ['coverage-hole'], aim: [{ yawDeg: 70, pitchDeg: 12 }] });
+    expect(plan[0].text).toBe('Between stations 3 and 4 (3 and 4): add one frame, aimed at yaw 70 degrees (nothing covers the scene between them).');
+  });
+
   it('gives each sequence of a card its own plan, and the card one plan of them all, each item saying its sequence', () => {
     const r = judge(cardAnalysis, defaultBudget);
     // Sequence 1: 15 % overlap between its 2nd and 3rd frames (reshoot); sequence 3: 25 % between its 1st and 2nd (weak).
