@@ -146,6 +146,38 @@ describe('the demo shoot with its planted problems (12 stations, 3000x2000)', ()
     expect(report.sweepDeg).toBeGreaterThan(355);
     expect(report.sweepDeg).toBeLessThan(365);
   });
+
+  it('leads with a reshoot plan naming each planted problem once, by station in shooting order, with the settings and aim it needs', () => {
+    // The truth of the demo (docs/demo-truth.md): each problem planted once, on stations of its own.
+    const plan = report.plan!;
+    expect(plan.every((i) => !i.optional)).toBe(true);
+    expect(plan).toHaveLength(truth.problems.length);
+    for (const problem of truth.problems) {
+      const items = plan.filter((i) => i.reasons.includes(problem.code as never));
+      expect(items, problem.code).toHaveLength(1);
+      expect(items[0].stationIndices, problem.code).toEqual(problem.stations);
+      expect(items[0].stationNumbers, problem.code).toEqual(problem.stations.map((s) => s + 1));
+      for (const f of problem.frames) expect(items[0].files, problem.code).toContain(f);
+    }
+    const first = plan.map((i) => Math.min(...i.stationIndices));
+    expect(first).toEqual([...first].sort((a, b) => a - b));
+    // The settings to use are those the truth meters every station at: 1/250 s, f/8, ISO 100.
+    const ref = truth.frames.find((f) => f.file === truth.stations[0].reference)!;
+    const jump = plan.find((i) => i.reasons.includes('exposure-jump'))!;
+    expect(jump.action).toBe('reshoot-station');
+    expect(jump.settings).toEqual({ exposureTime: ref.exposureTime, fNumber: ref.fNumber, iso: ref.iso });
+    expect(jump.text).toMatch(/^Station \d+ \(SSC_\d+ to SSC_\d+\): reshoot the bracket at 1\/250 s, f\/8, ISO 100 like the rest/);
+    // The station to add, aimed midway between the two stations the gap lies between, as the truth's
+    // yaws place them (counted from station 1, as the poses are), within 2 degrees.
+    const gap = plan.find((i) => i.reasons.includes('low-overlap'))!;
+    expect(gap.action).toBe('add-stations');
+    expect(gap.text).toMatch(/add one bracketed station, aimed at yaw \d+ degrees/);
+    const yaw = (s: number): number => truth.frames.find((f) => f.file === truth.stations[s].reference)!.yawDeg;
+    const [a, b] = gap.stationIndices.map((s) => yaw(s) - yaw(0));
+    const mid = (((a + b) / 2) % 360 + 360) % 360;
+    expect(gap.aim).toHaveLength(1);
+    expect(Math.abs(((gap.aim[0].yawDeg - mid + 540) % 360) - 180)).toBeLessThan(2);
+  });
 });
 
 describe('a clean demo shoot', () => {

@@ -54,6 +54,16 @@ describe('pair verdicts', () => {
     expect(r.pairs[2].verdict).toBe('weak');
   });
 
+  it('reshoots an exposure jump under twice the budget when EXIF shows that frame exposed unlike the rest; from the light alone it stays weak', () => {
+    // 0.7 EV: over the 0.5 EV budget, under twice it. Shutter 1/160 s against 1/250 s is 0.64 EV (APEX, ISO 2720).
+    const pairs = [pair('1', '2'), pair('2', '3', { evDiff: 0.7 }), pair('3', '4', { evDiff: -0.7 }), pair('4', '5')];
+    const byCamera = judge(sequence(pairs, ['1', '2', '3', '4', '5'].map((f) => frame(f, f === '3' ? { settings: { ...settings, exposureTime: 1 / 160 } } : {}))), defaultBudget);
+    expect(byCamera.pairs.map((p) => p.verdict)).toEqual(['ok', 'reshoot', 'reshoot', 'ok']);
+    expect(byCamera.plan!.map((i) => [i.stationNumbers, i.optional, i.reasons])).toEqual([[[3], false, ['exposure-jump']]]);
+    const byLight = judge(sequence(pairs), defaultBudget);
+    expect(byLight.pairs.map((p) => p.verdict)).toEqual(['ok', 'weak', 'weak', 'ok']);
+  });
+
   it('re-judges against a new budget without re-analysis', () => {
     const r = judge(sequence([pair('1', '2', { overlap: 0.25 }), pair('2', '3', { inliers: 30 })]), defaultBudget);
     expect(r.pairs.map((p) => p.verdict)).toEqual(['weak', 'ok']);

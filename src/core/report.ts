@@ -4,6 +4,8 @@
  * `judge` (verdicts.ts) against a match budget, so a new budget re-judges without re-analysis.
  */
 
+import type { PlanItem } from './reshoot-plan.js';
+
 export type Verdict = 'ok' | 'weak' | 'reshoot';
 
 /** Flag codes, lower-case-hyphenated words of our own. */
@@ -313,6 +315,8 @@ export interface ReportSequence {
   readonly pairs: readonly ReportPair[];
   readonly holes: readonly CoverageHole[];
   readonly coverageNotes: readonly CoverageNote[];
+  /** Its reshoot plan, as if it were alone in a folder (station indices its own); absent in reports written before plans. */
+  readonly plan?: readonly PlanItem[];
 }
 
 export interface Report {
@@ -342,6 +346,12 @@ export interface Report {
   readonly sequences?: readonly ReportSequence[];
   /** Frames that belong to no sequence: listed, not flagged. */
   readonly singleShots?: readonly SingleShot[];
+  /**
+   * What to do at the site, by station in shooting order (core/reshoot-plan.ts): on a card of
+   * several sequences, each sequence's items in turn, each saying its sequence, with station indices
+   * counted across the card as in `stations`. Absent in reports written before plans.
+   */
+  readonly plan?: readonly PlanItem[];
 }
 
 /** The minimum evidence a pair needs, and the other thresholds verdicts are judged by. */

@@ -40,5 +40,6 @@ export function sequenceReport(report: Report, index: number): Report {
     folderProblems: [],
     holes: q.holes,
     coverageNotes: q.coverageNotes,
+    plan: q.plan ?? [],
   };
 }

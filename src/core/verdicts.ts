@@ -4,6 +4,7 @@ import { lensMisfitLimitPx } from './lens.js';
 import { reportSchema } from './report.js';
 import { modalPattern, patternOf } from './stations.js';
 import { blurredFrames } from './blur-verdict.js';
+import { reshootPlan } from './reshoot-plan.js';
 import { degrees, fNumber, isoSpeed, millimetres, percent as pct, shutterTime, signedEv } from './number-words.js';
 
 const rank: Record<Verdict, number> = { ok: 0, weak: 1, reshoot: 2 };
@@ -75,7 +76,7 @@ function lensMisfit(analysis: Analysis, stationOf: Map<string, StationMeasure>):
 }
 
 /** Judges a pair between stations (neighbour or closure) against the budget. */
-function judgeStationPair(p: PairMeasure, budget: MatchBudget, sweepDeg: number | null, geometry: SequenceGeometry | null, frameSize: (file: string) => { width: number; height: number } | null): Finding {
+function judgeStationPair(p: PairMeasure, budget: MatchBudget, sweepDeg: number | null, geometry: SequenceGeometry | null, frameSize: (file: string) => { width: number; height: number } | null, exposureSet: (file: string) => boolean = () => false): Finding {
   const f = new Findings();
   const between = `${p.a} and ${p.b}`;
   if (p.homography === null) {
@@ -106,7 +107,10 @@ function judgeStationPair(p: PairMeasure, budget: MatchBudget, sweepDeg: number 
     f.add('movement', 'weak', `something moved between ${between}, ${whereIn(m, frameSize(p.a))} of ${p.a}: a person, a wave or a branch there will ghost or be cut at the seam; reshoot one of them once it has passed`);
   }
   if (p.evDiff !== null && Math.abs(p.evDiff) > budget.maxEvDiff) {
-    const v: Verdict = Math.abs(p.evDiff) > 2 * budget.maxEvDiff ? 'reshoot' : 'weak';
+    // A jump the camera's own settings explain (one frame exposed unlike the rest, as auto-exposure
+    // does) is reshot at the settings of the rest, however small; one from the light alone is weak
+    // until it is large, as a blend may hide it.
+    const v: Verdict = Math.abs(p.evDiff) > 2 * budget.maxEvDiff || exposureSet(p.a) || exposureSet(p.b) ? 'reshoot' : 'weak';
     f.add('exposure-jump', v, `exposure changed by ${signedEv(p.evDiff)} between ${between}: lock exposure and reshoot`);
   }
   return f.done();
@@ -159,6 +163,7 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
       firstFile: first?.file ?? '', lastFile: last?.file ?? '', startTime: first?.captureTime ?? null, endTime: last?.captureTime ?? null,
       verdict: r.verdict, counts: r.counts, sweepDeg: r.sweepDeg, geometry: r.geometry,
       frames: r.frames, stations: r.stations, pairs: r.pairs, holes: r.holes ?? [], coverageNotes: r.coverageNotes ?? [],
+      plan: r.plan ?? [],
     };
   });
   // A sequence apart from the one before only by its content, shot at the same rhythm with the same
@@ -187,6 +192,8 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
     folderProblems: breaks,
     holes: parts.flatMap((r) => r.holes ?? []),
     coverageNotes: parts.flatMap((r) => r.coverageNotes ?? []),
+    // Each sequence's plan again, saying its sequence, with stations counted across the card.
+    plan: parts.flatMap((r, k) => reshootPlan({ ...r, budget }, sequences[k].index, offsets[k])),
     sequences: judged,
     singleShots,
   };
@@ -265,6 +272,23 @@ function judgeOne(analysis: Analysis, budget: MatchBudget): Report {
     return key === null ? null : gapBetween.get(key) ?? null;
   };
 
+  // Reference frames whose EXIF exposure (APEX EV100 = log2(N^2 / t) - log2(ISO / 100), ISO 2720)
+  // differs from the sequence's usual settings by more than the budget allows between neighbours.
+  const exposureUnlikeRest = new Set<string>();
+  if (refs.length >= 3) {
+    const ev = (s: { exposureTime: number | null; fNumber: number | null; iso: number | null }): number | null =>
+      s.exposureTime && s.fNumber && s.iso ? Math.log2((s.fNumber * s.fNumber) / s.exposureTime) - Math.log2(s.iso / 100) : null;
+    const usual = ev({
+      exposureTime: mode(refs.map((s) => s.exposureTime).filter((v): v is number => v !== null)),
+      fNumber: mode(refs.map((s) => s.fNumber).filter((v): v is number => v !== null)),
+      iso: mode(refs.map((s) => s.iso).filter((v): v is number => v !== null)),
+    });
+    for (const s of analysis.stations) {
+      const own = ev(settingsOf.get(s.reference) ?? { exposureTime: null, fNumber: null, iso: null });
+      if (usual !== null && own !== null && Math.abs(own - usual) > budget.maxEvDiff) exposureUnlikeRest.add(s.reference);
+    }
+  }
+
   // Pairs.
   const sizes = new Map(analysis.frames.map((f) => [f.file, { width: f.width, height: f.height }]));
   const frameSize = (file: string): { width: number; height: number } | null => sizes.get(file) ?? null;
@@ -281,7 +305,7 @@ function judgeOne(analysis: Analysis, budget: MatchBudget): Report {
       }
     }
     if (p.kind === 'neighbour' || p.kind === 'closure') {
-      const found = judgeStationPair(p, budget, analysis.sweepDeg, analysis.geometry, frameSize);
+      const found = judgeStationPair(p, budget, analysis.sweepDeg, analysis.geometry, frameSize, (file) => exposureUnlikeRest.has(file));
       const miss = misfit?.pairs.get(`${p.a}:${p.b}`) ?? misfit?.pairs.get(`${p.b}:${p.a}`);
       // A pair whose own parallax or movement explains its misfit keeps that flag alone.
       if (miss === undefined || found.reasons.includes('parallax') || found.reasons.includes('movement')) return { ...p, ...found };
@@ -331,6 +355,7 @@ function judgeOne(analysis: Analysis, budget: MatchBudget): Report {
   });
   const verdicts = [...pairs.map((p) => p.verdict), ...frames.map((f) => f.verdict), ...stations.map((s) => s.verdict), ...holes.map((h) => h.verdict)];
   const problems = [...pairs.map((p) => p.verdict), ...frames.map((f) => f.verdict)];
+  const plan = reshootPlan({ frames, stations, pairs, holes, geometry: analysis.geometry, budget });
   return {
     schema: reportSchema,
     // A file left out that the sequence may miss is worth a look; a RAW+JPEG twin, a copy or a stray is not.
@@ -354,6 +379,7 @@ function judgeOne(analysis: Analysis, budget: MatchBudget): Report {
     folderProblems,
     holes,
     coverageNotes: notes,
+    plan,
   };
 }
 

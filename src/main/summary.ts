@@ -57,14 +57,15 @@ const clock = (iso: string | null): string | null => (iso ? iso.slice(11, 16) : 
 function formatCard(report: Report): string {
   const seqs = report.sequences ?? [];
   const singles = report.singleShots ?? [];
-  const out: string[] = [`Seamscout check of ${report.folder}`];
+  const out: string[] = [...planBlock(report, report.folder), '', `Seamscout check of ${report.folder}`];
   out.push(`${seqs.length} sequence${seqs.length === 1 ? '' : 's'}${singles.length ? ` and ${singles.length} single shot${singles.length === 1 ? '' : 's'}` : ''} on the card`);
   for (const q of seqs) {
     const span = [clock(q.startTime), clock(q.endTime)].filter(Boolean);
     const when = span.length === 2 ? (span[0] === span[1] ? `, ${span[0]}` : `, ${span[0]} to ${span[1]}`) : '';
     out.push('', `Sequence ${q.index} of ${seqs.length}: ${q.firstFile} to ${q.lastFile}, ${q.frames.length} frames, ${q.stations.length} stations${when}, ${word[q.verdict]}`);
     if (q.splitBy.length) out.push(`  apart from the sequence before: ${apartWords(q.splitBy)}`);
-    const body = formatOne(sequenceReport(report, q.index)).trimEnd().split('\n').slice(1);
+    // The card's plan above has every sequence's items already.
+    const body = formatOne(sequenceReport(report, q.index), false).trimEnd().split('\n').slice(1);
     // The heading has the counts already: what the sequence covers is left of that line.
     const rest = body[0].replace(/^\d+ frames in \d+ stations(, )?/, '');
     body[0] = rest.charAt(0).toUpperCase() + rest.slice(1);
@@ -81,18 +82,36 @@ function formatCard(report: Report): string {
   const by = (v: string): number => seqs.filter((q) => q.verdict === v).length;
   const tally = [by('ok') ? `${by('ok')} ok` : '', by('weak') ? `${by('weak')} weak` : '', by('reshoot') ? `${by('reshoot')} to reshoot` : ''].filter(Boolean).join(', ');
   out.push('', `${seqs.length} sequence${seqs.length === 1 ? '' : 's'}${tally ? `: ${tally}` : ''}${singles.length ? `; ${singles.length} single shot${singles.length === 1 ? '' : 's'}` : ''}.`);
-  out.push(`Verdict: ${word[report.verdict]}.${report.verdict === 'ok' ? ' Every sequence is within the match budget.' : ` ${report.counts.reshoot} to reshoot, ${report.counts.weak} weak, over the sequences above.`}`);
   return out.map(forTerminal).join('\n') + '\n';
 }
 
-/** The summary a photographer reads in the terminal: pairs in shooting order, then what to reshoot. */
+/**
+ * The reshoot plan as it leads the summary: what must be done, numbered in shooting order, then
+ * what is only worth a look, then the verdict in one line.
+ */
+function planBlock(report: Report, subject: string): string[] {
+  const plan = report.plan ?? [];
+  const must = plan.filter((i) => !i.optional), look = plan.filter((i) => i.optional);
+  const out: string[] = [];
+  if (must.length) out.push(`Reshoot plan for ${subject}, in shooting order:`, ...must.map((i, k) => `  ${String(k + 1).padStart(String(must.length).length)}. ${i.text}`));
+  else out.push(`Reshoot plan for ${subject}: nothing to reshoot.`);
+  if (look.length) out.push(`Worth a look${must.length ? ' (optional)' : ''}:`, ...look.map((i) => `  - ${i.text}`));
+  const items = (n: number, what: string): string => `${n} ${what}${n === 1 ? '' : 's'}`;
+  const counted = [must.length ? items(must.length, 'item') + ' to reshoot' : '', look.length ? `${look.length} worth a look` : ''].filter(Boolean).join(', ');
+  // A weak card with nothing in its plan (a file left out, a break between sequences) says why below.
+  out.push(report.verdict === 'ok' ? 'Verdict: ok. Every pair and frame is within the match budget.' : `Verdict: ${word[report.verdict]}. ${counted || 'Nothing to reshoot; see below'}.`);
+  return out;
+}
+
+/** The summary a photographer reads in the terminal: the reshoot plan, then the pairs in shooting order and the details behind the plan. */
 export function formatSummary(report: Report): string {
   if ((report.sequences?.length ?? 0) > 1 || (report.singleShots?.length ?? 0) > 0) return formatCard(report);
   return formatOne(report);
 }
 
-function formatOne(report: Report): string {
+function formatOne(report: Report, withPlan = true): string {
   const out: string[] = [];
+  if (withPlan) out.push(...planBlock(report, report.folder), '');
   const g = report.geometry;
   const openTurn = report.pairs.some((p) => p.kind === 'closure' && p.homography === null);
   const closes = g?.closure ? (g.closure.closes ? `, the turn closes (within ${g.closure.misclosureDeg!.toFixed(1)} deg)` : ', the turn does not meet itself') : openTurn ? ', the turn does not close' : '';
@@ -137,16 +156,15 @@ function formatOne(report: Report): string {
   // Worth knowing, asking for nothing (an open zenith or nadir the set does not reach toward).
   const notes = report.coverageNotes ?? [];
   if (notes.length) out.push('', 'Notes:', ...notes.map((n) => `  - ${n.text}`));
-  out.push('');
-  if (report.verdict === 'ok') out.push('Verdict: ok. Every pair and frame is within the match budget.');
-  else {
+  if (report.verdict !== 'ok') {
     const leftOut = left.length ? `, ${left.length} file${left.length === 1 ? '' : 's'} not checked` : '';
     // Holes no pair carries are counted apart: the counts are of pairs and frames.
     const pairAdvice = new Set(report.pairs.flatMap((p) => p.advice));
     const holes = (report.holes ?? []).filter((h) => h.verdict !== 'ok' && !pairAdvice.has(h.advice)).length;
     const holesOut = holes ? `, ${holes} hole${holes === 1 ? '' : 's'} in the coverage` : '';
-    out.push(`Verdict: ${word[report.verdict]}. ${report.counts.reshoot} to reshoot, ${report.counts.weak} weak${holesOut}${leftOut}.`);
-    if (advice.length) out.push('', 'What to do:', ...advice.map((a) => `  - ${a}`));
+    // The plan above says what to do; these are the findings behind it, each with its measures.
+    out.push('', `Findings: ${report.counts.reshoot} to reshoot, ${report.counts.weak} weak${holesOut}${leftOut}.`);
+    if (advice.length) out.push(...advice.map((a) => `  - ${a}`));
   }
   return out.map(forTerminal).join('\n') + '\n';
 }

@@ -1,4 +1,4 @@
-// The summary header: the numbers a photographer reads first, large, and the overall verdict.
+// The summary header: the overall verdict, the reshoot plan, and the numbers, large.
 import { lensSentence } from '../core/lens-words.js';
 import { millimetres } from '../core/number-words.js';
 import type { Report, Verdict } from '../core/report.js';
@@ -35,6 +35,26 @@ function rawPlusJpegNote(r: NonNullable<Report['rawPlusJpeg']>, switchPreference
   );
 }
 
+/**
+ * The reshoot plan, read first: what must be reshot, numbered in shooting order, then what is worth
+ * a look. Nothing when the plan is empty (the overall words say so) or the report has none.
+ */
+export function renderPlan(report: Report): HTMLElement | null {
+  const plan = report.plan ?? [];
+  if (plan.length === 0) return null;
+  const must = plan.filter((i) => !i.optional), look = plan.filter((i) => i.optional);
+  const item = (i: (typeof plan)[number]): HTMLElement =>
+    el('li', { class: `plan-item plan-${i.optional ? 'weak' : 'reshoot'}`, 'data-plan-item': i.action, ...(i.optional ? { 'data-optional': '' } : {}) }, verdictIcon(i.optional ? 'weak' : 'reshoot', 18), el('span', {}, ` ${i.text}`));
+  return el(
+    'section',
+    { class: 'plan', 'data-plan': plan.length, 'aria-label': 'Reshoot plan' },
+    must.length ? el('h2', {}, 'Reshoot plan, in shooting order') : null,
+    must.length ? el('ol', {}, must.map(item)) : null,
+    look.length ? el('h3', {}, must.length ? 'Worth a look (optional)' : 'Worth a look') : null,
+    look.length ? el('ul', {}, look.map(item)) : null,
+  );
+}
+
 export function renderSummary(report: Report, act: SummaryActions = {}): HTMLElement {
   const c = report.counts;
   const left = notChecked(report.skipped);
@@ -51,6 +71,7 @@ export function renderSummary(report: Report, act: SummaryActions = {}): HTMLEle
       el('p', { class: 'overall-words' }, card ? `${cardWords(report)}.` : overallWords[report.verdict]),
       el('p', { class: 'folder', title: report.folder }, folderName),
     ),
+    renderPlan(report),
     el(
       'dl',
       { class: 'stats' },
