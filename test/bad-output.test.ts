@@ -172,10 +172,12 @@ describe('interrupted writes', () => {
 describe('never onto or into the checked folder, never over anything but a regular file', () => {
   it('refuses an export onto a photograph of the checked folder, even with --force, and through a link to the folder', async () => {
     const before = photoBytes();
-    const link = join(tempDir('seamscout-link-'), 'card');
-    symlinkSync(card, link);
-    const targets = [join(card, 'leuvenA.jpg'), join(link, 'leuvenB.jpg'), join(card, 'pairs.graphml')];
-    const r = await runCli(['check', card, '--json', targets[0], '--csv', targets[1], '--graphml', targets[2], '--force', '--threads', '0']);
+    const links = tempDir('seamscout-link-');
+    symlinkSync(card, join(links, 'card'));
+    // A link outside the folder to one of its photographs: its real path is inside.
+    symlinkSync(join(card, 'leuvenA.jpg'), join(links, 'report.dot'));
+    const targets = [join(card, 'leuvenA.jpg'), join(links, 'card', 'leuvenB.jpg'), join(card, 'pairs.graphml'), join(links, 'report.dot')];
+    const r = await runCli(['check', card, '--json', targets[0], '--csv', targets[1], '--graphml', targets[2], '--dot', targets[3], '--force', '--threads', '0']);
     expect(r.code).toBe(2);
     // Each refused before the check, by name.
     for (const t of targets) expect(r.stderr).toContain(`Cannot write ${t}: it is inside the folder being checked (${card}), which is never written to`);
