@@ -120,6 +120,17 @@ describe('exports on any file system', () => {
   });
 });
 
+describe('names', () => {
+  it('writes an export whose name is as long as the file system allows (255 bytes), through a shorter temp name', async () => {
+    const dir = tempDir('seamscout-long-');
+    const name = 'é'.repeat(125) + '.json';
+    expect(Buffer.byteLength(name)).toBe(255);
+    await writeFileAtomic(join(dir, name), '{}');
+    expect(readdirSync(dir)).toEqual([name]);
+    expect(readFileSync(join(dir, name), 'utf8')).toBe('{}');
+  });
+});
+
 describe('interrupted writes', () => {
   it('Ctrl-C (SIGINT) while the feature cache is written leaves no partial cache file', async () => {
     const run = startCli(['check', card, '--threads', '0'], { SEAMSCOUT_TEST_SLOW_WRITE_MS: '30000' });

@@ -13,7 +13,9 @@ const staleAfterMs = 60 * 60 * 1000;
 
 /** Name of a temp file beside `target`: `.<name>.seamscout-<pid>-<random>.tmp`. */
 export function tempPathFor(target: string): string {
-  return join(dirname(target), `.${basename(target)}.seamscout-${process.pid}-${randomBytes(4).toString('hex')}.tmp`);
+  // Cut to 50 characters (at most 200 bytes of UTF-8): the temp name stays within the 255 bytes most
+  // file systems allow.
+  return join(dirname(target), `.${Array.from(basename(target)).slice(0, 50).join('')}.seamscout-${process.pid}-${randomBytes(4).toString('hex')}.tmp`);
 }
 
 // Temp files of writes in progress, removed on every way out we can see: an error, exit, a signal.
@@ -234,6 +236,7 @@ export async function writeFileAtomic(target: string, content: string | Uint8Arr
     } catch (err) {
       throw writeError(target, err);
     }
+    let failure: unknown = null;
     try {
       const data = typeof content === 'string' ? Buffer.from(content) : content;
       const pause = slowWriteMs();
@@ -245,10 +248,15 @@ export async function writeFileAtomic(target: string, content: string | Uint8Arr
       } else await fh.writeFile(data);
       await fh.sync();
     } catch (err) {
-      throw writeError(target, err);
-    } finally {
-      await fh.close().catch(() => {});
+      failure = err;
     }
+    // Some file systems (network, FUSE) report a full disk only when the file is closed.
+    try {
+      await fh.close();
+    } catch (err) {
+      failure ??= err;
+    }
+    if (failure) throw writeError(target, failure);
     if (overwrite) {
       try {
         await rename(tmp, target);
