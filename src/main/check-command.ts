@@ -141,11 +141,13 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
   }
 
   // An output that could never be written is said before the check, not after it.
+  // (A coverage map's name may turn into numbered ones on a card of several sequences: whether it
+  // exists is asked when it is written.)
   const targets = [v.json, v.graphml, v.csv, v.dot, v['tie-points'], v['coverage-map']].filter((p): p is string => !!p);
   let refused = false;
   for (const path of targets) {
     try {
-      await expectExportTarget(resolve(path), { outside: folder, overwrite: v.force ?? false });
+      await expectExportTarget(resolve(path), { outside: folder, overwrite: (v.force ?? false) || path === v['coverage-map'] });
     } catch (err) {
       process.stderr.write(`seamscout: ${forTerminal((err as Error).message)}\n`);
       refused = true;
