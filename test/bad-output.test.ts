@@ -133,12 +133,12 @@ describe('names', () => {
 
 describe('interrupted writes', () => {
   it('Ctrl-C (SIGINT) while the feature cache is written leaves no partial cache file', async () => {
-    const run = startCli(['check', card, '--threads', '0'], { SEAMSCOUT_TEST_SLOW_WRITE_MS: '30000' });
-    const features = join(run.dirs.cache, 'features');
+    const cli = startCli(['check', card, '--threads', '0'], { SEAMSCOUT_TEST_SLOW_WRITE_MS: '30000' });
+    const features = join(cli.dirs.cache, 'features');
     expect(await waitFor(() => ourTemps(features).length > 0, 30_000)).toBe(true);
     expect(ourTemps(features)[0]).toMatch(/^\.[0-9a-f]{40}\.bin\.seamscout-\d+-[0-9a-f]{8}\.tmp$/);
-    run.child.kill('SIGINT');
-    const end = await run.done;
+    cli.child.kill('SIGINT');
+    const end = await cli.done;
     // Ended as Ctrl-C ends a program (the shell shows 130), not as a normal exit.
     expect(end.signal).toBe('SIGINT');
     expect(readdirSync(features).filter((n) => !n.endsWith('.bin'))).toEqual([]);
@@ -147,11 +147,11 @@ describe('interrupted writes', () => {
   it('SIGTERM while an export is written leaves neither the export nor its temp file', async () => {
     const out = tempDir('seamscout-out-');
     const json = join(out, 'report.json');
-    const run = startCli(['check', card, '--json', json, '--no-cache', '--threads', '0'], { SEAMSCOUT_TEST_SLOW_WRITE_MS: '30000' });
+    const cli = startCli(['check', card, '--json', json, '--no-cache', '--threads', '0'], { SEAMSCOUT_TEST_SLOW_WRITE_MS: '30000' });
     expect(await waitFor(() => ourTemps(out).length > 0, 30_000)).toBe(true);
     expect(ourTemps(out)[0]).toMatch(/^\.report\.json\.seamscout-\d+-[0-9a-f]{8}\.tmp$/);
-    run.child.kill('SIGTERM');
-    const end = await run.done;
+    cli.child.kill('SIGTERM');
+    const end = await cli.done;
     expect(end.signal).toBe('SIGTERM');
     expect(readdirSync(out)).toEqual([]);
   });
