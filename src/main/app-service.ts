@@ -1,5 +1,6 @@
 import { realpath } from 'node:fs/promises';
 import { isAbsolute, relative, resolve, sep } from 'node:path';
+import { resolveBudget } from '../core/budget.js';
 import { cardCoverageMapSvg } from '../core/card-coverage-map.js';
 import { reportToCsv } from '../core/exports/csv.js';
 import { reportToDot } from '../core/exports/dot.js';
@@ -16,6 +17,7 @@ import { isCardLayout } from './scan.js';
 import { frameForDisplay } from './decode.js';
 import { createFeatureCache } from './feature-cache.js';
 import { rememberFolder } from './recent-folders.js';
+import { writeFileAtomic } from './write-file.js';
 
 /** Bytes of rendered frames kept for the page to show again (a strip of thumbnails is a few megabytes). */
 const frameCacheLimit = 48 * 1024 * 1024;
@@ -39,6 +41,37 @@ export interface AppServiceOptions {
   readonly onProgress: (e: CheckProgressEvent) => void;
   readonly onDone: (e: CheckDoneEvent) => void;
   readonly onPartial?: (e: CheckPartialEvent) => void;
+}
+
+// The budget's fields as the budget panel names them (src/renderer/budget-panel.ts), for messages.
+const budgetWords: Record<string, string> = {
+  minInliers: 'fewest inliers',
+  reshootOverlap: 'reshoot below overlap',
+  weakOverlap: 'weak below overlap',
+  maxEvDiff: 'largest EV step',
+  minSharpnessRatio: 'blur: lowest sharpness share',
+  maxBracketShiftPx: 'largest bracket shift',
+  fullSphere: 'full sphere',
+};
+
+/**
+ * A match budget sent by the page (either shell), checked before anything is judged or written by
+ * it: a complete budget, or an error naming the field as the budget panel does ("Expected a number
+ * from 0 to 10000 for the fewest inliers (minInliers) but received "lots"").
+ */
+export function expectBudget(budget: unknown): MatchBudget {
+  if (typeof budget !== 'object' || budget === null || Array.isArray(budget)) {
+    throw new TypeError(`Expected a match budget (its thresholds by name) for budget but received ${JSON.stringify(budget) ?? String(budget)}`);
+  }
+  try {
+    return resolveBudget(budget as Record<string, unknown>);
+  } catch (err) {
+    const message = (err as Error).message
+      .replace(/for (\w+) but received/, (all, key: string) => (budgetWords[key] ? `for the ${budgetWords[key]} (${key}) but received` : all))
+      .replace(/^Expected one of (.*) but received (.*)$/, 'Expected a match budget field (one of $1) but received $2')
+      .replace(/^Expected reshootOverlap \((.*)\) not above weakOverlap \((.*)\)$/, 'Expected the reshoot below overlap ($1) not above the weak below overlap ($2)');
+    throw new TypeError(message, { cause: err });
+  }
 }
 
 /** Text of an export of a report, and the file name to suggest for it. */
@@ -143,8 +176,21 @@ export class AppService {
     return budget ? rejudge(s.report, budget) : s.report;
   }
 
-  exportReport(id: number, format: ExportFormat, budget: MatchBudget): { text: string; name: string } {
-    return exportContent(this.report(id, budget), format);
+  /** An export of a finished check judged against `budget` (checked here, for both shells). */
+  exportReport(id: number, format: ExportFormat, budget: unknown): { text: string; name: string } {
+    return exportContent(this.report(id, expectBudget(budget)), format);
+  }
+
+  /**
+   * Writes an export's text where the user chose (the desktop's save dialog, which has asked before
+   * replacing a file): atomically, never into the check's folder, never over anything but a regular
+   * file. Returns the path written.
+   */
+  async writeExport(id: number, path: string, text: string): Promise<string> {
+    const s = this.state(id);
+    if (typeof path !== 'string' || !isAbsolute(path)) throw new TypeError(`Expected an absolute path for the export but received ${String(path)}`);
+    await writeFileAtomic(path, text, { overwrite: true, outside: s.folder });
+    return path;
   }
 
   tiePoints(id: number, a: string, b: string): number[] {

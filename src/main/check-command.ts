@@ -15,7 +15,7 @@ import { coverageMapContent, coverageMapFormat } from './coverage-map-file.js';
 import { createFeatureCache } from './feature-cache.js';
 import { readSettings } from './settings.js';
 import { forTerminal, progressLine, formatSummary } from './summary.js';
-import { writeFileAtomic } from './write-file.js';
+import { expectExportTarget, writeFileAtomic } from './write-file.js';
 
 export const checkUsage = `Usage: seamscout check [folder] [options]
 
@@ -42,7 +42,8 @@ Options:
   --coverage-map FILE      write the coverage map: every frame's footprint on the sphere around the
                            camera and what no frame sees (.svg, or .png); on a card of several
                            sequences, one file each, numbered (map-1.svg, map-2.svg, ...)
-  --force                  overwrite existing output files
+  --force                  overwrite existing output files (regular files only; nothing is ever
+                           written inside the checked folder)
   --no-cache               analyse every frame again (the cache lives in the user's cache folder)
   --settings FILE          settings file (default: the user settings file, if present)
 Match budget (also in the settings file under "budget"):
@@ -139,6 +140,21 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
     return 2;
   }
 
+  // An output that could never be written is said before the check, not after it.
+  // (A coverage map's name may turn into numbered ones on a card of several sequences: whether it
+  // exists is asked when it is written.)
+  const targets = [v.json, v.graphml, v.csv, v.dot, v['tie-points'], v['coverage-map']].filter((p): p is string => !!p);
+  let refused = false;
+  for (const path of targets) {
+    try {
+      await expectExportTarget(resolve(path), { outside: folder, overwrite: (v.force ?? false) || path === v['coverage-map'] });
+    } catch (err) {
+      process.stderr.write(`seamscout: ${forTerminal((err as Error).message)}\n`);
+      refused = true;
+    }
+  }
+  if (refused) return 2;
+
   const showProgress = process.stderr.isTTY && !v['no-progress'];
   let report: Report;
   let tiePoints;
@@ -186,7 +202,7 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
   for (const [path, make] of outputs) {
     if (!path) continue;
     try {
-      await writeFileAtomic(resolve(path), await make(), v.force ?? false);
+      await writeFileAtomic(resolve(path), await make(), { overwrite: v.force ?? false, outside: folder });
       process.stderr.write(`wrote ${forTerminal(path)}\n`);
     } catch (err) {
       process.stderr.write(`seamscout: ${forTerminal((err as Error).message)}\n`);

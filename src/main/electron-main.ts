@@ -1,11 +1,10 @@
 // The desktop window (Electron main process). Loaded only by Electron: nothing in the tests or the
 // command line imports this file.
-import { readFile, writeFile } from 'node:fs/promises';
+import { readFile } from 'node:fs/promises';
 import { dirname, extname, join, normalize, relative, isAbsolute } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { app, BrowserWindow, dialog, ipcMain, protocol } from 'electron';
 import type { IpcMainInvokeEvent } from 'electron';
-import type { MatchBudget } from '../core/report.js';
 import { channels, expectExportFormat, frameProtocol } from './app-api.js';
 import { AppService } from './app-service.js';
 import { loadStoredBudget, loadStoredPreference, storeBudget, storePreference } from './settings-store.js';
@@ -83,12 +82,12 @@ app.whenReady().then(async () => {
   handle(channels.saveShotPreference, (p) => storePreference(p));
   handle(channels.tiePoints, (id, a, b) => service.tiePoints(Number(id), String(a), String(b)));
   handle(channels.exportReport, async (id, format, budget) => {
-    const { text, name } = service.exportReport(Number(id), expectExportFormat(format), budget as MatchBudget);
+    // The budget is checked (by the service) before the dialog opens.
+    const { text, name } = service.exportReport(Number(id), expectExportFormat(format), budget);
     // The save dialog asks before replacing an existing file.
     const r = await dialog.showSaveDialog(win!, { defaultPath: name });
     if (r.canceled || !r.filePath) return null;
-    await writeFile(r.filePath, text);
-    return r.filePath;
+    return service.writeExport(Number(id), r.filePath, text);
   });
 
   win = new BrowserWindow(windowOptions(join(here, 'preload.cjs')));

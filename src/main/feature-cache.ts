@@ -6,7 +6,7 @@ import { checkFeatureParams } from './frame-analysis.js';
 import type { FrameAnalysis } from './frame-analysis.js';
 import type { ScannedFile } from './scan.js';
 import { cacheDir } from './user-dirs.js';
-import { writeFileAtomic } from './write-file.js';
+import { sweepStaleTemps, writeFileAtomic } from './write-file.js';
 
 /** Bump when the analysis changes in a way the parameters do not show. */
 const analysisVersion = 4;
@@ -26,8 +26,14 @@ export function createFeatureCache(dir = join(cacheDir(), 'features')): FeatureC
   const keyOf = (f: ScannedFile, maxSide: number): string =>
     createHash('sha256').update(JSON.stringify([analysisVersion, params, f.path, f.size, f.mtimeMs, maxSide])).digest('hex').slice(0, 40);
   let made = false;
+  let swept = false;
   return {
     async get(file, maxSide) {
+      // Temp files a killed run left here go at the next run's first look (writes sweep too).
+      if (!swept) {
+        swept = true;
+        void sweepStaleTemps(dir);
+      }
       try {
         const value = deserialize(await readFile(join(dir, `${keyOf(file, maxSide)}.bin`))) as FrameAnalysis;
         return value && value.features && value.image ? value : null;
