@@ -1,13 +1,14 @@
 import { availableParallelism } from 'node:os';
 import { Piscina } from 'piscina';
 import type { AnalysisTask } from './analysis-worker.js';
+import type { InputPath } from './input-file.js';
 import runTask from './analysis-worker.js';
 import type { AnalysisLens, FrameAnalysis, LensJudgement, PairAnalysis, PairOptions } from './frame-analysis.js';
 
 const defaultPairOptions: PairOptions = { retryAtFullSize: true, overlapBlocks: true };
 
 export interface AnalysisPool {
-  analyseFrame(path: string, maxSide: number, signal?: AbortSignal): Promise<FrameAnalysis>;
+  analyseFrame(path: InputPath, maxSide: number, signal?: AbortSignal): Promise<FrameAnalysis>;
   analysePair(a: FrameAnalysis, b: FrameAnalysis, options?: PairOptions, signal?: AbortSignal): Promise<PairAnalysis>;
   /** A measured pair's overlap judged again through the sequence's lens (frame-analysis.ts, judgeThroughLens). */
   judgeThroughLens(a: FrameAnalysis, b: FrameAnalysis, tiePoints: Float32Array, lens: AnalysisLens, signal?: AbortSignal): Promise<LensJudgement | null>;

@@ -19,7 +19,7 @@ import type { AnalysisPool } from './analysis-pool.js';
 import { createAnalysisPool } from './analysis-pool.js';
 import type { FrameExif } from './exif.js';
 import type { FeatureCache } from './feature-cache.js';
-import { readFrameExif, readHeaderSize } from './exif.js';
+import { readFileHeaders } from './exif.js';
 import { sequenceLook, strayReason } from '../core/strays.js';
 import type { FrameAnalysis, PairAnalysis } from './frame-analysis.js';
 import type { ScannedFile } from './scan.js';
@@ -104,12 +104,18 @@ export function skipOf(file: string, err: unknown, size?: number): SkippedFile {
   const code = (err as NodeJS.ErrnoException)?.code;
   if (size === 0) return { file, code: 'unreadable', reason: 'empty file (0 bytes): copy it from the card again' };
   if (code === 'ENOENT') return { file, code: 'unreadable', reason: 'the file went away during the check' };
-  if (code === 'EACCES' || code === 'EPERM') return { file, code: 'unreadable', reason: 'no permission to read it' };
+  // Codes first; the same by the message for an error that crossed from a worker thread without its code.
+  if (code === 'EACCES' || code === 'EPERM' || /^(EACCES|EPERM):/.test(message)) return { file, code: 'unreadable', reason: 'no permission to read it' };
+  // The medium failed (a bad sector, a card pulled, a failing reader), or the file ended before its size.
+  if (code === 'EIO' || code === 'ENXIO' || code === 'ENODEV' || code === 'ESHORTREAD' || /^(EIO|ENXIO|ENODEV):|its size promised/.test(message)) return { file, code: 'unreadable', reason: 'read error: copy it from the card again' };
+  if (code === 'ENOTREGULAR' || /is not a regular file/.test(message)) return { file, code: 'unreadable', reason: 'it is not a regular file (a pipe, a device or a socket): not read' };
+  if (code === 'EISDIR') return { file, code: 'unreadable', reason: 'it is a folder, not a picture' };
+  if (code === 'EFBIG') return { file, code: 'too-large', reason: 'too large to read safely (over the size read at most)' };
   if (/pixel limit/i.test(message)) return { file, code: 'too-large', reason: 'too large to decode safely (over the pixel limit)' };
   if (/no usable preview: the (\.\w+) container/i.test(message)) return { file, code: 'no-preview', reason: `RAW ${/(\.\w+) container/.exec(message)![1]} files are not read yet: shoot RAW+JPEG, or check exported JPEGs` };
   if (/no usable preview|TIFF byte order|TIFF mark/i.test(message)) return { file, code: 'no-preview', reason: 'holds no embedded preview Seamscout can read: shoot RAW+JPEG, or check exported JPEGs' };
   if (/timeout/i.test(message)) return { file, code: 'unreadable', reason: 'decoding took too long' };
-  if (/premature end|truncated|unexpected end|corrupt|invalid/i.test(message)) return { file, code: 'unreadable', reason: 'damaged or cut short: copy it from the card again' };
+  if (/premature end|truncated|unexpected end|corrupt|invalid|cut short/i.test(message)) return { file, code: 'unreadable', reason: 'damaged or cut short: copy it from the card again' };
   if (/unsupported image format|bad seek|not a known file format|improper image header|input buffer/i.test(message)) return { file, code: 'not-an-image', reason: 'not an image Seamscout can read' };
   return { file, code: 'unreadable', reason: `cannot be read: ${message.split('\n')[0]}` };
 }
@@ -226,8 +232,8 @@ export async function readCard(folder: string, options: Pick<CheckOptions, 'recu
   const signal = options.signal;
   const scan = await scanFolder(folder, options.recursive ?? false);
   const shots = oneFilePerShot(scan.files, options.prefer ?? 'jpeg');
-  const skipped: SkippedFile[] = [...scan.problems.map((p) => ({ file: p.name, code: 'unreadable' as const, reason: `cannot be read: ${p.reason}` })), ...shots.skipped];
-  const heads = await inOrder(shots.files, 8, (f) => Promise.all([readFrameExif(f.path), readHeaderSize(f.path)]), signal);
+  const skipped: SkippedFile[] = [...scan.problems.map((p) => ({ file: p.name, code: 'unreadable' as const, reason: p.reason })), ...shots.skipped];
+  const heads = await inOrder(shots.files, 8, (f) => readFileHeaders(f.path), signal);
   // Files that are not part of the sequence (another camera, size or shape than most of the card)
   // are left out before stations are grouped, so they cannot split a station or break a turn.
   const memberOf = (exif: FrameExif, size: { width: number; height: number } | null) => ({ width: size?.width ?? null, height: size?.height ?? null, make: exif.settings.make, model: exif.settings.model });

@@ -1,6 +1,8 @@
 import exifr from 'exifr';
 import sharp from 'sharp';
 import type { FrameSettings } from '../core/report.js';
+import type { InputPath } from './input-file.js';
+import { extensionOf, inputBudget, readInputHead } from './input-file.js';
 import { isRawFile, readRawExifBlocks } from './raw-file.js';
 
 export interface FrameExif {
@@ -73,12 +75,45 @@ export function parseExifDate(value: unknown, subSec: unknown): { ms: number; is
   return { ms: t, iso: new Date(t).toISOString().replace('Z', '') };
 }
 
-/** Reads the EXIF a check needs; a file without EXIF, or with absurd values, gives nulls, never an error. */
-export async function readFrameExif(path: string): Promise<FrameExif> {
+/**
+ * Bytes of a file's head that hold its EXIF and its size: the APP1 segment leads a JPEG (64 KiB at
+ * most, ITU-T T.81 B.1.1.4 with CIPA DC-008 4.5.4), IHDR a PNG, and a TIFF-based RAW file keeps its
+ * IFD0 and EXIF IFD near its start. A TIFF (whose IFDs libtiff writes after the pixels) and an
+ * ISO base media file (HEIC, AVIF: the EXIF item may lie in the media data) are read whole.
+ */
+const headerBytes = 1024 * 1024;
+const readWholeForHeaders = new Set(['.tif', '.tiff', '.heic', '.heif', '.avif']);
+
+/**
+ * The head of a file as the header readers get it (never a path, so that no reader maps the file
+ * or opens what is not a regular file), and its size; within this thread's input budget.
+ */
+export async function withHeaderBytes<T>(path: InputPath, work: (head: Buffer) => Promise<T>): Promise<T> {
+  const whole = readWholeForHeaders.has(extensionOf(path));
+  const first = await readInputHead(path, headerBytes);
+  if (!whole || first.bytes.length === first.size) return work(first.bytes);
+  return inputBudget.hold(first.size, async () => work((await readInputHead(path, first.size)).bytes));
+}
+
+/** EXIF and header size of a file read from one head of it (see `withHeaderBytes`); neither throws. */
+export async function readFileHeaders(path: InputPath): Promise<[FrameExif, { width: number; height: number } | null]> {
+  try {
+    return await withHeaderBytes(path, async (head) => Promise.all([readFrameExif(path, head), readHeaderSize(path, head)]));
+  } catch {
+    return [await readFrameExif(path, Buffer.alloc(0)), null];
+  }
+}
+
+/**
+ * Reads the EXIF a check needs (from `head` when given, else from the file's head); a file
+ * without EXIF, or with absurd values, gives nulls, never an error.
+ */
+export async function readFrameExif(path: InputPath, head?: Buffer): Promise<FrameExif> {
   let raw: Record<string, unknown>;
   try {
     const blocks = await readRawExifBlocks(path);
-    raw = blocks ? await tagsOfBlocks(blocks) : (await exifr.parse(path, { pick: tags, reviveValues: false, translateValues: false })) ?? {};
+    const bytes = blocks ? null : head ?? (await withHeaderBytes(path, async (b) => b));
+    raw = blocks ? await tagsOfBlocks(blocks) : bytes && bytes.length > 0 ? (await exifr.parse(bytes, { pick: tags, reviveValues: false, translateValues: false })) ?? {} : {};
   } catch {
     raw = {};
   }
@@ -110,10 +145,12 @@ export async function readFrameExif(path: string): Promise<FrameExif> {
  * (whose headers describe a thumbnail or the sensor, not the frame checked) and for anything sharp
  * cannot read. Only a hint for telling stray files apart: the decoded size stays the one measured.
  */
-export async function readHeaderSize(path: string): Promise<{ width: number; height: number } | null> {
+export async function readHeaderSize(path: InputPath, head?: Buffer): Promise<{ width: number; height: number } | null> {
   if (isRawFile(path)) return null;
   try {
-    const meta = await sharp(path, { failOn: 'none' }).metadata();
+    const bytes = head ?? (await withHeaderBytes(path, async (b) => b));
+    if (bytes.length === 0) return null;
+    const meta = await sharp(bytes, { failOn: 'none' }).metadata();
     if (!meta.width || !meta.height) return null;
     const swap = (meta.orientation ?? 1) >= 5;
     return { width: swap ? meta.height : meta.width, height: swap ? meta.width : meta.height };
