@@ -23,7 +23,9 @@ export interface JpegDemand {
   readonly blocks: number;
   /** 8 x 8 blocks of all components. */
   readonly allBlocks: number;
-  /** Bytes from the first scan's data to the end of the stream. */
+  /** Where the first scan's data starts. */
+  readonly scanStart: number;
+  /** Bytes from the first scan's data to the end of the bytes given. */
   readonly entropyBytes: number;
   /** The least number of entropy-coded bytes the claimed size needs (one bit per block). */
   readonly minEntropyBytes: number;
@@ -79,6 +81,7 @@ export function jpegDemand(bytes: Uint8Array): JpegDemand | null {
         huffman: frame.marker <= 0xc2,
         blocks,
         allBlocks,
+        scanStart: p,
         entropyBytes: bytes.length - p,
         minEntropyBytes: Math.ceil(blocks / 8),
         decoderBytes: progressive ? allBlocks * 128 : 0,
@@ -88,5 +91,8 @@ export function jpegDemand(bytes: Uint8Array): JpegDemand | null {
   return null;
 }
 
-/** Whether a Huffman-coded stream's data is shorter than the least its claimed size needs (see above). */
-export const tooShortForItsSize = (d: JpegDemand): boolean => d.huffman && d.entropyBytes < d.minEntropyBytes;
+/**
+ * Whether a Huffman-coded stream's data is shorter than the least its claimed size needs (see
+ * above); `streamBytes` is the whole stream's length where only its head was given.
+ */
+export const tooShortForItsSize = (d: JpegDemand, streamBytes?: number): boolean => d.huffman && (streamBytes === undefined ? d.entropyBytes : streamBytes - d.scanStart) < d.minEntropyBytes;

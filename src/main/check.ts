@@ -233,19 +233,25 @@ export async function readCard(folder: string, options: Pick<CheckOptions, 'recu
   const scan = await scanFolder(folder, options.recursive ?? false);
   const shots = oneFilePerShot(scan.files, options.prefer ?? 'jpeg');
   const skipped: SkippedFile[] = [...scan.problems.map((p) => ({ file: p.name, code: 'unreadable' as const, reason: p.reason })), ...shots.skipped];
-  const heads = await inOrder(shots.files, 8, (f) => readFileHeaders(f.path), signal);
+  const read = await inOrder(shots.files, 8, (f) => readFileHeaders(f.path), signal);
+  // A file whose head cannot be read (a read fault, cut short, no permission) is reported now, not decoded.
+  read.forEach((r, i) => {
+    if (r.error) skipped.push(skipOf(shots.files[i].name, r.error, shots.files[i].size));
+  });
+  const files = shots.files.filter((_, i) => !read[i].error);
+  const heads = read.filter((r) => !r.error).map((r): [FrameExif, { width: number; height: number } | null] => [r.exif, r.size]);
   // Files that are not part of the sequence (another camera, size or shape than most of the card)
   // are left out before stations are grouped, so they cannot split a station or break a turn.
   const memberOf = (exif: FrameExif, size: { width: number; height: number } | null) => ({ width: size?.width ?? null, height: size?.height ?? null, make: exif.settings.make, model: exif.settings.model });
   // Byte-identical copies are left out before stations are grouped (a copy's repeated exposure
   // would split its station): the first in shooting order, then by name, stays.
   const copyOf = new Map<number, number>();
-  for (const set of await byteCopies(shots.files)) {
-    const [first, ...rest] = shootingOrder(set.map((i) => ({ i, file: shots.files[i].name, captureMs: heads[i][0].captureMs })));
+  for (const set of await byteCopies(files)) {
+    const [first, ...rest] = shootingOrder(set.map((i) => ({ i, file: files[i].name, captureMs: heads[i][0].captureMs })));
     for (const r of rest) copyOf.set(r.i, first.i);
   }
   const look = sequenceLook(heads.filter((_, i) => !copyOf.has(i)).map(([exif, size]) => memberOf(exif, size)));
-  const members = shots.files.map((file, i) => ({ file: file.name, captureMs: heads[i][0].captureMs, scanned: file, exif: heads[i][0], size: heads[i][1], copyOf: copyOf.get(i), stray: strayReason(memberOf(...heads[i]), look) }));
+  const members = files.map((file, i) => ({ file: file.name, captureMs: heads[i][0].captureMs, scanned: file, exif: heads[i][0], size: heads[i][1], copyOf: copyOf.get(i), stray: strayReason(memberOf(...heads[i]), look) }));
   // Another camera's run of frames (a phone panorama on a camera's card) is a sequence of its own,
   // which the split finds by the change of camera; only a lone file unlike the card stays apart.
   const byTime = shootingOrder(members.filter((m) => m.copyOf === undefined));
@@ -259,7 +265,7 @@ export async function readCard(folder: string, options: Pick<CheckOptions, 'recu
     a = b;
   }
   for (const m of members) {
-    if (m.copyOf !== undefined) skipped.push({ file: m.file, code: 'duplicate', reason: `the same picture as ${shots.files[m.copyOf].name}: left out` });
+    if (m.copyOf !== undefined) skipped.push({ file: m.file, code: 'duplicate', reason: `the same picture as ${files[m.copyOf].name}: left out` });
     else if (m.stray !== null) skipped.push({ file: m.file, code: 'not-in-sequence', reason: m.stray });
   }
   const ordered = shootingOrder(members.filter((m) => m.copyOf === undefined && m.stray === null)).map(({ file, captureMs, scanned, exif, size }) => ({ file, captureMs, scanned, exif, size }));

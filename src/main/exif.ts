@@ -4,6 +4,13 @@ import type { FrameSettings } from '../core/report.js';
 import type { InputPath } from './input-file.js';
 import { extensionOf, inputBudget, readInputHead } from './input-file.js';
 import { isRawFile, readRawExifBlocks } from './raw-file.js';
+import type { JpegDemand } from '../core/jpeg-demand.js';
+import { jpegDemand, tooShortForItsSize } from '../core/jpeg-demand.js';
+
+/** The error for a JPEG stream too short for the size its header claims (core/jpeg-demand.ts). */
+export function tooShortError(d: JpegDemand, streamBytes: number): Error {
+  return new Error(`damaged or cut short: ${streamBytes - d.scanStart} bytes of JPEG data for ${d.width} x ${d.height} pixels, which need ${d.minEntropyBytes} at least`);
+}
 
 export interface FrameExif {
   readonly settings: FrameSettings;
@@ -88,19 +95,30 @@ const readWholeForHeaders = new Set(['.tif', '.tiff', '.heic', '.heif', '.avif']
  * The head of a file as the header readers get it (never a path, so that no reader maps the file
  * or opens what is not a regular file), and its size; within this thread's input budget.
  */
-export async function withHeaderBytes<T>(path: InputPath, work: (head: Buffer) => Promise<T>): Promise<T> {
+export async function withHeaderBytes<T>(path: InputPath, work: (head: Buffer, size: number) => Promise<T>): Promise<T> {
   const whole = readWholeForHeaders.has(extensionOf(path));
   const first = await readInputHead(path, headerBytes);
-  if (!whole || first.bytes.length === first.size) return work(first.bytes);
-  return inputBudget.hold(first.size, async () => work((await readInputHead(path, first.size)).bytes));
+  if (!whole || first.bytes.length === first.size) return work(first.bytes, first.size);
+  return inputBudget.hold(first.size, async () => work((await readInputHead(path, first.size)).bytes, first.size));
 }
 
-/** EXIF and header size of a file read from one head of it (see `withHeaderBytes`); neither throws. */
-export async function readFileHeaders(path: InputPath): Promise<[FrameExif, { width: number; height: number } | null]> {
+/**
+ * EXIF and header size of a file read from one head of it (see `withHeaderBytes`), or the error
+ * that kept its head from being read (a read fault, no permission, gone): such a file is reported
+ * as it is, not decoded.
+ */
+export async function readFileHeaders(path: InputPath): Promise<{ exif: FrameExif; size: { width: number; height: number } | null; error: unknown }> {
   try {
-    return await withHeaderBytes(path, async (head) => Promise.all([readFrameExif(path, head), readHeaderSize(path, head)]));
-  } catch {
-    return [await readFrameExif(path, Buffer.alloc(0)), null];
+    const [exif, size] = await withHeaderBytes(path, async (head, fileSize) => {
+      // A JPEG whose whole file is shorter than the data its claimed size needs is refused here,
+      // before its size can count among the card's (where it would set the good frames apart).
+      const demand = isRawFile(path) ? null : jpegDemand(head);
+      if (demand && tooShortForItsSize(demand, fileSize)) throw tooShortError(demand, fileSize);
+      return Promise.all([readFrameExif(path, head), readHeaderSize(path, head)]);
+    });
+    return { exif, size, error: null };
+  } catch (error) {
+    return { exif: await readFrameExif(path, Buffer.alloc(0)), size: null, error };
   }
 }
 
