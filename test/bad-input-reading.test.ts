@@ -11,6 +11,7 @@ import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { jpegDemand, tooShortForItsSize } from '../src/core/jpeg-demand.js';
 import type { Report } from '../src/core/report.js';
+import { nameOf, pathOfName } from '../src/main/input-file.js';
 import { projectRoot, tempDir } from './helpers/cli.js';
 import { externalFixture } from './helpers/images.js';
 import { box } from './helpers/raw-containers.js';
@@ -260,6 +261,10 @@ describe('names, permissions and paths that are no regular file', () => {
     expect(existsSync(Buffer.concat([Buffer.from(join(card, '/')), latin1]))).toBe(true);
     expect(report.frames.map((f) => f.file).sort()).toEqual(['b.jpg', 'caf\\xE9.jpg']);
     expect(run.stdout).toContain('caf\\xE9.jpg');
+    // The shown name leads back to the exact bytes (the app asks for a frame by its shown name).
+    expect(pathOfName(card, 'caf\\xE9.jpg')).toEqual(Buffer.concat([Buffer.from(join(card, '/')), latin1]));
+    expect(nameOf(latin1)).toBe('caf\\xE9.jpg');
+    expect(nameOf(Buffer.from('café.jpg'))).toBe('café.jpg');
   });
 
   it('says "no permission to read it" for a file and a sub-folder the user may not read', () => {

@@ -1,7 +1,7 @@
 import { closeSync, constants, fstatSync, openSync, readSync } from 'node:fs';
 import type { FileHandle } from 'node:fs/promises';
 import { open } from 'node:fs/promises';
-import { extname } from 'node:path';
+import { extname, join, sep } from 'node:path';
 
 /**
  * A path to an input file: a string, or the exact bytes of a name that is not valid UTF-8 (written
@@ -36,6 +36,17 @@ export function nameOf(bytes: Uint8Array): string {
     }
     return out;
   }
+}
+
+/**
+ * The exact path of a file inside `folder` from its name as `nameOf` shows it: each `\xHH` back to
+ * its byte where the shown name has any (a name that is valid UTF-8 never shows one, see `nameOf`).
+ */
+export function pathOfName(folder: string, name: string): string | Buffer {
+  if (!/\\x[0-9A-F]{2}/.test(name)) return join(folder, name);
+  const parts = name.split(/\\x([0-9A-F]{2})/);
+  const bytes = parts.map((p, k) => (k % 2 === 1 ? Buffer.from([parseInt(p, 16)]) : Buffer.from(p, 'utf8')));
+  return Buffer.concat([Buffer.from(join(folder, sep)), ...bytes]);
 }
 
 /** Length of the well-formed UTF-8 sequence at `p` (Unicode 15, table 3-7), or 0 when there is none. */
