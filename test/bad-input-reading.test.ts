@@ -2,7 +2,7 @@
 // UTF-8, files the user may not read, and paths that are no regular file. Each kind is checked on a
 // real `seamscout check` (or `pair`) process, since some of these ended the process with a signal
 // or made it wait for ever; every bad file is made here (nothing downloaded), the good frames are
-// two real photographs (test/fixtures/external/SOURCES.md).
+// two real photographs (test/fixtures/external/SOURCES.md), analysed at 640 px to keep the runs short.
 import type { ChildProcess } from 'node:child_process';
 import { execFileSync, spawn } from 'node:child_process';
 import { chmodSync, closeSync, copyFileSync, existsSync, ftruncateSync, mkdirSync, openSync, readFileSync, writeFileSync, writeSync } from 'node:fs';
@@ -86,7 +86,7 @@ describe('read faults of the card', () => {
     for (let t = 0; t < 100 && !readFileSync('/proc/mounts', 'utf8').includes(` ${mountpoint} `); t++) await new Promise((r) => setTimeout(r, 100));
     expect(readFileSync('/proc/mounts', 'utf8')).toContain(` ${mountpoint} fuse`);
     const out = join(tempDir(), 'report.json');
-    run = await seamscout(['check', mountpoint, '--threads', '0', '--no-cache', '--no-progress', '--json', out]);
+    run = await seamscout(['check', mountpoint, '--threads', '0', '--size', '640', '--no-cache', '--no-progress', '--json', out]);
     report = readReport(out);
   }, 60_000);
 
@@ -174,13 +174,13 @@ describe('headers that claim more than the file holds', () => {
     sparseCr3(join(card, 'empty.cr3'), 1_500_000_000, 200);
     sparseCr3(join(card, 'metadata.cr3'), 1_450_000_000, 1_400_000_000);
     const out = join(tempDir(), 'report.json');
-    run = await seamscout(['check', card, '--threads', '0', '--no-cache', '--no-progress', '--json', out], { measure: true });
+    run = await seamscout(['check', card, '--threads', '0', '--size', '640', '--no-cache', '--no-progress', '--json', out], { measure: true });
     report = readReport(out);
     // Three padded to the floor, claiming 10000 x 10000: 300 MB of coefficients each, once decoded
     // three at a time (1.1 GB over the command's own 200 MB), now one after the other.
     const heavy = tempDir('seamscout-padded-');
     for (let k = 0; k < 3; k++) writeFileSync(join(heavy, `pad${k}.jpg`), await paddedBomb(10000, 60 * k));
-    padded = await seamscout(['check', heavy, '--threads', '0', '--no-cache', '--no-progress'], { measure: true });
+    padded = await seamscout(['check', heavy, '--threads', '0', '--size', '640', '--no-cache', '--no-progress'], { measure: true });
   }, 90_000);
 
   it('refuses progressive and baseline JPEGs whose data is far too short for the size their header claims', () => {
@@ -253,7 +253,7 @@ describe('names, permissions and paths that are no regular file', () => {
     const outDir = tempDir();
     chmodSync(outDir, 0o777);
     // As user nobody, who may not read what mode 000 closes (root may read anything).
-    run = await seamscout(['check', card, '--recursive', '--threads', '0', '--no-cache', '--no-progress', '--json', join(outDir, 'report.json')], { uid: nobody });
+    run = await seamscout(['check', card, '--recursive', '--threads', '0', '--size', '640', '--no-cache', '--no-progress', '--json', join(outDir, 'report.json')], { uid: nobody });
     report = readReport(join(outDir, 'report.json'));
   }, 60_000);
 

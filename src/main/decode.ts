@@ -5,7 +5,7 @@ import type { RawPreview } from './raw-file.js';
 import { isRawFile, orient, readRawPreview } from './raw-file.js';
 import { jpegDemand, tooShortForItsSize } from '../core/jpeg-demand.js';
 import type { InputPath } from './input-file.js';
-import { inputBudget, readInput, readInputHead } from './input-file.js';
+import { inputBudget, readInputHead, readInputRest } from './input-file.js';
 import { tooShortError } from './exif.js';
 
 // libvips' operation cache keeps a finished decode's loader alive, and with it what the decoder
@@ -41,7 +41,7 @@ async function withFrame<T>(path: InputPath, work: (f: { source: Sharp; upright:
   const raw = isRawFile(path) ? await readRawPreview(path) : null;
   const { bytes: head, size } = raw ? { bytes: raw.jpeg, size: raw.jpeg.length } : await readInputHead(path, headBytes);
   const decoderBytes = jpegDemand(head)?.decoderBytes ?? 0;
-  return inputBudget.hold(size + decoderBytes, async () => run(head.length === size ? head : await readInput(path)));
+  return inputBudget.hold(size + decoderBytes, async () => run(await readInputRest(path, head, size)));
 
   function run(data: Buffer): Promise<T> {
     const demand = jpegDemand(data);

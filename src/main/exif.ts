@@ -2,7 +2,7 @@ import exifr from 'exifr';
 import sharp from 'sharp';
 import type { FrameSettings } from '../core/report.js';
 import type { InputPath } from './input-file.js';
-import { extensionOf, inputBudget, readInputHead } from './input-file.js';
+import { extensionOf, inputBudget, readInputHead, readInputRest } from './input-file.js';
 import { isRawFile, readRawExifBlocks } from './raw-file.js';
 import type { JpegDemand } from '../core/jpeg-demand.js';
 import { jpegDemand, tooShortForItsSize } from '../core/jpeg-demand.js';
@@ -84,11 +84,14 @@ export function parseExifDate(value: unknown, subSec: unknown): { ms: number; is
 
 /**
  * Bytes of a file's head that hold its EXIF and its size: the APP1 segment leads a JPEG (64 KiB at
- * most, ITU-T T.81 B.1.1.4 with CIPA DC-008 4.5.4), IHDR a PNG, and a TIFF-based RAW file keeps its
- * IFD0 and EXIF IFD near its start. A TIFF (whose IFDs libtiff writes after the pixels) and an
- * ISO base media file (HEIC, AVIF: the EXIF item may lie in the media data) are read whole.
+ * most, ITU-T T.81 B.1.1.4 with CIPA DC-008 4.5.4) and its frame header follows within the first
+ * 128 KiB unless other segments (ICC profiles, a second picture's index) are large, when up to
+ * 1 MiB is read; IHDR leads a PNG; a TIFF-based RAW file keeps its IFD0 and EXIF IFD near its start
+ * (1 MiB). A TIFF (whose IFDs libtiff writes after the pixels) and an ISO base media file (HEIC,
+ * AVIF: the EXIF item may lie in the media data) are read whole.
  */
-const headerBytes = 1024 * 1024;
+const headerBytes = 128 * 1024;
+const longHeaderBytes = 1024 * 1024;
 const readWholeForHeaders = new Set(['.tif', '.tiff', '.heic', '.heif', '.avif']);
 
 /**
@@ -96,10 +99,12 @@ const readWholeForHeaders = new Set(['.tif', '.tiff', '.heic', '.heif', '.avif']
  * or opens what is not a regular file), and its size; within this thread's input budget.
  */
 export async function withHeaderBytes<T>(path: InputPath, work: (head: Buffer, size: number) => Promise<T>): Promise<T> {
-  const whole = readWholeForHeaders.has(extensionOf(path));
-  const first = await readInputHead(path, headerBytes);
-  if (!whole || first.bytes.length === first.size) return work(first.bytes, first.size);
-  return inputBudget.hold(first.size, async () => work((await readInputHead(path, first.size)).bytes, first.size));
+  const ending = extensionOf(path);
+  let head = await readInputHead(path, isRawFile(path) ? longHeaderBytes : headerBytes);
+  if (head.bytes.length < head.size && head.bytes[0] === 0xff && head.bytes[1] === 0xd8 && !jpegDemand(head.bytes)) head = await readInputHead(path, longHeaderBytes);
+  const { bytes, size } = head;
+  if (!readWholeForHeaders.has(ending) || bytes.length === size) return work(bytes, size);
+  return inputBudget.hold(size, async () => work(await readInputRest(path, bytes, size), size));
 }
 
 /**

@@ -179,6 +179,29 @@ export async function readInputHead(path: InputPath, n: number): Promise<{ bytes
 }
 
 /**
+ * A file read whole (as `readInput`) when its first bytes were read already (`head`, of a file of
+ * `size` bytes then): only the rest is read, unless the file changed size since.
+ */
+export async function readInputRest(path: InputPath, head: Buffer, size: number): Promise<Buffer> {
+  if (head.length >= size) return head.subarray(0, size);
+  const { handle, size: now } = await openInput(path);
+  try {
+    if (now !== size) return await readInput(path);
+    if (size > maxInputBytes) throw failure(`${pathText(path)} is ${size} bytes, over the ${maxInputBytes} bytes read at most`, 'EFBIG');
+    const out = Buffer.alloc(size);
+    head.copy(out);
+    for (let at = head.length; at < size; ) {
+      const { bytesRead } = await handle.read(out, at, Math.min(size - at, 4 << 20), at);
+      if (bytesRead === 0) throw failure(`the file ended ${at} bytes in, before the ${size} its size promised`, 'ESHORTREAD');
+      at += bytesRead;
+    }
+    return out;
+  } finally {
+    await handle.close();
+  }
+}
+
+/**
  * A counting budget of bytes in memory: `hold(n, task)` waits until `n` more fit (or nothing else
  * is held, so that one item larger than the budget still runs, alone), runs the task and gives the
  * bytes back.
