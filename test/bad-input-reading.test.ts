@@ -11,7 +11,7 @@ import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { jpegDemand, tooShortForItsSize } from '../src/core/jpeg-demand.js';
 import type { Report } from '../src/core/report.js';
-import { nameOf, pathOfName } from '../src/main/input-file.js';
+import { byteBudget, nameOf, pathOfName } from '../src/main/input-file.js';
 import { projectRoot, tempDir } from './helpers/cli.js';
 import { externalFixture } from './helpers/images.js';
 import { box } from './helpers/raw-containers.js';
@@ -205,6 +205,28 @@ describe('headers that claim more than the file holds', () => {
     expect([0, 1]).toContain(padded.code);
     expect(padded.maxRssKiB).not.toBeNull();
     expect(padded.maxRssKiB!).toBeLessThan(1024 * 1024);
+  });
+
+  it('lets decodes hold at most the budget at once, one larger than it alone', async () => {
+    const budget = byteBudget(100);
+    let now = 0, most = 0;
+    const task = (n: number) => budget.hold(n, async () => {
+      now += n;
+      most = Math.max(most, now);
+      await new Promise((r) => setTimeout(r, 5));
+      now -= n;
+      return n;
+    });
+    expect(await Promise.all([60, 30, 30, 250, 10, 90].map(task))).toEqual([60, 30, 30, 250, 10, 90]);
+    expect(most).toBe(250);
+    const small = byteBudget(100);
+    let inFlight = 0, peak = 0;
+    await Promise.all([40, 40, 40, 40].map((n) => small.hold(n, async () => {
+      peak = Math.max(peak, (inFlight += n));
+      await new Promise((r) => setTimeout(r, 5));
+      inFlight -= n;
+    })));
+    expect(peak).toBe(80);
   });
 
   it('sets the floor of JPEG data at one bit per block, which quality-1 flat images stay above', async () => {

@@ -2,7 +2,7 @@ import type { Sharp } from 'sharp';
 import sharp from 'sharp';
 import type { GrayImage } from '../core/image.js';
 import type { RawPreview } from './raw-file.js';
-import { isRawFile, orient, readRawPreview } from './raw-file.js';
+import { isRawFile, maxPreviewBytes, orient, readRawPreview } from './raw-file.js';
 import { jpegDemand, tooShortForItsSize } from '../core/jpeg-demand.js';
 import type { InputPath } from './input-file.js';
 import { inputBudget, readInputHead, readInputRest } from './input-file.js';
@@ -48,6 +48,21 @@ async function withFrame<T>(path: InputPath, work: (f: { source: Sharp; upright:
     if (demand && tooShortForItsSize(demand)) throw tooShortError(demand, data.length);
     const source = sharp(data, { limitInputPixels: pixelLimit, failOn: 'error' });
     return work({ source, upright: raw && raw.orientation !== null ? orient(source, raw.orientation) : source.autoOrient(), raw });
+  }
+}
+
+/**
+ * Bytes decoding a file will hold, as `withFrame` counts them, from its head alone (a RAW file
+ * counts as its size up to the largest preview read); 0 for a file that cannot be read (its
+ * decode then says why). For a dispatcher that sends decodes to worker threads, each of which
+ * has a budget of its own.
+ */
+export async function decodeCost(path: InputPath): Promise<number> {
+  try {
+    const { bytes, size } = await readInputHead(path, isRawFile(path) ? 0 : headBytes);
+    return isRawFile(path) ? Math.min(size, maxPreviewBytes) : size + (jpegDemand(bytes)?.decoderBytes ?? 0);
+  } catch {
+    return 0;
   }
 }
 
