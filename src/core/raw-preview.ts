@@ -166,17 +166,18 @@ export function jpegHeader(input: Uint8Array | ByteSource, o: number): { size: {
 }
 
 /** The frame size of the viewable JPEG stream starting at `o`, and where it ends (after EOI), or null. */
-export function jpegExtent(bytes: Uint8Array, o: number): { width: number; height: number; end: number } | null {
-  const head = jpegHeader(bytes, o);
+export function jpegExtent(input: Uint8Array | ByteSource, o: number): { width: number; height: number; end: number } | null {
+  const src = input instanceof Uint8Array ? bytesSource(input) : input;
+  const head = jpegHeader(src, o);
   if (!head) return null;
   // Entropy-coded data and further scans up to EOI: FF 00 is a stuffed byte, FF D0-D7 a restart.
-  for (let p = head.scan; p + 1 < bytes.length; p++) {
-    if (bytes[p] !== 0xff) continue;
-    const m = bytes[p + 1];
+  for (let p = head.scan; p + 1 < src.length; p++) {
+    if (src.byte(p) !== 0xff) continue;
+    const m = src.byte(p + 1);
     if (m === 0xd9) return { ...head.size, end: p + 2 };
     if (m === 0x00 || (m >= 0xd0 && m <= 0xd7) || m === 0xff) continue;
     // Another segment between scans (DHT, SOS of a progressive file): skip its length.
-    if (p + 3 < bytes.length) p += 1 + ((bytes[p + 2] << 8) | bytes[p + 3]);
+    if (p + 3 < src.length) p += 1 + ((src.byte(p + 2) << 8) | src.byte(p + 3));
   }
   return null;
 }

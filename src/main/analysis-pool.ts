@@ -1,13 +1,16 @@
 import { availableParallelism } from 'node:os';
 import { Piscina } from 'piscina';
 import type { AnalysisTask } from './analysis-worker.js';
+import type { InputPath } from './input-file.js';
+import { byteBudget, inputBudgetBytes } from './input-file.js';
+import { decodeCost } from './decode.js';
 import runTask from './analysis-worker.js';
 import type { AnalysisLens, FrameAnalysis, LensJudgement, PairAnalysis, PairOptions } from './frame-analysis.js';
 
 const defaultPairOptions: PairOptions = { retryAtFullSize: true, overlapBlocks: true };
 
 export interface AnalysisPool {
-  analyseFrame(path: string, maxSide: number, signal?: AbortSignal): Promise<FrameAnalysis>;
+  analyseFrame(path: InputPath, maxSide: number, signal?: AbortSignal): Promise<FrameAnalysis>;
   analysePair(a: FrameAnalysis, b: FrameAnalysis, options?: PairOptions, signal?: AbortSignal): Promise<PairAnalysis>;
   /** A measured pair's overlap judged again through the sequence's lens (frame-analysis.ts, judgeThroughLens). */
   judgeThroughLens(a: FrameAnalysis, b: FrameAnalysis, tiePoints: Float32Array, lens: AnalysisLens, signal?: AbortSignal): Promise<LensJudgement | null>;
@@ -50,9 +53,12 @@ export function createAnalysisPool(threads = availableParallelism(), options: An
   });
   // An aborted task ends its worker thread (piscina replaces it), so a cancel does not wait for it.
   const run = <T>(task: AnalysisTask, signal?: AbortSignal): Promise<T> => pool.run(task, { signal }) as Promise<T>;
+  // Each worker counts what its own decode holds; across the workers, this budget holds a decode
+  // back until its bytes fit beside those of the decodes already sent (input-file.ts).
+  const decodes = byteBudget(inputBudgetBytes);
   return {
     threads,
-    analyseFrame: (path, maxSide, signal) => run<FrameAnalysis>({ kind: 'frame', path, maxSide }, signal),
+    analyseFrame: async (path, maxSide, signal) => decodes.hold(await decodeCost(path), () => run<FrameAnalysis>({ kind: 'frame', path, maxSide }, signal)),
     analysePair: (a, b, options = defaultPairOptions, signal) => run<PairAnalysis>({ kind: 'pair', a, b, options }, signal),
     judgeThroughLens: (a, b, tiePoints, lens, signal) => run<LensJudgement | null>({ kind: 'lens', a, b, tiePoints, lens }, signal),
     liveThreads: () => pool.threads.length,

@@ -1,9 +1,10 @@
 // The worker side of the analysis pool: one task at a time, no state kept between tasks.
 import type { AnalysisLens, FrameAnalysis, PairOptions } from './frame-analysis.js';
+import type { InputPath } from './input-file.js';
 import { analyseFrameFile, analysePair, judgeThroughLens } from './frame-analysis.js';
 
 export type AnalysisTask =
-  | { kind: 'frame'; path: string; maxSide: number }
+  | { kind: 'frame'; path: InputPath; maxSide: number }
   | { kind: 'pair'; a: FrameAnalysis; b: FrameAnalysis; options: PairOptions }
   | { kind: 'lens'; a: FrameAnalysis; b: FrameAnalysis; tiePoints: Float32Array; lens: AnalysisLens };
 

@@ -15,6 +15,7 @@ import type { TiePointSet } from './check.js';
 import { checkCard } from './card-check.js';
 import { isCardLayout } from './scan.js';
 import { frameForDisplay } from './decode.js';
+import { pathOfName } from './input-file.js';
 import { createFeatureCache } from './feature-cache.js';
 import { rememberFolder } from './recent-folders.js';
 import { writeFileAtomic } from './write-file.js';
@@ -213,14 +214,23 @@ export class AppService {
     const key = `${id}:${file}:${side}`;
     const cached = this.frameCache.get(key);
     if (cached) return cached;
-    let real: string;
+    let real: string | Buffer;
     try {
       real = await realpath(resolve(s.folder, file));
     } catch {
-      return null;
+      // A name that is not valid UTF-8 is reported with its bytes escaped (input-file.ts, nameOf).
+      const exact = pathOfName(s.folder, file);
+      if (typeof exact === 'string') return null;
+      try {
+        real = await realpath(exact, { encoding: 'buffer' });
+      } catch {
+        return null;
+      }
     }
-    const rel = relative(s.realFolder, real);
-    if (rel === '' || rel.startsWith('..' + sep) || rel === '..' || isAbsolute(rel)) return null;
+    if (typeof real === 'string') {
+      const rel = relative(s.realFolder, real);
+      if (rel === '' || rel.startsWith('..' + sep) || rel === '..' || isAbsolute(rel)) return null;
+    } else if (!real.subarray(0, Buffer.byteLength(s.realFolder) + 1).equals(Buffer.from(s.realFolder + sep))) return null;
     const jpeg = await frameForDisplay(real, side);
     // Two requests for the same frame may both have rendered it.
     this.frameCacheBytes -= this.frameCache.get(key)?.length ?? 0;

@@ -19,7 +19,7 @@ import type { AnalysisPool } from './analysis-pool.js';
 import { createAnalysisPool } from './analysis-pool.js';
 import type { FrameExif } from './exif.js';
 import type { FeatureCache } from './feature-cache.js';
-import { readFrameExif, readHeaderSize } from './exif.js';
+import { readFileHeaders } from './exif.js';
 import { sequenceLook, strayReason } from '../core/strays.js';
 import type { FrameAnalysis, PairAnalysis } from './frame-analysis.js';
 import type { ScannedFile } from './scan.js';
@@ -104,12 +104,18 @@ export function skipOf(file: string, err: unknown, size?: number): SkippedFile {
   const code = (err as NodeJS.ErrnoException)?.code;
   if (size === 0) return { file, code: 'unreadable', reason: 'empty file (0 bytes): copy it from the card again' };
   if (code === 'ENOENT') return { file, code: 'unreadable', reason: 'the file went away during the check' };
-  if (code === 'EACCES' || code === 'EPERM') return { file, code: 'unreadable', reason: 'no permission to read it' };
+  // Codes first; the same by the message for an error that crossed from a worker thread without its code.
+  if (code === 'EACCES' || code === 'EPERM' || /^(EACCES|EPERM):/.test(message)) return { file, code: 'unreadable', reason: 'no permission to read it' };
+  // The medium failed (a bad sector, a card pulled, a failing reader), or the file ended before its size.
+  if (code === 'EIO' || code === 'ENXIO' || code === 'ENODEV' || code === 'ESHORTREAD' || /^(EIO|ENXIO|ENODEV):|its size promised/.test(message)) return { file, code: 'unreadable', reason: 'read error: copy it from the card again' };
+  if (code === 'ENOTREGULAR' || /is not a regular file/.test(message)) return { file, code: 'unreadable', reason: 'it is not a regular file (a pipe, a device or a socket): not read' };
+  if (code === 'EISDIR') return { file, code: 'unreadable', reason: 'it is a folder, not a picture' };
+  if (code === 'EFBIG') return { file, code: 'too-large', reason: 'too large to read safely (over the size read at most)' };
   if (/pixel limit/i.test(message)) return { file, code: 'too-large', reason: 'too large to decode safely (over the pixel limit)' };
   if (/no usable preview: the (\.\w+) container/i.test(message)) return { file, code: 'no-preview', reason: `RAW ${/(\.\w+) container/.exec(message)![1]} files are not read yet: shoot RAW+JPEG, or check exported JPEGs` };
   if (/no usable preview|TIFF byte order|TIFF mark/i.test(message)) return { file, code: 'no-preview', reason: 'holds no embedded preview Seamscout can read: shoot RAW+JPEG, or check exported JPEGs' };
   if (/timeout/i.test(message)) return { file, code: 'unreadable', reason: 'decoding took too long' };
-  if (/premature end|truncated|unexpected end|corrupt|invalid/i.test(message)) return { file, code: 'unreadable', reason: 'damaged or cut short: copy it from the card again' };
+  if (/premature end|truncated|unexpected end|corrupt|invalid|cut short/i.test(message)) return { file, code: 'unreadable', reason: 'damaged or cut short: copy it from the card again' };
   if (/unsupported image format|bad seek|not a known file format|improper image header|input buffer/i.test(message)) return { file, code: 'not-an-image', reason: 'not an image Seamscout can read' };
   return { file, code: 'unreadable', reason: `cannot be read: ${message.split('\n')[0]}` };
 }
@@ -227,19 +233,25 @@ export async function readCard(folder: string, options: Pick<CheckOptions, 'recu
   const scan = await scanFolder(folder, options.recursive ?? false);
   const shots = oneFilePerShot(scan.files, options.prefer ?? 'jpeg');
   const skipped: SkippedFile[] = [...scan.problems.map((p) => ({ file: p.name, code: 'unreadable' as const, reason: p.reason })), ...shots.skipped];
-  const heads = await inOrder(shots.files, 8, (f) => Promise.all([readFrameExif(f.path), readHeaderSize(f.path)]), signal);
+  const read = await inOrder(shots.files, 8, (f) => readFileHeaders(f.path), signal);
+  // A file whose head cannot be read (a read fault, cut short, no permission) is reported now, not decoded.
+  read.forEach((r, i) => {
+    if (r.error) skipped.push(skipOf(shots.files[i].name, r.error, shots.files[i].size));
+  });
+  const files = shots.files.filter((_, i) => !read[i].error);
+  const heads = read.filter((r) => !r.error).map((r): [FrameExif, { width: number; height: number } | null] => [r.exif, r.size]);
   // Files that are not part of the sequence (another camera, size or shape than most of the card)
   // are left out before stations are grouped, so they cannot split a station or break a turn.
   const memberOf = (exif: FrameExif, size: { width: number; height: number } | null) => ({ width: size?.width ?? null, height: size?.height ?? null, make: exif.settings.make, model: exif.settings.model });
   // Byte-identical copies are left out before stations are grouped (a copy's repeated exposure
   // would split its station): the first in shooting order, then by name, stays.
   const copyOf = new Map<number, number>();
-  for (const set of await byteCopies(shots.files)) {
-    const [first, ...rest] = shootingOrder(set.map((i) => ({ i, file: shots.files[i].name, captureMs: heads[i][0].captureMs })));
+  for (const set of await byteCopies(files)) {
+    const [first, ...rest] = shootingOrder(set.map((i) => ({ i, file: files[i].name, captureMs: heads[i][0].captureMs })));
     for (const r of rest) copyOf.set(r.i, first.i);
   }
   const look = sequenceLook(heads.filter((_, i) => !copyOf.has(i)).map(([exif, size]) => memberOf(exif, size)));
-  const members = shots.files.map((file, i) => ({ file: file.name, captureMs: heads[i][0].captureMs, scanned: file, exif: heads[i][0], size: heads[i][1], copyOf: copyOf.get(i), stray: strayReason(memberOf(...heads[i]), look) }));
+  const members = files.map((file, i) => ({ file: file.name, captureMs: heads[i][0].captureMs, scanned: file, exif: heads[i][0], size: heads[i][1], copyOf: copyOf.get(i), stray: strayReason(memberOf(...heads[i]), look) }));
   // Another camera's run of frames (a phone panorama on a camera's card) is a sequence of its own,
   // which the split finds by the change of camera; only a lone file unlike the card stays apart.
   const byTime = shootingOrder(members.filter((m) => m.copyOf === undefined));
@@ -253,7 +265,7 @@ export async function readCard(folder: string, options: Pick<CheckOptions, 'recu
     a = b;
   }
   for (const m of members) {
-    if (m.copyOf !== undefined) skipped.push({ file: m.file, code: 'duplicate', reason: `the same picture as ${shots.files[m.copyOf].name}: left out` });
+    if (m.copyOf !== undefined) skipped.push({ file: m.file, code: 'duplicate', reason: `the same picture as ${files[m.copyOf].name}: left out` });
     else if (m.stray !== null) skipped.push({ file: m.file, code: 'not-in-sequence', reason: m.stray });
   }
   const ordered = shootingOrder(members.filter((m) => m.copyOf === undefined && m.stray === null)).map(({ file, captureMs, scanned, exif, size }) => ({ file, captureMs, scanned, exif, size }));

@@ -7,7 +7,7 @@ import { checkCommand, checkUsage } from './check-command.js';
 import { decodeForAnalysis } from './decode.js';
 import { demoCommand } from './demo-command.js';
 import { ensureDemoShoot } from './demo-shoot.js';
-import { progressLine } from './summary.js';
+import { forTerminal, progressLine } from './summary.js';
 
 const usage = `Usage:
   seamscout check [folder] [options]   check a shot sequence (the demo shoot when no folder is given)
@@ -69,7 +69,7 @@ export async function main(argv: string[]): Promise<number> {
     process.stderr.write(`Expected a command (check, demo, pair) but received ${command}\n\n${usage}`);
     return 2;
   } catch (err) {
-    process.stderr.write(`seamscout: ${(err as Error).message}\n`);
+    process.stderr.write(`seamscout: ${forTerminal((err as Error).message)}\n`);
     return 2;
   }
 }

@@ -2,7 +2,16 @@ import type { Sharp } from 'sharp';
 import sharp from 'sharp';
 import type { GrayImage } from '../core/image.js';
 import type { RawPreview } from './raw-file.js';
-import { isRawFile, orient, readRawPreview } from './raw-file.js';
+import { isRawFile, maxPreviewBytes, orient, readRawPreview } from './raw-file.js';
+import { jpegDemand, tooShortForItsSize } from '../core/jpeg-demand.js';
+import type { InputPath } from './input-file.js';
+import { inputBudget, readInputHead, readInputRest } from './input-file.js';
+import { tooShortError } from './exif.js';
+
+// libvips' operation cache keeps a finished decode's loader alive, and with it what the decoder
+// allocated (a progressive JPEG's coefficients: 432 MB for 12000 x 12000), which the cache does
+// not count: four such frames held 1.8 GB after they were done. A check never decodes one input twice.
+sharp.cache(false);
 
 /** Largest image sharp is allowed to decode (a guard against decompression bombs): 200 MP. */
 export const pixelLimit = 200_000_000;
@@ -18,20 +27,48 @@ export interface DecodedFrame {
   readonly fullHeight: number;
 }
 
+/** Bytes of a file's head read first, to weigh what decoding it will hold before the file is read whole. */
+const headBytes = 256 * 1024;
+
 /**
- * A frame as sharp reads it, to be turned upright: a RAW file through its largest embedded JPEG
- * preview (and the RAW's own orientation and sensor size), any other image as it is.
+ * Runs `work` on a frame as sharp reads it, to be turned upright: a RAW file through its largest
+ * embedded JPEG preview (and the RAW's own orientation and sensor size), any other image as it is.
+ * The bytes are read into memory first (input-file.ts: a read fault is an error, never a signal),
+ * within this thread's input budget together with what the decoder will hold for them; a JPEG
+ * whose data is too short for the size its header claims is refused before it is decoded.
  */
-async function openFrame(path: string): Promise<{ source: Sharp; upright: Sharp; raw: RawPreview | null }> {
+async function withFrame<T>(path: InputPath, work: (f: { source: Sharp; upright: Sharp; raw: RawPreview | null }) => Promise<T>): Promise<T> {
   const raw = isRawFile(path) ? await readRawPreview(path) : null;
-  const source = sharp(raw ? raw.jpeg : path, { limitInputPixels: pixelLimit, failOn: 'error' });
-  return { source, upright: raw && raw.orientation !== null ? orient(source, raw.orientation) : source.autoOrient(), raw };
+  const { bytes: head, size } = raw ? { bytes: raw.jpeg, size: raw.jpeg.length } : await readInputHead(path, headBytes);
+  const decoderBytes = jpegDemand(head)?.decoderBytes ?? 0;
+  return inputBudget.hold(size + decoderBytes, async () => run(await readInputRest(path, head, size)));
+
+  function run(data: Buffer): Promise<T> {
+    const demand = jpegDemand(data);
+    if (demand && tooShortForItsSize(demand)) throw tooShortError(demand, data.length);
+    const source = sharp(data, { limitInputPixels: pixelLimit, failOn: 'error' });
+    return work({ source, upright: raw && raw.orientation !== null ? orient(source, raw.orientation) : source.autoOrient(), raw });
+  }
+}
+
+/**
+ * Bytes decoding a file will hold, as `withFrame` counts them, from its head alone (a RAW file
+ * counts as its size up to the largest preview read); 0 for a file that cannot be read (its
+ * decode then says why). For a dispatcher that sends decodes to worker threads, each of which
+ * has a budget of its own.
+ */
+export async function decodeCost(path: InputPath): Promise<number> {
+  try {
+    const { bytes, size } = await readInputHead(path, isRawFile(path) ? 0 : headBytes);
+    return isRawFile(path) ? Math.min(size, maxPreviewBytes) : size + (jpegDemand(bytes)?.decoderBytes ?? 0);
+  } catch {
+    return 0;
+  }
 }
 
 /** A frame upright at most `maxSide` px, as a JPEG to show (RAW files through their preview). */
-export async function frameForDisplay(path: string, maxSide: number): Promise<Buffer> {
-  const { upright } = await openFrame(path);
-  return upright.resize(maxSide, maxSide, { fit: 'inside' }).timeout({ seconds: decodeTimeLimit }).jpeg({ quality: 82 }).toBuffer();
+export async function frameForDisplay(path: InputPath, maxSide: number): Promise<Buffer> {
+  return withFrame(path, ({ upright }) => upright.resize(maxSide, maxSide, { fit: 'inside' }).timeout({ seconds: decodeTimeLimit }).jpeg({ quality: 82 }).toBuffer());
 }
 
 /**
@@ -39,12 +76,15 @@ export async function frameForDisplay(path: string, maxSide: number): Promise<Bu
  * orientation. JPEG shrinks on load by 1/2, 1/4 or 1/8, so a size at one of those ratios is far
  * cheaper than one just above it.
  */
-export async function decodeForAnalysis(path: string, maxSide: number): Promise<DecodedFrame> {
+export async function decodeForAnalysis(path: InputPath, maxSide: number): Promise<DecodedFrame> {
   // A RAW file is read through its largest embedded JPEG preview, turned upright by the RAW's own
   // orientation; its full size is the sensor's, so geometry maps back to sensor pixels.
-  const { source, upright: img, raw } = await openFrame(path);
+  return withFrame(path, (f) => decodeFrame(f, maxSide));
+}
+
+async function decodeFrame({ source, upright: img, raw }: { source: Sharp; upright: Sharp; raw: RawPreview | null }, maxSide: number): Promise<DecodedFrame> {
   const meta = await source.metadata();
-  if (!meta.width || !meta.height) throw new Error(`Expected an image with a size for ${path} but received none`);
+  if (!meta.width || !meta.height) throw new Error(`Expected an image with a size but received none`);
   const swap = (raw?.orientation ?? meta.orientation ?? 1) >= 5;
   const storedW = raw?.sensorWidth ?? meta.width, storedH = raw?.sensorHeight ?? meta.height;
   const fullWidth = swap ? storedH : storedW;

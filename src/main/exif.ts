@@ -1,7 +1,16 @@
 import exifr from 'exifr';
 import sharp from 'sharp';
 import type { FrameSettings } from '../core/report.js';
+import type { InputPath } from './input-file.js';
+import { extensionOf, inputBudget, readInputHead, readInputRest } from './input-file.js';
 import { isRawFile, readRawExifBlocks } from './raw-file.js';
+import type { JpegDemand } from '../core/jpeg-demand.js';
+import { jpegDemand, tooShortForItsSize } from '../core/jpeg-demand.js';
+
+/** The error for a JPEG stream too short for the size its header claims (core/jpeg-demand.ts). */
+export function tooShortError(d: JpegDemand, streamBytes: number): Error {
+  return new Error(`damaged or cut short: ${streamBytes - d.scanStart} bytes of JPEG data for ${d.width} x ${d.height} pixels, which need ${d.minEntropyBytes} at least`);
+}
 
 export interface FrameExif {
   readonly settings: FrameSettings;
@@ -73,12 +82,61 @@ export function parseExifDate(value: unknown, subSec: unknown): { ms: number; is
   return { ms: t, iso: new Date(t).toISOString().replace('Z', '') };
 }
 
-/** Reads the EXIF a check needs; a file without EXIF, or with absurd values, gives nulls, never an error. */
-export async function readFrameExif(path: string): Promise<FrameExif> {
+/**
+ * Bytes of a file's head that hold its EXIF and its size: the APP1 segment leads a JPEG (64 KiB at
+ * most, ITU-T T.81 B.1.1.4 with CIPA DC-008 4.5.4) and its frame header follows within the first
+ * 128 KiB unless other segments (ICC profiles, a second picture's index) are large, when up to
+ * 1 MiB is read; IHDR leads a PNG; a TIFF-based RAW file keeps its IFD0 and EXIF IFD near its start
+ * (1 MiB). A TIFF (whose IFDs libtiff writes after the pixels) and an ISO base media file (HEIC,
+ * AVIF: the EXIF item may lie in the media data) are read whole.
+ */
+const headerBytes = 128 * 1024;
+const longHeaderBytes = 1024 * 1024;
+const readWholeForHeaders = new Set(['.tif', '.tiff', '.heic', '.heif', '.avif']);
+
+/**
+ * The head of a file as the header readers get it (never a path, so that no reader maps the file
+ * or opens what is not a regular file), and its size; within this thread's input budget.
+ */
+export async function withHeaderBytes<T>(path: InputPath, work: (head: Buffer, size: number) => Promise<T>): Promise<T> {
+  const ending = extensionOf(path);
+  let head = await readInputHead(path, isRawFile(path) ? longHeaderBytes : headerBytes);
+  if (head.bytes.length < head.size && head.bytes[0] === 0xff && head.bytes[1] === 0xd8 && !jpegDemand(head.bytes)) head = await readInputHead(path, longHeaderBytes);
+  const { bytes, size } = head;
+  if (!readWholeForHeaders.has(ending) || bytes.length === size) return work(bytes, size);
+  return inputBudget.hold(size, async () => work(await readInputRest(path, bytes, size), size));
+}
+
+/**
+ * EXIF and header size of a file read from one head of it (see `withHeaderBytes`), or the error
+ * that kept its head from being read (a read fault, no permission, gone): such a file is reported
+ * as it is, not decoded.
+ */
+export async function readFileHeaders(path: InputPath): Promise<{ exif: FrameExif; size: { width: number; height: number } | null; error: unknown }> {
+  try {
+    const [exif, size] = await withHeaderBytes(path, async (head, fileSize) => {
+      // A JPEG whose whole file is shorter than the data its claimed size needs is refused here,
+      // before its size can count among the card's (where it would set the good frames apart).
+      const demand = isRawFile(path) ? null : jpegDemand(head);
+      if (demand && tooShortForItsSize(demand, fileSize)) throw tooShortError(demand, fileSize);
+      return Promise.all([readFrameExif(path, head), readHeaderSize(path, head)]);
+    });
+    return { exif, size, error: null };
+  } catch (error) {
+    return { exif: await readFrameExif(path, Buffer.alloc(0)), size: null, error };
+  }
+}
+
+/**
+ * Reads the EXIF a check needs (from `head` when given, else from the file's head); a file
+ * without EXIF, or with absurd values, gives nulls, never an error.
+ */
+export async function readFrameExif(path: InputPath, head?: Buffer): Promise<FrameExif> {
   let raw: Record<string, unknown>;
   try {
     const blocks = await readRawExifBlocks(path);
-    raw = blocks ? await tagsOfBlocks(blocks) : (await exifr.parse(path, { pick: tags, reviveValues: false, translateValues: false })) ?? {};
+    const bytes = blocks ? null : head ?? (await withHeaderBytes(path, async (b) => b));
+    raw = blocks ? await tagsOfBlocks(blocks) : bytes && bytes.length > 0 ? (await exifr.parse(bytes, { pick: tags, reviveValues: false, translateValues: false })) ?? {} : {};
   } catch {
     raw = {};
   }
@@ -110,10 +168,12 @@ export async function readFrameExif(path: string): Promise<FrameExif> {
  * (whose headers describe a thumbnail or the sensor, not the frame checked) and for anything sharp
  * cannot read. Only a hint for telling stray files apart: the decoded size stays the one measured.
  */
-export async function readHeaderSize(path: string): Promise<{ width: number; height: number } | null> {
+export async function readHeaderSize(path: InputPath, head?: Buffer): Promise<{ width: number; height: number } | null> {
   if (isRawFile(path)) return null;
   try {
-    const meta = await sharp(path, { failOn: 'none' }).metadata();
+    const bytes = head ?? (await withHeaderBytes(path, async (b) => b));
+    if (bytes.length === 0) return null;
+    const meta = await sharp(bytes, { failOn: 'none' }).metadata();
     if (!meta.width || !meta.height) return null;
     const swap = (meta.orientation ?? 1) >= 5;
     return { width: swap ? meta.height : meta.width, height: swap ? meta.width : meta.height };

@@ -24,7 +24,7 @@ export interface FeatureCache {
 export function createFeatureCache(dir = join(cacheDir(), 'features')): FeatureCache {
   const params = JSON.stringify(checkFeatureParams);
   const keyOf = (f: ScannedFile, maxSide: number): string =>
-    createHash('sha256').update(JSON.stringify([analysisVersion, params, f.path, f.size, f.mtimeMs, maxSide])).digest('hex').slice(0, 40);
+    createHash('sha256').update(JSON.stringify([analysisVersion, params, typeof f.path === 'string' ? f.path : Buffer.from(f.path).toString('hex'), f.size, f.mtimeMs, maxSide])).digest('hex').slice(0, 40);
   let made = false;
   let swept = false;
   return {

@@ -22,6 +22,7 @@ import type { SharedSharpness } from '../core/shared-sharpness.js';
 import { sharedSharpness } from '../core/shared-sharpness.js';
 import { createScratchPool } from '../core/scratch.js';
 import { decodeForAnalysis } from './decode.js';
+import type { InputPath } from './input-file.js';
 
 /** What one frame contributes to a check; small enough to keep for every frame of a card. */
 export interface FrameAnalysis {
@@ -67,7 +68,7 @@ export const checkFeatureParams: FeatureParams = { ...defaultFeatureParams, halv
 const scratch = createScratchPool();
 
 /** Decodes a frame at the analysis size and extracts everything later steps need from it. */
-export async function analyseFrameFile(path: string, maxSide: number, params: FeatureParams = checkFeatureParams): Promise<FrameAnalysis> {
+export async function analyseFrameFile(path: InputPath, maxSide: number, params: FeatureParams = checkFeatureParams): Promise<FrameAnalysis> {
   const decoded = await decodeForAnalysis(path, maxSide);
   const features = detectAndDescribe(decoded.image, params, scratch);
   return { fullWidth: decoded.fullWidth, fullHeight: decoded.fullHeight, features, image: decoded.image, sharpness: sharpness(decoded.image), fingerprint: imageFingerprint(decoded.image) };

@@ -1,14 +1,21 @@
+import { isUtf8 } from 'node:buffer';
 import { createHash } from 'node:crypto';
-import { open, readdir, readlink, realpath, stat } from 'node:fs/promises';
-import { extname, join, relative } from 'node:path';
+import { readdir, readlink, realpath, stat } from 'node:fs/promises';
+import { extname, join, sep } from 'node:path';
+import type { InputPath } from './input-file.js';
+import { nameOf, openInput } from './input-file.js';
 import { rawExtensions, unreadRawExtensions } from './raw-file.js';
 
 /** File endings of the formats sharp decodes that cameras and phones write, and of camera RAW files. */
 export const imageExtensions = new Set(['.jpg', '.jpeg', '.jpe', '.png', '.tif', '.tiff', '.webp', '.avif', '.heic', '.heif', ...rawExtensions, ...unreadRawExtensions]);
 
 export interface ScannedFile {
-  readonly path: string;
-  /** Path relative to the scanned folder (the base name when not recursive). */
+  /** The exact path: a string, or its bytes where a name on the way is not valid UTF-8. */
+  readonly path: InputPath;
+  /**
+   * Path relative to the scanned folder (the base name when not recursive), as shown and reported:
+   * a name that is not valid UTF-8 has each byte that is not written `\xHH` (input-file.ts, `nameOf`).
+   */
   readonly name: string;
   readonly size: number;
   readonly mtimeMs: number;
@@ -16,63 +23,69 @@ export interface ScannedFile {
 
 export interface ScanResult {
   readonly files: ScannedFile[];
-  /** Entries that could not be read (permissions, vanished), with the reason. */
+  /** Entries that could not be read (permissions, vanished, not a picture), with the reason in words. */
   readonly problems: { name: string; reason: string }[];
 }
+
+/** Why a folder entry could not be read, in words, from what the system said; a link to nothing says where it leads. */
+async function problemOf(path: Buffer, err: unknown): Promise<string> {
+  const code = (err as NodeJS.ErrnoException).code;
+  if (code === 'EACCES' || code === 'EPERM') return 'no permission to read it';
+  if (code === 'ENOENT' || code === 'ELOOP') {
+    const target = await readlink(path).catch(() => null);
+    if (target !== null) return code === 'ELOOP' ? `it is a link that leads round in a loop (${target}): not read` : `it links to ${target}, which is not there: not read`;
+  }
+  if (code === 'ENOENT') return 'it went away during the check';
+  if (code === 'EIO') return 'read error: copy it from the card again';
+  return `cannot be read: ${code ?? (err as Error).message}`;
+}
+
+const slash = Buffer.from(sep);
 
 /**
  * Lists the image files of a folder, by ending, skipping hidden files (".", and the "._" files some
  * systems leave on cards). With `recursive`, descends into sub-folders, following each real folder
- * once so that a symbolic-link loop ends. Reads only; writes nothing.
+ * once so that a symbolic-link loop ends. Names are read as bytes and kept exact, so that a name
+ * that is not valid UTF-8 (an old camera's or a FAT tool's Latin-1 name) is opened as it is.
+ * Reads only; writes nothing.
  */
 export async function scanFolder(folder: string, recursive: boolean): Promise<ScanResult> {
   const files: ScannedFile[] = [];
   const problems: { name: string; reason: string }[] = [];
   const seen = new Set<string>();
-  const walk = async (dir: string): Promise<void> => {
-    const real = await realpath(dir);
+  const walk = async (dir: Buffer, shownDir: string): Promise<void> => {
+    const real = (await realpath(dir, { encoding: 'buffer' })).toString('latin1');
     if (seen.has(real)) return;
     seen.add(real);
-    const entries = await readdir(dir, { withFileTypes: true });
-    entries.sort((a, b) => (a.name < b.name ? -1 : a.name > b.name ? 1 : 0));
-    for (const e of entries) {
-      if (e.name.startsWith('.')) continue;
-      const path = join(dir, e.name);
-      const name = relative(folder, path);
+    const entries = (await readdir(dir, { withFileTypes: true, encoding: 'buffer' })).map((e) => ({ e, bytes: e.name as unknown as Buffer, shown: nameOf(e.name as unknown as Buffer) }));
+    entries.sort((a, b) => (a.shown < b.shown ? -1 : a.shown > b.shown ? 1 : 0));
+    for (const { e, bytes, shown } of entries) {
+      if (bytes[0] === 0x2e) continue;
+      const raw = Buffer.concat([dir, slash, bytes]);
+      const name = shownDir ? `${shownDir}${sep}${shown}` : shown;
+      const exact = isUtf8(raw) ? join(raw.toString('utf8')) : raw;
       try {
-        const image = imageExtensions.has(extname(e.name).toLowerCase());
-        if (e.isDirectory() || (e.isSymbolicLink() && recursive && (await stat(path)).isDirectory())) {
-          if (recursive) await walk(path);
+        const image = imageExtensions.has(extname(shown).toLowerCase());
+        if (e.isDirectory() || (e.isSymbolicLink() && recursive && (await stat(raw)).isDirectory())) {
+          if (recursive) await walk(raw, name);
           // A folder named like a picture is said, not passed over: the photographer looks for it.
           else if (image) problems.push({ name, reason: 'it is a folder, not a picture' });
           continue;
         }
         if (!image) continue;
         // Never opened unless a regular file: a pipe would wait for ever, a device would be read.
-        const st = await stat(path);
+        const st = await stat(raw);
         if (st.isDirectory()) problems.push({ name, reason: 'it is a folder, not a picture' });
         else if (!st.isFile()) problems.push({ name, reason: 'it is not a regular file (a pipe, a device or a socket): not read' });
         if (!st.isFile()) continue;
-        files.push({ path, name, size: st.size, mtimeMs: st.mtimeMs });
+        files.push({ path: exact, name, size: st.size, mtimeMs: st.mtimeMs });
       } catch (err) {
-        problems.push({ name, reason: await entryProblem(path, err) });
+        problems.push({ name, reason: await problemOf(raw, err) });
       }
     }
   };
-  await walk(folder);
+  await walk(Buffer.from(folder), '');
   return { files, problems };
-}
-
-/** Why an entry could not be looked at, in words: a link to nothing says where it leads. */
-async function entryProblem(path: string, err: unknown): Promise<string> {
-  const code = (err as NodeJS.ErrnoException).code;
-  if (code === 'ENOENT' || code === 'ELOOP') {
-    const target = await readlink(path).catch(() => null);
-    if (target !== null) return code === 'ELOOP' ? `it is a link that leads round in a loop (${target}): not read` : `it links to ${target}, which is not there: not read`;
-    return 'the file went away during the check';
-  }
-  if (code === 'EACCES' || code === 'EPERM') return 'no permission to read it';
-  return `cannot be read: ${code ?? (err as Error).message}`;
 }
 
 /**
@@ -99,9 +112,9 @@ export async function isCardLayout(folder: string): Promise<boolean> {
 /** Bytes compared first, from the start of each file: a camera's files differ there (EXIF capture time, counters). */
 const headBytes = 64 * 1024;
 
-async function digestOf(path: string, limit: number): Promise<string> {
+async function digestOf(path: InputPath, limit: number): Promise<string> {
   const hash = createHash('sha256');
-  const handle = await open(path, 'r');
+  const { handle } = await openInput(path);
   try {
     const chunk = Buffer.alloc(Math.min(limit, 1 << 20));
     let at = 0;

@@ -4,6 +4,6 @@ import type { AnalysisTask } from '../../src/main/analysis-worker.js';
 import runTask from '../../src/main/analysis-worker.js';
 
 export default async function crashingTask(task: AnalysisTask): Promise<unknown> {
-  if (task.kind === 'frame' && task.path.includes('crash')) process.exit(1);
+  if (task.kind === 'frame' && typeof task.path === 'string' && task.path.includes('crash')) process.exit(1);
   return runTask(task);
 }
