@@ -54,14 +54,24 @@ beforeAll(async () => {
   // Data after the end-of-image marker (some cameras append their own).
   writeFileSync(join(card, 'tail-after-end.jpg'), Buffer.concat([await view(2).jpeg().toBuffer(), Buffer.from('maker trailer '.repeat(60))]));
   // An EXIF block whose TIFF header is garbage, right after the start-of-image marker.
-  const exif = Buffer.concat([Buffer.from([0xff, 0xe1, 0x00, 0x22]), Buffer.from('Exif\0\0XX*\0garbage, not a TIFF header')]);
+  const exifBody = Buffer.from('Exif\0\0XX*\0garbage, not a TIFF header');
+  const exif = Buffer.concat([Buffer.from([0xff, 0xe1, (exifBody.length + 2) >> 8, (exifBody.length + 2) & 255]), exifBody]);
   const plain = await view(3).jpeg().toBuffer();
   writeFileSync(join(card, 'garbled-exif.jpg'), Buffer.concat([plain.subarray(0, 2), exif, plain.subarray(2)]));
   await view(4).ensureAlpha(0.5).png().toFile(join(card, 'with-alpha.png'));
   await view(5).webp().toFile(join(card, 'phone.webp'));
   writeFileSync(join(card, 'png-inside.jpg'), await view(6).png().toBuffer());
   writeFileSync(join(card, `long-${'x'.repeat(240)}.jpg`), await view(7).jpeg().toBuffer());
+  // Extraneous bytes just before the end-of-image marker: libjpeg warns, the picture is whole.
+  const flopped = await sharp(good).flop().jpeg().toBuffer();
+  writeFileSync(join(card, 'extra-before-end.jpg'), Buffer.concat([flopped.subarray(0, -2), Buffer.from('pad'), flopped.subarray(-2)]));
   // Bad ones.
+  // A JPEG garbled part way: bits flipped through 3 kB of its entropy-coded data, as a bad sector
+  // read back wrong leaves it (libjpeg decodes on and fills the rest with garbage). Garbage that
+  // happens to read as valid codes is not found this way (a run of 0x5a bytes is not).
+  const garbled = await view(0).jpeg().toBuffer();
+  for (let i = Math.floor(garbled.length * 0.55); i < Math.floor(garbled.length * 0.55) + 3000; i += 7) garbled[i] ^= 0x5a;
+  writeFileSync(join(card, 'garbled-middle.jpg'), garbled);
   await sharp({ create: { width: 1, height: 1, channels: 3, background: '#888' } }).jpeg().toFile(join(card, 'one-pixel.jpg'));
   writeFileSync(join(card, 'noise.CR2'), Buffer.from(Array.from({ length: 9000 }, (_, i) => (i * 7919) & 255)));
   writeFileSync(join(card, 'header-only.jpg'), good.subarray(0, 600));
@@ -81,6 +91,14 @@ describe('bad input on a card', () => {
 
   it('names a file cut in half as damaged or cut short', () => {
     expect(skip('half.jpg')?.reason).toMatch(/damaged or cut short/);
+  });
+
+  it('names a JPEG garbled part way as damaged, never checking its garbage', () => {
+    expect(skip('garbled-middle.jpg')?.reason).toBe('damaged (part of the picture is garbled): copy it from the card again');
+  });
+
+  it('reads a JPEG with stray bytes before its end marker, which some cameras write', () => {
+    expect(frame('extra-before-end.jpg')).toBeDefined();
   });
 
   it('names a JPEG that stops after its header as damaged or cut short', () => {
@@ -168,7 +186,7 @@ describe('bad input on a card', () => {
   });
 
   it('accounts for every picture file on the card, checked or named', () => {
-    expect(report.frames.length + report.skipped.length).toBe(24);
+    expect(report.frames.length + report.skipped.length).toBe(26);
   });
 
   it('changes not a byte of the card, its listing or its times', () => {

@@ -115,6 +115,7 @@ export function skipOf(file: string, err: unknown, size?: number): SkippedFile {
   if (/no usable preview: the (\.\w+) container/i.test(message)) return { file, code: 'no-preview', reason: `RAW ${/(\.\w+) container/.exec(message)![1]} files are not read yet: shoot RAW+JPEG, or check exported JPEGs` };
   if (/no usable preview|TIFF byte order|TIFF mark/i.test(message)) return { file, code: 'no-preview', reason: 'holds no embedded preview Seamscout can read: shoot RAW+JPEG, or check exported JPEGs' };
   if (/timeout/i.test(message)) return { file, code: 'unreadable', reason: 'decoding took too long' };
+  if (/corrupt JPEG data|inconsistent progression/i.test(message)) return { file, code: 'unreadable', reason: 'damaged (part of the picture is garbled): copy it from the card again' };
   if (/premature end|truncated|unexpected end|corrupt|invalid|cut short/i.test(message)) return { file, code: 'unreadable', reason: 'damaged or cut short: copy it from the card again' };
   if (/unsupported image format|bad seek|not a known file format|improper image header|input buffer/i.test(message)) return { file, code: 'not-an-image', reason: 'not an image Seamscout can read' };
   return { file, code: 'unreadable', reason: `cannot be read: ${message.split('\n')[0]}` };

@@ -46,8 +46,68 @@ async function withFrame<T>(path: InputPath, work: (f: { source: Sharp; upright:
   function run(data: Buffer): Promise<T> {
     const demand = jpegDemand(data);
     if (demand && tooShortForItsSize(demand)) throw tooShortError(demand, data.length);
-    const source = sharp(data, { limitInputPixels: pixelLimit, failOn: 'error' });
-    return work({ source, upright: raw && raw.orientation !== null ? orient(source, raw.orientation) : source.autoOrient(), raw });
+    const attempt = (failOn: 'warning' | 'error'): Promise<T> => {
+      const source = sharp(data, { limitInputPixels: pixelLimit, failOn });
+      return work({ source, upright: raw && raw.orientation !== null ? orient(source, raw.orientation) : source.autoOrient(), raw });
+    };
+    return demand ? strictThenLenient(attempt, endsWhole(data, demand.scanStart)) : lenient(attempt);
+  }
+}
+
+/**
+ * Whether a JPEG stream reaches its end-of-image marker after its first scan begins. In the
+ * entropy-coded data a 0xFF byte is always followed by 0x00 or a restart marker (ITU-T T.81 B.1.1.5),
+ * so 0xFF 0xD9 there is the real end; a file cut short has none (a thumbnail's sits before the scan).
+ */
+const endsWhole = (data: Buffer, scanStart: number): boolean => data.indexOf(endOfImage, scanStart) !== -1;
+const endOfImage = Buffer.from([0xff, 0xd9]);
+
+/**
+ * What libjpeg says of entropy-coded data that does not decode as written (ITU-T T.81 data with
+ * flipped or lost bytes: a bad sector read back wrong, a card going bad): the decoder goes on and
+ * fills the rest with grey or garbage, which the check would then blame on the photographer
+ * (parallax, an exposure jump). Extraneous bytes just before the end-of-image marker are not
+ * damage: some cameras and editors write them, and the picture is whole.
+ */
+function garbledData(message: string): boolean {
+  if (/extraneous bytes before marker 0xd9/i.test(message)) return false;
+  return /corrupt JPEG data|inconsistent progression|premature end/i.test(message);
+}
+
+/**
+ * A JPEG is decoded with libjpeg's warnings as errors, so that a picture garbled part way is named
+ * as damaged, and one that stops before its end as cut short. libvips keeps one error text for all
+ * its threads, so under load a failure may carry another decode's words, or only "Unknown error":
+ * the words are trusted only when a second strict decode says the same. On any other warning (a
+ * harmless one) the file is decoded again with errors alone failing.
+ */
+async function strictThenLenient<T>(attempt: (failOn: 'warning' | 'error') => Promise<T>, whole: boolean): Promise<T> {
+  const strict = async (): Promise<{ value: T } | { message: string; err: unknown }> => {
+    try {
+      return { value: await attempt('warning') };
+    } catch (err) {
+      return { message: err instanceof Error ? err.message : String(err), err };
+    }
+  };
+  const first = await strict();
+  if ('value' in first) return first.value;
+  if (/pixel limit|timeout/i.test(first.message)) throw first.err;
+  if (!whole) throw new Error('Premature end of JPEG file: the file stops before its picture does');
+  if (garbledData(first.message)) {
+    const second = await strict();
+    if ('value' in second) return second.value;
+    if (garbledData(second.message)) throw second.err;
+  }
+  return lenient(attempt);
+}
+
+/** Decodes with errors alone failing, once more when the reason was lost ("Unknown error", see above). */
+async function lenient<T>(attempt: (failOn: 'warning' | 'error') => Promise<T>): Promise<T> {
+  try {
+    return await attempt('error');
+  } catch (err) {
+    if (err instanceof Error && /^unknown error$/i.test(err.message.trim())) return attempt('error');
+    throw err;
   }
 }
 
