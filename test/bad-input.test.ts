@@ -262,9 +262,9 @@ describe('entries that are no regular file', () => {
     const scan = await scanFolder(dir, false);
     expect(scan.files.map((f) => f.name)).toEqual(['good.jpg']);
     expect(scan.problems).toEqual([
-      { name: 'device.jpg', reason: 'it is not a regular file (a pipe, a device or a socket): not read' },
-      { name: 'pipe.jpg', reason: 'it is not a regular file (a pipe, a device or a socket): not read' },
-      { name: 'x.jpg', reason: 'it is a folder, not a picture' },
+      { name: 'device.jpg', code: 'not-a-file', reason: 'it is not a regular file (a pipe, a device or a socket): not read' },
+      { name: 'pipe.jpg', code: 'not-a-file', reason: 'it is not a regular file (a pipe, a device or a socket): not read' },
+      { name: 'x.jpg', code: 'not-a-file', reason: 'it is a folder, not a picture' },
     ]);
     const r = judge((await runCheck(dir, { pool })).analysis, defaultBudget);
     expect(r.skipped.map((s) => s.file).sort()).toEqual(['device.jpg', 'pipe.jpg', 'x.jpg']);

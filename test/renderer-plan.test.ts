@@ -29,4 +29,14 @@ describe('the reshoot plan on the first screen', () => {
     expect(text(first.querySelector('[data-plan-item]'))).toMatch(/^Between stations 2 and 3/);
     expect(renderSummary(sequenceReport(card, 2)).querySelector('[data-plan]')).toBeNull();
   });
+
+  it('says a folder is weak for files it could not check, not for weak pairs, and leads with copying them again', () => {
+    const one = sequenceReport(card, 2);
+    const analysis = { ...one, skipped: [{ file: 'IMG_0009.JPG', code: 'unreadable' as const, reason: 'damaged or cut short: copy it from the card again' }] };
+    const report = judge({ ...analysis, sequences: undefined, singleShots: undefined }, defaultBudget);
+    expect(report.verdict).toBe('weak');
+    const s = renderSummary(report);
+    expect(text(s.querySelector('.overall-words'))).toBe('Every pair and frame checked is fine, but some files could not be checked: look at them before you leave.');
+    expect(text(s.querySelector('[data-plan-item]'))).toMatch(/^IMG_0009: could not be read \(damaged or cut short\)\. Copy it from the card again/);
+  });
 });

@@ -148,6 +148,19 @@ describe('the reshoot plan', () => {
     expect(r.plan![0].text).toMatch(/\(overlap 25 %\)\.$/);
   });
 
+  it('begins with the files that could not be read, to copy again or reshoot, and leaves out what asks for nothing', () => {
+    const skipped = [
+      { file: 'IMG_0009.JPG', code: 'unreadable' as const, reason: 'damaged or cut short: copy it from the card again' },
+      { file: 'IMG_0010.JPG', code: 'unreadable' as const, reason: 'empty file (0 bytes): copy it from the card again' },
+      { file: 'IMG_0003_copy.JPG', code: 'duplicate' as const, reason: 'the same picture as IMG_0003.JPG: left out' },
+      { file: 'pipe.jpg', code: 'not-a-file' as const, reason: 'it is not a regular file (a pipe, a device or a socket): not read' },
+    ];
+    const plan = judge({ ...singles(4), skipped }, defaultBudget).plan!;
+    expect(plan).toHaveLength(1);
+    expect(plan[0]).toMatchObject({ action: 'copy-again', optional: false, files: ['IMG_0009.JPG', 'IMG_0010.JPG'], stationIndices: [] });
+    expect(plan[0].text).toBe('IMG_0009 and IMG_0010: could not be read (damaged or cut short; empty file (0 bytes)). Copy them from the card again; if the card\'s own copy is bad, reshoot them.');
+  });
+
   it('is built again when the report is judged again against another budget', () => {
     const r = judge(singles(5, { pairs: { '3-4': { overlap: 0.25 } } }), defaultBudget);
     expect(r.plan!.map((i) => i.optional)).toEqual([true]);

@@ -25,8 +25,12 @@ export type FlagCode =
   | 'size-mismatch'
   | 'lens-misfit';
 
-/** Why a file was left out; 'not-in-sequence': another camera, size or shape than most of the card (a stray file). */
-export type SkipCode = 'unreadable' | 'too-large' | 'not-an-image' | 'duplicate' | 'no-preview' | 'same-shot' | 'not-in-sequence';
+/**
+ * Why a file was left out; 'not-in-sequence': another camera, size or shape than most of the card (a
+ * stray file); 'not-a-file': named like a picture but no regular file (a folder, a pipe, a device, a
+ * link to nothing), never opened.
+ */
+export type SkipCode = 'unreadable' | 'too-large' | 'not-an-image' | 'not-a-file' | 'duplicate' | 'no-preview' | 'same-shot' | 'not-in-sequence';
 
 /**
  * Shots written twice by the camera, as a RAW file and a JPEG of one shutter press: how many the

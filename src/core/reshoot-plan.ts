@@ -11,7 +11,7 @@
  * the first screen what the verdicts still report, and a photographer at the site may as well fix
  * them while the tripod is up.
  */
-import type { CoverageHole, FlagCode, FrameSettings, MatchBudget, ReportFrame, ReportPair, ReportStation, SequenceGeometry, Verdict } from './report.js';
+import type { CoverageHole, FlagCode, FrameSettings, MatchBudget, ReportFrame, ReportPair, ReportStation, SequenceGeometry, SkippedFile, Verdict } from './report.js';
 import { fNumber, isoSpeed, millimetres, percent, shutterTime, signedEv } from './number-words.js';
 import { modalPattern, patternOf } from './stations.js';
 
@@ -24,7 +24,9 @@ export type PlanAction =
   /** Aim a frame at a hole in the coverage that lies between no two stations (a pole, a band between rows). */
   | 'fill-hole'
   /** Nothing certain to reshoot: look at the pairs or the stations named (parallax, the lens fit, a turn that misses itself). */
-  | 'look';
+  | 'look'
+  /** Files that could not be read (damaged, cut short, empty): copy them from the card again, or reshoot them. */
+  | 'copy-again';
 
 /** The exposure (and, where it drifted, the focal length and white balance) the rest of the sequence was shot at. */
 export interface PlanSettings {
@@ -444,6 +446,34 @@ export function reshootPlan(source: PlanSource, sequence: number | null = null, 
     });
   }
   return out;
+}
+
+/**
+ * The files of a folder that could not be read (damaged, cut short, empty, a read error), as the
+ * plan's first item: the quickest fix is a second copy from the card, and where the card's own copy
+ * is bad, the frame is still there to be shot again while the tripod stands. Copies, strays, files
+ * that are no picture and RAW files without a preview ask for nothing and are not in the plan.
+ */
+export function copyAgainPlan(skipped: readonly SkippedFile[]): PlanItem[] {
+  const bad = skipped.filter((s) => s.code === 'unreadable');
+  if (bad.length === 0) return [];
+  const why = [...new Set(bad.map((s) => s.reason.split(':')[0]))];
+  const names = andList(bad.map((s) => shortName(s.file)));
+  const them = bad.length === 1 ? 'it' : 'them';
+  return [
+    {
+      sequence: null,
+      optional: false,
+      action: 'copy-again',
+      stationIndices: [],
+      stationNumbers: [],
+      files: bad.map((s) => s.file),
+      reasons: [],
+      text: `${names}: could not be read (${why.join('; ')}). Copy ${them} from the card again; if the card's own copy is bad, reshoot ${them}.`,
+      settings: null,
+      aim: [],
+    },
+  ];
 }
 
 /** The plan as lines a person reads: what must be done first, then what is worth a look. */

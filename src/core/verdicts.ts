@@ -4,7 +4,7 @@ import { lensMisfitLimitPx } from './lens.js';
 import { reportSchema } from './report.js';
 import { modalPattern, patternOf } from './stations.js';
 import { blurredFrames } from './blur-verdict.js';
-import { reshootPlan } from './reshoot-plan.js';
+import { copyAgainPlan, reshootPlan } from './reshoot-plan.js';
 import { degrees, fNumber, isoSpeed, millimetres, percent as pct, shutterTime, signedEv } from './number-words.js';
 
 const rank: Record<Verdict, number> = { ok: 0, weak: 1, reshoot: 2 };
@@ -193,7 +193,7 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
     holes: parts.flatMap((r) => r.holes ?? []),
     coverageNotes: parts.flatMap((r) => r.coverageNotes ?? []),
     // Each sequence's plan again, saying its sequence, with stations counted across the card.
-    plan: parts.flatMap((r, k) => reshootPlan({ ...r, budget }, sequences[k].index, offsets[k])),
+    plan: [...copyAgainPlan(analysis.skipped), ...parts.flatMap((r, k) => reshootPlan({ ...r, budget }, sequences[k].index, offsets[k]))],
     sequences: judged,
     singleShots,
   };
@@ -355,7 +355,7 @@ function judgeOne(analysis: Analysis, budget: MatchBudget): Report {
   });
   const verdicts = [...pairs.map((p) => p.verdict), ...frames.map((f) => f.verdict), ...stations.map((s) => s.verdict), ...holes.map((h) => h.verdict)];
   const problems = [...pairs.map((p) => p.verdict), ...frames.map((f) => f.verdict)];
-  const plan = reshootPlan({ frames, stations, pairs, holes, geometry: analysis.geometry, budget });
+  const plan = [...copyAgainPlan(analysis.skipped), ...reshootPlan({ frames, stations, pairs, holes, geometry: analysis.geometry, budget })];
   return {
     schema: reportSchema,
     // A file left out that the sequence may miss is worth a look; a RAW+JPEG twin, a copy or a stray is not.

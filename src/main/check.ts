@@ -233,7 +233,7 @@ export async function readCard(folder: string, options: Pick<CheckOptions, 'recu
   const signal = options.signal;
   const scan = await scanFolder(folder, options.recursive ?? false);
   const shots = oneFilePerShot(scan.files, options.prefer ?? 'jpeg');
-  const skipped: SkippedFile[] = [...scan.problems.map((p) => ({ file: p.name, code: 'unreadable' as const, reason: p.reason })), ...shots.skipped];
+  const skipped: SkippedFile[] = [...scan.problems.map((p) => ({ file: p.name, code: p.code, reason: p.reason })), ...shots.skipped];
   const read = await inOrder(shots.files, 8, (f) => readFileHeaders(f.path), signal);
   // A file whose head cannot be read (a read fault, cut short, no permission) is reported now, not decoded.
   read.forEach((r, i) => {

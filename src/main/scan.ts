@@ -24,20 +24,28 @@ export interface ScannedFile {
 export interface ScanResult {
   readonly files: ScannedFile[];
   /** Entries that could not be read (permissions, vanished, not a picture), with the reason in words. */
-  readonly problems: { name: string; reason: string }[];
+  readonly problems: ScanProblem[];
+}
+
+/** An entry not read: 'not-a-file' for what is no regular file (a folder, a pipe, a device, a link to nothing), else 'unreadable'. */
+export interface ScanProblem {
+  readonly name: string;
+  readonly code: 'unreadable' | 'not-a-file';
+  readonly reason: string;
 }
 
 /** Why a folder entry could not be read, in words, from what the system said; a link to nothing says where it leads. */
-async function problemOf(path: Buffer, err: unknown): Promise<string> {
+async function problemOf(path: Buffer, err: unknown): Promise<Omit<ScanProblem, 'name'>> {
   const code = (err as NodeJS.ErrnoException).code;
-  if (code === 'EACCES' || code === 'EPERM') return 'no permission to read it';
+  const unreadable = (reason: string) => ({ code: 'unreadable' as const, reason });
+  if (code === 'EACCES' || code === 'EPERM') return unreadable('no permission to read it');
   if (code === 'ENOENT' || code === 'ELOOP') {
     const target = await readlink(path).catch(() => null);
-    if (target !== null) return code === 'ELOOP' ? `it is a link that leads round in a loop (${target}): not read` : `it links to ${target}, which is not there: not read`;
+    if (target !== null) return { code: 'not-a-file', reason: code === 'ELOOP' ? `it is a link that leads round in a loop (${target}): not read` : `it links to ${target}, which is not there: not read` };
   }
-  if (code === 'ENOENT') return 'it went away during the check';
-  if (code === 'EIO') return 'read error: copy it from the card again';
-  return `cannot be read: ${code ?? (err as Error).message}`;
+  if (code === 'ENOENT') return unreadable('it went away during the check');
+  if (code === 'EIO') return unreadable('read error: copy it from the card again');
+  return unreadable(`cannot be read: ${code ?? (err as Error).message}`);
 }
 
 const slash = Buffer.from(sep);
@@ -51,7 +59,7 @@ const slash = Buffer.from(sep);
  */
 export async function scanFolder(folder: string, recursive: boolean): Promise<ScanResult> {
   const files: ScannedFile[] = [];
-  const problems: { name: string; reason: string }[] = [];
+  const problems: ScanProblem[] = [];
   const seen = new Set<string>();
   const walk = async (dir: Buffer, shownDir: string): Promise<void> => {
     const real = (await realpath(dir, { encoding: 'buffer' })).toString('latin1');
@@ -69,18 +77,18 @@ export async function scanFolder(folder: string, recursive: boolean): Promise<Sc
         if (e.isDirectory() || (e.isSymbolicLink() && recursive && (await stat(raw)).isDirectory())) {
           if (recursive) await walk(raw, name);
           // A folder named like a picture is said, not passed over: the photographer looks for it.
-          else if (image) problems.push({ name, reason: 'it is a folder, not a picture' });
+          else if (image) problems.push({ name, code: 'not-a-file', reason: 'it is a folder, not a picture' });
           continue;
         }
         if (!image) continue;
         // Never opened unless a regular file: a pipe would wait for ever, a device would be read.
         const st = await stat(raw);
-        if (st.isDirectory()) problems.push({ name, reason: 'it is a folder, not a picture' });
-        else if (!st.isFile()) problems.push({ name, reason: 'it is not a regular file (a pipe, a device or a socket): not read' });
+        if (st.isDirectory()) problems.push({ name, code: 'not-a-file', reason: 'it is a folder, not a picture' });
+        else if (!st.isFile()) problems.push({ name, code: 'not-a-file', reason: 'it is not a regular file (a pipe, a device or a socket): not read' });
         if (!st.isFile()) continue;
         files.push({ path: exact, name, size: st.size, mtimeMs: st.mtimeMs });
       } catch (err) {
-        problems.push({ name, reason: await problemOf(raw, err) });
+        problems.push({ name, ...(await problemOf(raw, err)) });
       }
     }
   };

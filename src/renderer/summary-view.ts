@@ -14,6 +14,13 @@ const overallWords: Record<Verdict, string> = {
   reshoot: 'Some frames need reshooting.',
 };
 
+/** The verdict in a sentence; a folder weak only for files it could not check says so, not "weak pairs". */
+function overallSentence(report: Report): string {
+  const nothingFlagged = report.counts.weak === 0 && report.counts.reshoot === 0 && (report.holes ?? []).every((h) => h.verdict === 'ok');
+  if (report.verdict === 'weak' && nothingFlagged && notChecked(report.skipped).length > 0) return 'Every pair and frame checked is fine, but some files could not be checked: look at them before you leave.';
+  return overallWords[report.verdict];
+}
+
 function stat(name: string, value: string, label: string, icon: SVGSVGElement | null = null, title: string | null = null): HTMLElement {
   return el('div', { class: `stat stat-${name}`, 'data-stat': name, ...(title ? { title } : {}) }, el('dt', {}, icon, label), el('dd', { class: 'numeral' }, value));
 }
@@ -68,7 +75,7 @@ export function renderSummary(report: Report, act: SummaryActions = {}): HTMLEle
       'div',
       { class: `overall overall-${report.verdict}`, 'data-verdict': report.verdict },
       verdictBadge(report.verdict, 44),
-      el('p', { class: 'overall-words' }, card ? `${cardWords(report)}.` : overallWords[report.verdict]),
+      el('p', { class: 'overall-words' }, card ? `${cardWords(report)}.` : overallSentence(report)),
       el('p', { class: 'folder', title: report.folder }, folderName),
     ),
     renderPlan(report),
