@@ -78,26 +78,30 @@ function garbledData(message: string): boolean {
  * A JPEG is decoded with libjpeg's warnings as errors, so that a picture garbled part way is named
  * as damaged, and one that stops before its end as cut short. libvips keeps one error text for all
  * its threads, so under load a failure may carry another decode's words, or only "Unknown error":
- * the words are trusted only when a second strict decode says the same. On any other warning (a
- * harmless one) the file is decoded again with errors alone failing.
+ * the words are trusted only when two strict decodes in a row say the same kind of thing (garbled,
+ * or a harmless warning), at most four tries. On a harmless warning the file is decoded again with
+ * errors alone failing.
  */
 async function strictThenLenient<T>(attempt: (failOn: 'warning' | 'error') => Promise<T>, whole: boolean): Promise<T> {
-  const strict = async (): Promise<{ value: T } | { message: string; err: unknown }> => {
+  let last: 'garbled' | 'harmless' | null = null;
+  for (let tries = 0; tries < 4; tries++) {
+    let message: string;
     try {
-      return { value: await attempt('warning') };
+      return await attempt('warning');
     } catch (err) {
-      return { message: err instanceof Error ? err.message : String(err), err };
+      message = err instanceof Error ? err.message : String(err);
+      if (/pixel limit|timeout/i.test(message)) throw err;
+      if (!whole) throw new Error('Premature end of JPEG file: the file stops before its picture does', { cause: err });
+      if (/^\s*unknown error\s*$/i.test(message)) continue;
+      const kind = garbledData(message) ? 'garbled' : 'harmless';
+      if (kind === last) {
+        if (kind === 'garbled') throw err;
+        break;
+      }
+      last = kind;
     }
-  };
-  const first = await strict();
-  if ('value' in first) return first.value;
-  if (/pixel limit|timeout/i.test(first.message)) throw first.err;
-  if (!whole) throw new Error('Premature end of JPEG file: the file stops before its picture does');
-  if (garbledData(first.message)) {
-    const second = await strict();
-    if ('value' in second) return second.value;
-    if (garbledData(second.message)) throw second.err;
   }
+  if (last === 'garbled') throw new Error('Corrupt JPEG data: the picture is garbled part way (libjpeg said so once, then its words were lost)');
   return lenient(attempt);
 }
 
