@@ -1,11 +1,13 @@
 import { stat } from 'node:fs/promises';
 import { resolve } from 'node:path';
 import { parseArgs } from 'node:util';
-import { resolveBudget } from '../core/budget.js';
+import type { NumericBudgetKey } from '../core/budget.js';
+import { budgetAsTyped, budgetFromTyped, budgetKeys, percentBudgetKeys } from '../core/budget.js';
 import { reportToCsv, tiePointsToCsv } from '../core/exports/csv.js';
 import { reportToDot } from '../core/exports/dot.js';
 import { reportToGraphml } from '../core/exports/graphml.js';
-import type { Report } from '../core/report.js';
+import type { MatchBudget, Report } from '../core/report.js';
+import { defaultBudget } from '../core/report.js';
 import { judge } from '../core/verdicts.js';
 import { commandLineThreads, defaultMaxSide } from './check.js';
 import { checkCard } from './card-check.js';
@@ -13,7 +15,7 @@ import { sequenceReport } from '../core/sequence-report.js';
 import { isCardLayout } from './scan.js';
 import { coverageMapContent, coverageMapFormat } from './coverage-map-file.js';
 import { createFeatureCache } from './feature-cache.js';
-import { readSettings } from './settings.js';
+import { readSettingsFile, settingsBudget } from './settings.js';
 import { forTerminal, progressLine, formatSummary } from './summary.js';
 import { expectExportTarget, writeFileAtomic } from './write-file.js';
 
@@ -45,11 +47,14 @@ Options:
   --force                  overwrite existing output files (regular files only; nothing is ever
                            written inside the checked folder)
   --no-cache               analyse every frame again (the cache lives in the user's cache folder)
-  --settings FILE          settings file (default: the user settings file, if present)
+  --settings FILE          settings file (default: the user settings file, if present); its budget
+                           as below, overlaps in percent too. The command says which file it used
+                           and which of its values differ from the defaults
+  --no-progress            no progress line (there is none either when stderr is not a terminal)
 Match budget (also in the settings file under "budget"):
   --min-inliers N          fewest inliers for an ok pair (default 20)
-  --reshoot-overlap PCT    reshoot a pair under this overlap, percent (default 20)
-  --weak-overlap PCT       weak under this overlap, percent (default 30)
+  --reshoot-overlap PCT    reshoot a pair under this overlap, in percent: 20, not 0.2 (default 20)
+  --weak-overlap PCT       weak under this overlap, in percent (default 30)
   --max-ev EV              largest exposure difference between neighbours (default 0.5)
   --min-sharpness R        blurred below this share of its neighbours' sharpness (default 0.65)
   --max-bracket-shift PX   largest bracket frame shift, full-resolution px (default 4)
@@ -66,7 +71,22 @@ export interface CheckCommandDeps {
   readonly demoFolder?: () => Promise<string>;
 }
 
-const percent = (v: string | undefined): number | undefined => (v === undefined ? undefined : Number(v.replace(/%$/, '')) / 100);
+/** The command's option for each budget field. */
+const budgetOptions = {
+  minInliers: 'min-inliers', reshootOverlap: 'reshoot-overlap', weakOverlap: 'weak-overlap', maxEvDiff: 'max-ev',
+  minSharpnessRatio: 'min-sharpness', maxBracketShiftPx: 'max-bracket-shift', fullSphere: 'full-sphere',
+} as const satisfies Record<keyof MatchBudget, string>;
+
+/** One line on where the budget came from: the settings file, and which of its values differ from the defaults. */
+export function budgetSourceLine(file: string, fileBudget: Record<string, unknown>): string {
+  const defaults = budgetAsTyped(defaultBudget);
+  // The file's values were checked with the rest of the budget: numbers, or words for them ("35 %", "true").
+  const value = (v: unknown): number | boolean => (typeof v === 'string' ? (v === 'true' ? true : v === 'false' ? false : Number(v.trim().replace(/\s*%$/, ''))) : (v as number | boolean));
+  const differ = budgetKeys
+    .filter((k) => fileBudget[k] !== undefined && value(fileBudget[k]) !== defaults[k])
+    .map((k) => `${k} ${value(fileBudget[k])}${percentBudgetKeys.includes(k as NumericBudgetKey) ? ' %' : ''} (default ${defaults[k]}${percentBudgetKeys.includes(k as NumericBudgetKey) ? ' %' : ''})`);
+  return `Settings from ${file}: ${differ.length ? differ.join(', ') : 'the default budget'}\n`;
+}
 
 export async function checkCommand(args: string[], deps: CheckCommandDeps = {}): Promise<number> {
   let parsed;
@@ -101,28 +121,26 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
     if (!Number.isInteger(n) || n < min) throw new TypeError(`Expected a whole number of at least ${min} for --${name} but received ${value}`);
     return n;
   };
+  let settingsNote = '';
   let budget, size: number, threads: number | undefined, prefer: 'jpeg' | 'raw' | undefined;
   try {
     size = whole('size', v.size, 64) ?? defaultMaxSide;
     threads = whole('threads', v.threads, 0);
     if (v['coverage-map']) coverageMapFormat(v['coverage-map']);
     if (v.prefer !== undefined && v.prefer !== 'jpeg' && v.prefer !== 'raw') throw new TypeError(`Expected jpeg or raw for --prefer but received ${v.prefer}`);
-    const settings = await readSettings(v.settings);
+    const { settings, file } = await readSettingsFile(v.settings);
     prefer = (v.prefer as 'jpeg' | 'raw' | undefined) ?? settings.prefer;
-    budget = resolveBudget(settings.budget ?? {}, {
-      minInliers: v['min-inliers'],
-      reshootOverlap: percent(v['reshoot-overlap']),
-      weakOverlap: percent(v['weak-overlap']),
-      maxEvDiff: v['max-ev'],
-      minSharpnessRatio: v['min-sharpness'],
-      maxBracketShiftPx: v['max-bracket-shift'],
-      // Only a flag given says so: its absence leaves the settings file's declaration standing.
-      fullSphere: v['full-sphere'] ? true : undefined,
-    });
+    const typed = Object.fromEntries(budgetKeys.map((k) => [k, v[budgetOptions[k]]]));
+    // Only a flag given says so: its absence leaves the settings file's declaration standing.
+    typed.fullSphere = v['full-sphere'] ? true : undefined;
+    budget = budgetFromTyped(settingsBudget(settings, file ?? v.settings ?? ''), { values: typed, name: (k) => `--${budgetOptions[k]}` });
+    if (file) settingsNote = budgetSourceLine(file, settings.budget ?? {});
   } catch (err) {
     process.stderr.write(`seamscout: ${forTerminal((err as Error).message)}\n`);
     return 2;
   }
+
+  process.stderr.write(settingsNote);
 
   let folder: string;
   if (positionals.length === 1) folder = resolve(positionals[0]);
