@@ -13,11 +13,12 @@ import { commandLineThreads, defaultMaxSide } from './check.js';
 import { checkCard } from './card-check.js';
 import { sequenceReport } from '../core/sequence-report.js';
 import { isCardLayout } from './scan.js';
-import { coverageMapContent, coverageMapFormat } from './coverage-map-file.js';
+import { NoCoverageMap, coverageMapContent, coverageMapFormat } from './coverage-map-file.js';
 import { createFeatureCache } from './feature-cache.js';
 import { readSettingsFile, settingsBudget } from './settings.js';
 import { forTerminal, progressLine, formatSummary } from './summary.js';
 import { expectExportTarget, writeFileAtomic } from './write-file.js';
+import { plainArgumentError } from './argument-words.js';
 
 export const checkUsage = `Usage: seamscout check [folder] [options]
 
@@ -63,7 +64,10 @@ Match budget (also in the settings file under "budget"):
                            an open pole is only a note, unless a frame is aimed above 60 degrees
                            of pitch (zenith) or below -60 (nadir)
 
-Exit status: 0 all ok, 1 something flagged, 2 usage error or unreadable folder.
+Exit status: 0 all ok; 1 something flagged (or too little to judge, such as a single frame);
+2 nothing checked or an output not written: a usage error, a folder that cannot be read or holds
+no image files, or an output file that cannot be written (a coverage map that cannot be drawn,
+for frames that could not be placed, is only a note).
 `;
 
 export interface CheckCommandDeps {
@@ -103,7 +107,7 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
       },
     });
   } catch (err) {
-    process.stderr.write(`${(err as Error).message}\n\n${checkUsage}`);
+    process.stderr.write(`seamscout: ${forTerminal(plainArgumentError(err, 'check', args))}\n`);
     return 2;
   }
   const { values: v, positionals } = parsed;
@@ -198,7 +202,9 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
     return 2;
   }
   if (report.frames.length === 0 && report.skipped.length === 0) {
+    // Nothing was checked: no verdict to give, nothing to write.
     process.stderr.write(`seamscout: no image files in ${forTerminal(folder)}\n`);
+    return 2;
   }
   process.stdout.write(formatSummary(report));
 
@@ -223,6 +229,12 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
       await writeFileAtomic(resolve(path), await make(), { overwrite: v.force ?? false, outside: folder });
       process.stderr.write(`wrote ${forTerminal(path)}\n`);
     } catch (err) {
+      if (err instanceof NoCoverageMap) {
+        // A set that could not be placed (no focal length, no pair between stations) is answered by
+        // the check's verdict; the missing map is a note, not a failure of the command.
+        process.stderr.write(`note: ${forTerminal(path)} not written: ${err.message.replace(/^no coverage map: /, '')}\n`);
+        continue;
+      }
       process.stderr.write(`seamscout: ${forTerminal((err as Error).message)}\n`);
       failed = true;
     }

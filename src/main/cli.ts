@@ -4,8 +4,10 @@ import { exposureDifference } from '../core/exposure.js';
 import { detectAndDescribe } from '../core/features.js';
 import { estimatePairGeometry } from '../core/pair-geometry.js';
 import { checkCommand, checkUsage } from './check-command.js';
+import type { DecodedFrame } from './decode.js';
 import { decodeForAnalysis } from './decode.js';
-import { demoCommand } from './demo-command.js';
+import { demoCommand, demoUsage } from './demo-command.js';
+import { plainArgumentError, plainFileError } from './argument-words.js';
 import { ensureDemoShoot } from './demo-shoot.js';
 import { forTerminal, progressLine } from './summary.js';
 
@@ -17,10 +19,32 @@ const usage = `Usage:
 
 ${checkUsage}`;
 
+const pairUsage = `Usage: seamscout pair <frameA> <frameB> [options]
+
+Matches two frames and prints matches, inliers, overlap, EV difference and the fit's error.
+
+Options:
+  --size N                 longest side of the analysis image in px (default 1500)
+  --help                   this text
+
+Exit status: 0 matched; 1 no model found; 2 a usage error or a frame that cannot be read.
+`;
+
 async function pairCommand(args: string[]): Promise<number> {
-  const { values, positionals } = parseArgs({ args, allowPositionals: true, options: { size: { type: 'string', default: '1500' } } });
+  let parsed;
+  try {
+    parsed = parseArgs({ args, allowPositionals: true, options: { size: { type: 'string', default: '1500' }, help: { type: 'boolean' } } });
+  } catch (err) {
+    process.stderr.write(`seamscout: ${forTerminal(plainArgumentError(err, 'pair', args))}\n`);
+    return 2;
+  }
+  const { values, positionals } = parsed;
+  if (values.help) {
+    process.stdout.write(pairUsage);
+    return 0;
+  }
   if (positionals.length !== 2) {
-    process.stderr.write(`Expected two frames for pair but received ${positionals.length}\n\n${usage}`);
+    process.stderr.write(`Expected two frames for pair but received ${positionals.length}\n\n${pairUsage}`);
     return 2;
   }
   const size = Number(values.size);
@@ -29,7 +53,10 @@ async function pairCommand(args: string[]): Promise<number> {
     return 2;
   }
   const [pa, pb] = positionals;
-  const [a, b] = await Promise.all([decodeForAnalysis(pa, size), decodeForAnalysis(pb, size)]);
+  const decoded = (path: string): Promise<DecodedFrame> => decodeForAnalysis(path, size).catch((err: unknown) => {
+    throw new Error(plainFileError(err, path, 'an image file', 'pair'), { cause: err });
+  });
+  const [a, b] = await Promise.all([decoded(pa), decoded(pb)]);
   const g = estimatePairGeometry(detectAndDescribe(a.image), detectAndDescribe(b.image));
   const ev = g.homography ? exposureDifference(a.image, b.image, g.homography) : null;
   const pct = (v: number | null): string => (v === null ? 'n/a' : `${(100 * v).toFixed(1)} %`);
@@ -59,7 +86,13 @@ function demoFolder(): Promise<string> {
 export async function main(argv: string[]): Promise<number> {
   const [command, ...rest] = argv;
   if (!command || command === '--help' || command === 'help') {
-    process.stdout.write(usage);
+    const topic = command === 'help' ? rest[0] : undefined;
+    const topics: Record<string, string> = { check: checkUsage, demo: demoUsage, pair: pairUsage };
+    if (topic !== undefined && !(topic in topics)) {
+      process.stderr.write(`Expected a command (check, demo, pair) for help but received ${forTerminal(topic)}\n`);
+      return 2;
+    }
+    process.stdout.write(topic ? topics[topic] : usage);
     return command ? 0 : 2;
   }
   try {
