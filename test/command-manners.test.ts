@@ -1,6 +1,6 @@
 // The command's manners: each command's help, plain messages, and exit codes that mean what the
 // help says (0 all ok, 1 flagged or too little to judge, 2 nothing checked or an output not written).
-import { copyFileSync, mkdirSync } from 'node:fs';
+import { chmodSync, copyFileSync, mkdirSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { externalFixture } from './helpers/images.js';
@@ -67,5 +67,31 @@ describe('plain messages and exit codes', () => {
     expect(r.code).toBe(1);
     expect(r.stderr).toContain(`note: ${join(dir, 'map.svg')} not written: the frames could not be placed`);
     expect(r.stderr).toContain(`wrote ${join(dir, 'r.json')}`);
+  });
+});
+
+describe('output paths are checked before the analysis', () => {
+  const dir = tempDir();
+  const photos = join(dir, 'photos');
+  mkdirSync(photos);
+  copyFileSync(externalFixture('leuvenA.jpg'), join(photos, 'a.jpg'));
+
+  it('an output into a folder that does not exist: said plainly, exit 2, nothing analysed', async () => {
+    const target = join(dir, 'no-such-folder', 'r.json');
+    const r = await runCli(['check', photos, '--json', target]);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toBe(`seamscout: Cannot write ${target}: its folder ${join(dir, 'no-such-folder')} does not exist\n`);
+    expect(r.stdout).toBe('');
+  });
+
+  it('an output into a folder the user may not write: said plainly, exit 2 (run as user nobody: root may write anywhere)', async () => {
+    const locked = join(dir, 'locked');
+    mkdirSync(locked, { mode: 0o755 });
+    for (const p of [dir, photos, join(photos, 'a.jpg')]) chmodSync(p, 0o755);
+    const target = join(locked, 'r.json');
+    const r = await runCli(['check', photos, '--no-cache', '--json', target], {}, 65534);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toBe(`seamscout: Cannot write ${target}: no permission to write in ${locked}\n`);
+    expect(r.stdout).toBe('');
   });
 });
