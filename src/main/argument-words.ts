@@ -29,6 +29,9 @@ export function plainFileError(err: unknown, path: string, what: string, command
     code === 'EACCES' || code === 'EPERM' ? 'not allowed to read it' :
     code === 'EISDIR' ? 'a folder, not a file' :
     code === 'EIO' ? 'the card or disk could not be read there' :
+    code === 'ENOTREGULAR' ? 'not a regular file but a pipe, a device or a socket, so not read' :
+    code === 'EFBIG' ? 'too large to read' :
+    code === 'ESHORTREAD' ? 'the file ended before its size promised' :
     code ? 'it could not be read' : 'not an image this program can read';
   return `Expected ${what} for ${command} but received ${path} (${why})`;
 }
