@@ -41,7 +41,11 @@ Options:
   --graphml FILE           write the pair graph as GraphML
   --csv FILE               write one row per pair (RFC 4180)
   --dot FILE               write the pair graph in the DOT language
-  --tie-points FILE        write the inlier correspondences (CSV: a,b,xa,ya,xb,yb, full-resolution px)
+  --tie-points FILE        write each pair's tie points (CSV: a,b,xa,ya,xb,yb, full-resolution px):
+                           the points its homography is finally fitted to, up to 300 of a's corners
+                           in the overlap each found in b by its appearance. Not the matches the
+                           inlier count reports (those are fewer); where that refinement fails,
+                           the inlier matches themselves
   --coverage-map FILE      write the coverage map: every frame's footprint on the sphere around the
                            camera and what no frame sees (.svg, or .png); on a card of several
                            sequences, one file each, numbered (map-1.svg, map-2.svg, ...)
