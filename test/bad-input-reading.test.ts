@@ -304,7 +304,7 @@ describe('names, permissions and paths that are no regular file', () => {
     const r = await seamscout(['pair', fifo, good()[0]], { timeoutMs: 20_000 });
     expect(r.signal).toBeNull();
     expect(r.code).toBe(2);
-    expect(r.stderr).toMatch(/pipe\.jpg is not a regular file/);
+    expect(r.stderr).toMatch(/pipe\.jpg \(not a regular file/);
     const c = await seamscout(['check', fifo], { timeoutMs: 20_000 });
     expect(c.signal).toBeNull();
     expect(c.code).toBe(2);

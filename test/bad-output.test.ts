@@ -255,9 +255,10 @@ describe("the app's exports (both shells call the service)", () => {
   });
 
   it('refuses a budget that is not one ({minInliers: "lots"}), naming the field as the budget panel does', () => {
-    expect(() => service.exportReport(id, 'json', { minInliers: 'lots' })).toThrow('Expected a number from 0 to 10000 for the fewest inliers (minInliers) but received "lots"');
-    expect(() => service.exportReport(id, 'json', { weakOverlap: 0.1, reshootOverlap: 0.2 })).toThrow('Expected the reshoot below overlap (0.2) not above the weak below overlap (0.1)');
-    expect(() => service.exportReport(id, 'json', { lots: 3 })).toThrow(/Expected a match budget field \(one of minInliers, .*\) but received lots/);
+    expect(() => service.exportReport(id, 'json', { minInliers: 'lots' })).toThrow('Expected a number from 0 to 10000 for the fewest inliers but received lots');
+    expect(() => service.exportReport(id, 'json', { weakOverlap: 0.1, reshootOverlap: 0.2 })).toThrow('Expected the reshoot below overlap (20 %) not above the weak below overlap (10 %)');
+    expect(() => service.exportReport(id, 'json', { weakOverlap: 1.5 })).toThrow('Expected a percentage from 0 to 100 for the weak below overlap but received 150');
+    expect(() => service.exportReport(id, 'json', { lots: 3 })).toThrow(/Expected a match budget field \(the fewest inliers, .*\) but received "lots"/);
     expect(() => service.exportReport(id, 'json', 'strict')).toThrow('Expected a match budget (its thresholds by name) for budget but received "strict"');
     const { text } = service.exportReport(id, 'json', { minInliers: '35' });
     const report = JSON.parse(text);

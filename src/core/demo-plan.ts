@@ -118,7 +118,9 @@ export interface PlannedStation {
 export interface PlannedProblem {
   readonly code: DemoProblemCode;
   readonly frames: readonly string[];
+  /** Station indices, from 0 as `PlannedStation.index`. */
   readonly stations: readonly number[];
+  /** For a person: stations numbered from 1, as the check's output numbers them. */
   readonly detail: string;
 }
 
@@ -327,7 +329,7 @@ export function planDemoShoot(options: Partial<DemoPlanOptions> = {}): DemoPlan 
     for (let k = 0; k < frames.length; k++) if (frames[k].station === vs) frames[k] = { ...frames[k], visitor };
     problems.push({
       code: 'movement', frames: [ref(vs).file, ref(vs + 1).file], stations: [vs, vs + 1],
-      detail: `A figure stands in the overlap of stations ${vs} and ${vs + 1} (yaw ${round(visitor.yawDeg, 1)} degrees, pitch ${visitor.pitchDeg}) in station ${vs}'s frames only: it walked off before station ${vs + 1} was shot.`,
+      detail: `A figure stands in the overlap of stations ${vs + 1} and ${vs + 2} (yaw ${round(visitor.yawDeg, 1)} degrees, pitch ${visitor.pitchDeg}) in station ${vs + 1}'s frames only: it walked off before station ${vs + 2} was shot.`,
     });
   }
   const time = (t: number): string => (t >= 1 ? `${round(t, 2)} s` : `1/${round(1 / t, 1)} s`);
@@ -338,29 +340,29 @@ export function planDemoShoot(options: Partial<DemoPlanOptions> = {}): DemoPlan 
     const ov = overlapRegions(h, o.width, o.height, o.width, o.height).overlap;
     problems.push({
       code: 'low-overlap', frames: [a.file, b.file], stations: [g, g + 1],
-      detail: `Stations ${g} and ${g + 1} overlap by only ${round(100 * ov, 1)} %: the camera turned ${round(gapStep, 1)} degrees between them, against about ${round(regular, 1)} degrees elsewhere.`,
+      detail: `Stations ${g + 1} and ${g + 2} overlap by only ${round(100 * ov, 1)} %: the camera turned ${round(gapStep, 1)} degrees between them, against about ${round(regular, 1)} degrees elsewhere.`,
     });
     const j = at['exposure-jump']!;
     const jf = frames.filter((f) => f.station === j);
     problems.push({
       code: 'exposure-jump', frames: jf.map((f) => f.file), stations: [j],
-      detail: `Station ${j} is exposed ${jumpEv} EV brighter than the others (auto-exposure jumped): its 0 EV frame took ${time(ref(j).exposureTime)} instead of ${time(demoBaseExposureTime)} at the same aperture and ISO.`,
+      detail: `Station ${j + 1} is exposed ${jumpEv} EV brighter than the others (auto-exposure jumped): its 0 EV frame took ${time(ref(j).exposureTime)} instead of ${time(demoBaseExposureTime)} at the same aperture and ISO.`,
     });
     const bl = ref(at.blurred!);
     problems.push({
       code: 'blurred', frames: [bl.file], stations: [bl.station],
-      detail: `${bl.file} (station ${bl.station}, 0 EV) is smeared by ${bl.blurPx} px of horizontal motion blur.`,
+      detail: `${bl.file} (station ${bl.station + 1}, 0 EV) is smeared by ${bl.blurPx} px of horizontal motion blur.`,
     });
     const ib = at['incomplete-bracket']!;
     problems.push({
       code: 'incomplete-bracket', frames: frames.filter((f) => f.station === ib).map((f) => f.file), stations: [ib],
-      detail: `Station ${ib} has ${demoBracket.length - 1} of ${demoBracket.length} bracket frames: the +2 EV frame is missing.`,
+      detail: `Station ${ib + 1} has ${demoBracket.length - 1} of ${demoBracket.length} bracket frames: the +2 EV frame is missing.`,
     });
     const d = at['bracket-drift']!;
     const df = frames.find((f) => f.station === d && f.evBias === -2)!;
     problems.push({
       code: 'bracket-drift', frames: [df.file, ref(d).file], stations: [d],
-      detail: `${df.file} (station ${d}, -2 EV) is turned ${driftYawDeg} degrees in yaw and ${driftPitchDeg} in pitch against the station's 0 EV frame ${ref(d).file} (hand-held).`,
+      detail: `${df.file} (station ${d + 1}, -2 EV) is turned ${driftYawDeg} degrees in yaw and ${driftPitchDeg} in pitch against the station's 0 EV frame ${ref(d).file} (hand-held).`,
     });
   }
 

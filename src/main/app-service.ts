@@ -1,6 +1,6 @@
 import { realpath } from 'node:fs/promises';
 import { isAbsolute, relative, resolve, sep } from 'node:path';
-import { resolveBudget } from '../core/budget.js';
+import { budgetFromTyped, pageBudget } from '../core/budget.js';
 import { cardCoverageMapSvg } from '../core/card-coverage-map.js';
 import { reportToCsv } from '../core/exports/csv.js';
 import { reportToDot } from '../core/exports/dot.js';
@@ -44,35 +44,16 @@ export interface AppServiceOptions {
   readonly onPartial?: (e: CheckPartialEvent) => void;
 }
 
-// The budget's fields as the budget panel names them (src/renderer/budget-panel.ts), for messages.
-const budgetWords: Record<string, string> = {
-  minInliers: 'fewest inliers',
-  reshootOverlap: 'reshoot below overlap',
-  weakOverlap: 'weak below overlap',
-  maxEvDiff: 'largest EV step',
-  minSharpnessRatio: 'blur: lowest sharpness share',
-  maxBracketShiftPx: 'largest bracket shift',
-  fullSphere: 'full sphere',
-};
-
 /**
  * A match budget sent by the page (either shell), checked before anything is judged or written by
- * it: a complete budget, or an error naming the field as the budget panel does ("Expected a number
- * from 0 to 10000 for the fewest inliers (minInliers) but received "lots"").
+ * it: a complete budget, or an error naming the field as the budget panel does, in its units
+ * ("Expected a percentage from 0 to 100 for the weak below overlap but received 150").
  */
 export function expectBudget(budget: unknown): MatchBudget {
   if (typeof budget !== 'object' || budget === null || Array.isArray(budget)) {
     throw new TypeError(`Expected a match budget (its thresholds by name) for budget but received ${JSON.stringify(budget) ?? String(budget)}`);
   }
-  try {
-    return resolveBudget(budget as Record<string, unknown>);
-  } catch (err) {
-    const message = (err as Error).message
-      .replace(/for (\w+) but received/, (all, key: string) => (budgetWords[key] ? `for the ${budgetWords[key]} (${key}) but received` : all))
-      .replace(/^Expected one of (.*) but received (.*)$/, 'Expected a match budget field (one of $1) but received $2')
-      .replace(/^Expected reshootOverlap \((.*)\) not above weakOverlap \((.*)\)$/, 'Expected the reshoot below overlap ($1) not above the weak below overlap ($2)');
-    throw new TypeError(message, { cause: err });
-  }
+  return budgetFromTyped(pageBudget(budget as Record<string, unknown>));
 }
 
 /** Text of an export of a report, and the file name to suggest for it. */

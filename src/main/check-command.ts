@@ -1,21 +1,24 @@
 import { stat } from 'node:fs/promises';
 import { resolve } from 'node:path';
 import { parseArgs } from 'node:util';
-import { resolveBudget } from '../core/budget.js';
+import type { NumericBudgetKey } from '../core/budget.js';
+import { budgetAsTyped, budgetFromTyped, budgetKeys, percentBudgetKeys } from '../core/budget.js';
 import { reportToCsv, tiePointsToCsv } from '../core/exports/csv.js';
 import { reportToDot } from '../core/exports/dot.js';
 import { reportToGraphml } from '../core/exports/graphml.js';
-import type { Report } from '../core/report.js';
+import type { MatchBudget, Report } from '../core/report.js';
+import { defaultBudget } from '../core/report.js';
 import { judge } from '../core/verdicts.js';
 import { commandLineThreads, defaultMaxSide } from './check.js';
 import { checkCard } from './card-check.js';
 import { sequenceReport } from '../core/sequence-report.js';
 import { isCardLayout } from './scan.js';
-import { coverageMapContent, coverageMapFormat } from './coverage-map-file.js';
+import { NoCoverageMap, coverageMapContent, coverageMapFormat } from './coverage-map-file.js';
 import { createFeatureCache } from './feature-cache.js';
-import { readSettings } from './settings.js';
+import { readSettingsFile, settingsBudget } from './settings.js';
 import { forTerminal, progressLine, formatSummary } from './summary.js';
 import { expectExportTarget, writeFileAtomic } from './write-file.js';
+import { plainArgumentError } from './argument-words.js';
 
 export const checkUsage = `Usage: seamscout check [folder] [options]
 
@@ -38,18 +41,25 @@ Options:
   --graphml FILE           write the pair graph as GraphML
   --csv FILE               write one row per pair (RFC 4180)
   --dot FILE               write the pair graph in the DOT language
-  --tie-points FILE        write the inlier correspondences (CSV: a,b,xa,ya,xb,yb, full-resolution px)
+  --tie-points FILE        write each pair's tie points (CSV: a,b,xa,ya,xb,yb, full-resolution px):
+                           the points its homography is finally fitted to, up to 300 of a's corners
+                           in the overlap each found in b by its appearance. Not the matches the
+                           inlier count reports (those are fewer); where that refinement fails,
+                           the inlier matches themselves
   --coverage-map FILE      write the coverage map: every frame's footprint on the sphere around the
                            camera and what no frame sees (.svg, or .png); on a card of several
                            sequences, one file each, numbered (map-1.svg, map-2.svg, ...)
   --force                  overwrite existing output files (regular files only; nothing is ever
                            written inside the checked folder)
   --no-cache               analyse every frame again (the cache lives in the user's cache folder)
-  --settings FILE          settings file (default: the user settings file, if present)
+  --settings FILE          settings file (default: the user settings file, if present); its budget
+                           as below, overlaps in percent too. The command says which file it used
+                           and which of its values differ from the defaults
+  --no-progress            no progress line (there is none either when stderr is not a terminal)
 Match budget (also in the settings file under "budget"):
   --min-inliers N          fewest inliers for an ok pair (default 20)
-  --reshoot-overlap PCT    reshoot a pair under this overlap, percent (default 20)
-  --weak-overlap PCT       weak under this overlap, percent (default 30)
+  --reshoot-overlap PCT    reshoot a pair under this overlap, in percent: 20, not 0.2 (default 20)
+  --weak-overlap PCT       weak under this overlap, in percent (default 30)
   --max-ev EV              largest exposure difference between neighbours (default 0.5)
   --min-sharpness R        blurred below this share of its neighbours' sharpness (default 0.65)
   --max-bracket-shift PX   largest bracket frame shift, full-resolution px (default 4)
@@ -58,7 +68,10 @@ Match budget (also in the settings file under "budget"):
                            an open pole is only a note, unless a frame is aimed above 60 degrees
                            of pitch (zenith) or below -60 (nadir)
 
-Exit status: 0 all ok, 1 something flagged, 2 usage error or unreadable folder.
+Exit status: 0 all ok; 1 something flagged (or too little to judge, such as a single frame);
+2 nothing checked or an output not written: a usage error, a folder that cannot be read or holds
+no image files, or an output file that cannot be written (a coverage map that cannot be drawn,
+for frames that could not be placed, is only a note).
 `;
 
 export interface CheckCommandDeps {
@@ -66,7 +79,22 @@ export interface CheckCommandDeps {
   readonly demoFolder?: () => Promise<string>;
 }
 
-const percent = (v: string | undefined): number | undefined => (v === undefined ? undefined : Number(v.replace(/%$/, '')) / 100);
+/** The command's option for each budget field. */
+const budgetOptions = {
+  minInliers: 'min-inliers', reshootOverlap: 'reshoot-overlap', weakOverlap: 'weak-overlap', maxEvDiff: 'max-ev',
+  minSharpnessRatio: 'min-sharpness', maxBracketShiftPx: 'max-bracket-shift', fullSphere: 'full-sphere',
+} as const satisfies Record<keyof MatchBudget, string>;
+
+/** One line on where the budget came from: the settings file, and which of its values differ from the defaults. */
+export function budgetSourceLine(file: string, fileBudget: Record<string, unknown>): string {
+  const defaults = budgetAsTyped(defaultBudget);
+  // The file's values were checked with the rest of the budget: numbers, or words for them ("35 %", "true").
+  const value = (v: unknown): number | boolean => (typeof v === 'string' ? (v === 'true' ? true : v === 'false' ? false : Number(v.trim().replace(/\s*%$/, ''))) : (v as number | boolean));
+  const differ = budgetKeys
+    .filter((k) => fileBudget[k] !== undefined && value(fileBudget[k]) !== defaults[k])
+    .map((k) => `${k} ${value(fileBudget[k])}${percentBudgetKeys.includes(k as NumericBudgetKey) ? ' %' : ''} (default ${defaults[k]}${percentBudgetKeys.includes(k as NumericBudgetKey) ? ' %' : ''})`);
+  return `Settings from ${file}: ${differ.length ? differ.join(', ') : 'the default budget'}\n`;
+}
 
 export async function checkCommand(args: string[], deps: CheckCommandDeps = {}): Promise<number> {
   let parsed;
@@ -83,7 +111,7 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
       },
     });
   } catch (err) {
-    process.stderr.write(`${(err as Error).message}\n\n${checkUsage}`);
+    process.stderr.write(`seamscout: ${forTerminal(plainArgumentError(err, 'check', args))}\n`);
     return 2;
   }
   const { values: v, positionals } = parsed;
@@ -101,28 +129,26 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
     if (!Number.isInteger(n) || n < min) throw new TypeError(`Expected a whole number of at least ${min} for --${name} but received ${value}`);
     return n;
   };
+  let settingsNote = '';
   let budget, size: number, threads: number | undefined, prefer: 'jpeg' | 'raw' | undefined;
   try {
     size = whole('size', v.size, 64) ?? defaultMaxSide;
     threads = whole('threads', v.threads, 0);
     if (v['coverage-map']) coverageMapFormat(v['coverage-map']);
     if (v.prefer !== undefined && v.prefer !== 'jpeg' && v.prefer !== 'raw') throw new TypeError(`Expected jpeg or raw for --prefer but received ${v.prefer}`);
-    const settings = await readSettings(v.settings);
+    const { settings, file } = await readSettingsFile(v.settings);
     prefer = (v.prefer as 'jpeg' | 'raw' | undefined) ?? settings.prefer;
-    budget = resolveBudget(settings.budget ?? {}, {
-      minInliers: v['min-inliers'],
-      reshootOverlap: percent(v['reshoot-overlap']),
-      weakOverlap: percent(v['weak-overlap']),
-      maxEvDiff: v['max-ev'],
-      minSharpnessRatio: v['min-sharpness'],
-      maxBracketShiftPx: v['max-bracket-shift'],
-      // Only a flag given says so: its absence leaves the settings file's declaration standing.
-      fullSphere: v['full-sphere'] ? true : undefined,
-    });
+    const typed = Object.fromEntries(budgetKeys.map((k) => [k, v[budgetOptions[k]]]));
+    // Only a flag given says so: its absence leaves the settings file's declaration standing.
+    typed.fullSphere = v['full-sphere'] ? true : undefined;
+    budget = budgetFromTyped(settingsBudget(settings, file ?? v.settings ?? ''), { values: typed, name: (k) => `--${budgetOptions[k]}` });
+    if (file) settingsNote = budgetSourceLine(file, settings.budget ?? {});
   } catch (err) {
     process.stderr.write(`seamscout: ${forTerminal((err as Error).message)}\n`);
     return 2;
   }
+
+  process.stderr.write(settingsNote);
 
   let folder: string;
   if (positionals.length === 1) folder = resolve(positionals[0]);
@@ -180,7 +206,9 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
     return 2;
   }
   if (report.frames.length === 0 && report.skipped.length === 0) {
+    // Nothing was checked: no verdict to give, nothing to write.
     process.stderr.write(`seamscout: no image files in ${forTerminal(folder)}\n`);
+    return 2;
   }
   process.stdout.write(formatSummary(report));
 
@@ -205,6 +233,12 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
       await writeFileAtomic(resolve(path), await make(), { overwrite: v.force ?? false, outside: folder });
       process.stderr.write(`wrote ${forTerminal(path)}\n`);
     } catch (err) {
+      if (err instanceof NoCoverageMap) {
+        // A set that could not be placed (no focal length, no pair between stations) is answered by
+        // the check's verdict; the missing map is a note, not a failure of the command.
+        process.stderr.write(`note: ${forTerminal(path)} not written: ${err.message.replace(/^no coverage map: /, '')}\n`);
+        continue;
+      }
       process.stderr.write(`seamscout: ${forTerminal((err as Error).message)}\n`);
       failed = true;
     }

@@ -1,50 +1,16 @@
-import { basename } from 'node:path';
-import { parseArgs } from 'node:util';
-import { exposureDifference } from '../core/exposure.js';
-import { detectAndDescribe } from '../core/features.js';
-import { estimatePairGeometry } from '../core/pair-geometry.js';
 import { checkCommand, checkUsage } from './check-command.js';
-import { decodeForAnalysis } from './decode.js';
-import { demoCommand } from './demo-command.js';
+import { demoCommand, demoUsage } from './demo-command.js';
+import { pairCommand, pairUsage } from './pair-command.js';
 import { ensureDemoShoot } from './demo-shoot.js';
 import { forTerminal, progressLine } from './summary.js';
 
 const usage = `Usage:
   seamscout check [folder] [options]   check a shot sequence (the demo shoot when no folder is given)
   seamscout demo <folder> [options]    write a demo shoot with its truth file (see seamscout demo --help)
-  seamscout pair <frameA> <frameB>     match two frames and print overlap, inliers and EV difference
+  seamscout pair <frameA> <frameB>     match two frames as the check does: inliers, overlap, EV difference, verdict
   seamscout help [command]             this text, or a command's options
 
 ${checkUsage}`;
-
-async function pairCommand(args: string[]): Promise<number> {
-  const { values, positionals } = parseArgs({ args, allowPositionals: true, options: { size: { type: 'string', default: '1500' } } });
-  if (positionals.length !== 2) {
-    process.stderr.write(`Expected two frames for pair but received ${positionals.length}\n\n${usage}`);
-    return 2;
-  }
-  const size = Number(values.size);
-  if (!Number.isInteger(size) || size < 64) {
-    process.stderr.write(`Expected a whole number of pixels (64 or more) for --size but received ${values.size}\n`);
-    return 2;
-  }
-  const [pa, pb] = positionals;
-  const [a, b] = await Promise.all([decodeForAnalysis(pa, size), decodeForAnalysis(pb, size)]);
-  const g = estimatePairGeometry(detectAndDescribe(a.image), detectAndDescribe(b.image));
-  const ev = g.homography ? exposureDifference(a.image, b.image, g.homography) : null;
-  const pct = (v: number | null): string => (v === null ? 'n/a' : `${(100 * v).toFixed(1)} %`);
-  const lines = [
-    `${basename(pa)} -> ${basename(pb)}`,
-    `  matches     ${g.matches.count}`,
-    `  inliers     ${g.inliers}`,
-    `  overlap     ${pct(g.overlap)}`,
-    `  EV change   ${ev ? `${ev.ev >= 0 ? '+' : ''}${ev.ev.toFixed(2)} EV (${basename(pb)} ${ev.ev >= 0 ? 'brighter' : 'darker'})` : 'n/a'}`,
-    `  RMS error   ${g.rmsError === null ? 'n/a' : `${g.rmsError.toFixed(2)} px at analysis size`}`,
-    `  result      ${g.homography ? 'matched' : `no model (${g.noModel})`}`,
-  ];
-  process.stdout.write(lines.join('\n') + '\n');
-  return g.homography ? 0 : 1;
-}
 
 /** The demo shoot, written on first use with a progress line on a terminal. */
 function demoFolder(): Promise<string> {
@@ -59,7 +25,13 @@ function demoFolder(): Promise<string> {
 export async function main(argv: string[]): Promise<number> {
   const [command, ...rest] = argv;
   if (!command || command === '--help' || command === 'help') {
-    process.stdout.write(usage);
+    const topic = command === 'help' ? rest[0] : undefined;
+    const topics: Record<string, string> = { check: checkUsage, demo: demoUsage, pair: pairUsage };
+    if (topic !== undefined && !(topic in topics)) {
+      process.stderr.write(`Expected a command (check, demo, pair) for help but received ${forTerminal(topic)}\n`);
+      return 2;
+    }
+    process.stdout.write(topic ? topics[topic] : usage);
     return command ? 0 : 2;
   }
   try {

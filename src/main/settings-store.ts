@@ -1,17 +1,17 @@
 import { mkdir } from 'node:fs/promises';
 import { dirname } from 'node:path';
-import { resolveBudget } from '../core/budget.js';
+import { budgetAsTyped, budgetFromTyped, pageBudget, resolveBudget } from '../core/budget.js';
 import type { MatchBudget } from '../core/report.js';
 import type { ShotPreference } from './app-api.js';
 import { expectShotPreference } from './app-api.js';
 import type { SettingsFile } from './settings.js';
-import { defaultSettingsPath, readSettings } from './settings.js';
+import { defaultSettingsPath, readSettings, settingsBudget } from './settings.js';
 import { writeFileAtomic } from './write-file.js';
 
 /** The budget from the user's settings file (defaults where it says nothing or is unreadable). */
 export async function loadStoredBudget(): Promise<MatchBudget> {
   try {
-    return resolveBudget((await readSettings(undefined)).budget ?? {});
+    return budgetFromTyped(settingsBudget(await readSettings(undefined), defaultSettingsPath()));
   } catch {
     return resolveBudget();
   }
@@ -39,10 +39,13 @@ async function storeSection(section: keyof SettingsFile, value: unknown): Promis
   await writeFileAtomic(path, JSON.stringify({ ...settings, [section]: value }, null, 2) + '\n', true);
 }
 
-/** Checks and stores a budget in the user's settings file, keeping its other sections. */
+/**
+ * Checks and stores a budget the page sent (overlaps as shares) in the user's settings file, in the
+ * file's units (overlaps in percent), keeping its other sections.
+ */
 export async function storeBudget(budget: Record<string, unknown>): Promise<MatchBudget> {
-  const checked = resolveBudget(budget);
-  await storeSection('budget', checked);
+  const checked = budgetFromTyped(pageBudget(budget));
+  await storeSection('budget', budgetAsTyped(checked));
   return checked;
 }
 

@@ -1,7 +1,7 @@
 import { randomBytes } from 'node:crypto';
-import { closeSync, openSync, renameSync, unlinkSync } from 'node:fs';
+import { closeSync, constants as fsConstants, openSync, renameSync, unlinkSync } from 'node:fs';
 import type { Stats } from 'node:fs';
-import { link, lstat, open, readdir, realpath, rename, stat, unlink } from 'node:fs/promises';
+import { access, link, lstat, open, readdir, realpath, rename, stat, unlink } from 'node:fs/promises';
 import { basename, dirname, isAbsolute, join, relative, sep } from 'node:path';
 
 // Our temp files say whose they are, so a later run can tell its own leftovers from anything else.
@@ -171,12 +171,29 @@ export interface ExportTargetOptions {
 /**
  * Refuses an export target that must never be written: one inside the checked folder (by real path,
  * so a symbolic link or `..` does not get round it), anything but a regular file (a device, a named
- * pipe, a folder, or a symbolic link to one), which an export must never replace, and without
- * `overwrite` any existing file.
+ * pipe, a folder, or a symbolic link to one), which an export must never replace, one whose folder
+ * is missing or takes no new files (read-only, or no permission), and without `overwrite` any
+ * existing file.
  */
 export async function expectExportTarget(target: string, options: ExportTargetOptions = {}): Promise<void> {
   if (options.outside !== undefined && (await isInside(target, options.outside))) {
     throw new Error(`Cannot write ${target}: it is inside the folder being checked (${options.outside}), which is never written to; choose a place outside it`);
+  }
+  // The folder it goes into must exist and take new files (the temp file is made there first).
+  const folder = dirname(target);
+  let inFolder: Stats | null = null;
+  try {
+    inFolder = await stat(folder);
+  } catch {
+    // Said below.
+  }
+  if (!inFolder) throw new Error(`Cannot write ${target}: its folder ${folder} does not exist`);
+  if (!inFolder.isDirectory()) throw new Error(`Cannot write ${target}: ${folder} is not a folder`);
+  try {
+    await access(folder, fsConstants.W_OK | fsConstants.X_OK);
+  } catch (err) {
+    const code = (err as NodeJS.ErrnoException).code;
+    throw new Error(`Cannot write ${target}: ${code === 'EROFS' ? 'the disk is read-only' : `no permission to write in ${folder}`}`, { cause: err });
   }
   let st: Stats;
   try {

@@ -1,5 +1,5 @@
 import { spawn } from 'node:child_process';
-import { mkdtempSync } from 'node:fs';
+import { chmodSync, mkdtempSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -11,15 +11,18 @@ export const tempDir = (prefix = 'seamscout-test-'): string => mkdtempSync(join(
 
 /**
  * Runs the command line as a user would (node with tsx on the sources), with its cache and settings
- * folders moved to temporary ones so tests never touch the user's.
+ * folders moved to temporary ones so tests never touch the user's; as another user when `uid` is
+ * given (tests run as root, who may write anywhere).
  */
-export function runCli(args: string[], env: Record<string, string> = {}): Promise<{ code: number; stdout: string; stderr: string }> {
+export function runCli(args: string[], env: Record<string, string> = {}, uid?: number): Promise<{ code: number; stdout: string; stderr: string }> {
   const home = tempDir('seamscout-home-');
+  if (uid !== undefined) chmodSync(home, 0o777);
   return new Promise((resolve, reject) => {
     const child = spawn(process.execPath, ['--import', 'tsx', join(projectRoot, 'src/main/cli.ts'), ...args], {
       cwd: projectRoot,
       env: { ...process.env, SEAMSCOUT_CACHE_DIR: join(home, 'cache'), SEAMSCOUT_CONFIG_DIR: join(home, 'config'), ...env },
       stdio: ['ignore', 'pipe', 'pipe'],
+      ...(uid !== undefined ? { uid, gid: uid } : {}),
     });
     let stdout = '', stderr = '';
     child.stdout.on('data', (d) => (stdout += d));

@@ -21,6 +21,7 @@ const keys: Key[] = [
   { id: 'g_k2', for: 'graph', name: 'distortionK2', type: 'double' },
   { id: 'n_file', for: 'node', name: 'file', type: 'string' },
   { id: 'n_station', for: 'node', name: 'station', type: 'int' },
+  { id: 'n_label', for: 'node', name: 'label', type: 'string' },
   { id: 'n_reference', for: 'node', name: 'reference', type: 'boolean' },
   { id: 'n_width', for: 'node', name: 'width', type: 'int' },
   { id: 'n_height', for: 'node', name: 'height', type: 'int' },
@@ -90,7 +91,7 @@ function graph(src: GraphSource, id: string, extra: string, firstNode: number, f
   ];
   for (const f of src.frames) {
     out.push(
-      `    <node id="${ids.get(f.file)}">${data('n_file', f.file)}${data('n_station', f.station)}${data('n_reference', refs.has(f.file))}` +
+      `    <node id="${ids.get(f.file)}">${data('n_file', f.file)}${data('n_station', f.station)}${data('n_label', `station ${f.station + 1}: ${f.file}`)}${data('n_reference', refs.has(f.file))}` +
         `${data('n_width', f.width)}${data('n_height', f.height)}${data('n_capture', f.captureTime)}${data('n_verdict', f.verdict)}${data('n_flags', f.flags.join(' ') || null)}` +
         `${data('n_yaw', pose.get(f.station)?.yawDeg)}${data('n_pitch', pose.get(f.station)?.pitchDeg)}${data('n_roll', pose.get(f.station)?.rollDeg)}</node>`,
     );
@@ -118,7 +119,8 @@ const sequenceData = (q: ReportSequence): string =>
  * file, station and, where the geometry placed it, the station's yaw, pitch and roll (a starting
  * point for a stitching program's optimiser); pairs as undirected edges from a to b, every measure a
  * declared data key; a missing measure (an unmatched pair, an unplaced station) is an absent data
- * element.
+ * element. `station` is the station's index from 0, as in the JSON report, for programs; `label`,
+ * for a person and for the viewers that show a node's label, numbers it from 1 ("station 1: A.jpg").
  *
  * A card of several sequences gives one graph per sequence in the one document (the primer allows
  * any number of graphs in a graphml element), each with its own frames, pairs, verdict and geometry,
