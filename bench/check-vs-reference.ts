@@ -40,7 +40,7 @@ const allCores = await decodeAllCores(folder, maxSide);
 
 // 2. The check, as the command line runs it.
 const reportFile = join(tempDir(), 'report.json');
-const { seconds: check, peakMiB: peak, status } = checkInChild(folder, ['--size', String(maxSide), '--json', reportFile]);
+const { seconds: check, peakMiB: peak, status, firstPairSeconds } = checkInChild(folder, ['--size', String(maxSide), '--json', reportFile]);
 const report = JSON.parse(readFileSync(reportFile, 'utf8')) as Report;
 const pairs = report.pairs.filter((p) => p.kind === 'neighbour' || p.kind === 'bracket' || p.kind === 'closure');
 
@@ -91,6 +91,7 @@ console.log(`whole-check benchmark, ${new Date().toISOString().slice(0, 10)}, no
 console.log(`  decode floor (one thread):          ${floor.toFixed(1)} s (${(1000 * floor / files.length).toFixed(0)} ms a frame)`);
 console.log(`  decoding on every core:             ${allCores.toFixed(1)} s (${(allCores / floor).toFixed(2)} of the floor: the bound for any check here)`);
 console.log(`  check (as the command runs it):     ${check.toFixed(1)} s, peak RSS ${peak.toFixed(0)} MiB, exit ${status}`);
+console.log(`  first pair line (from the command's start): ${firstPairSeconds === null ? 'none printed' : `${firstPairSeconds.toFixed(1)} s (${((100 * firstPairSeconds) / check).toFixed(0)} % of the whole check)`}`);
 console.log(`  reference (decode floor + OpenCV):  ${referenceSeconds.toFixed(1)} s: ORB ${(stage.detect / files.length).toFixed(0)} ms a frame, match ${(stage.match / pairs.length).toFixed(0)} ms and findHomography ${(stage.ransac / pairs.length).toFixed(1)} ms a pair (${pairs.length} pairs)`);
 console.log(`  check / floor = ${(check / floor).toFixed(2)} (target 0.7 or less); check / reference = ${(check / referenceSeconds).toFixed(2)} (target under 1)`);
 console.log(`  accuracy on ${neighbours} neighbour pairs, full-resolution px: ours mean corner error ${ours.corner.toFixed(2)} px, overlap error ${(100 * ours.overlap).toFixed(2)} points, unmatched ${ours.missed}; reference ${theirs.corner.toFixed(2)} px, ${(100 * theirs.overlap).toFixed(2)} points, unmatched ${theirs.missed}`);

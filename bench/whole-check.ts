@@ -13,10 +13,14 @@ import { benchCache } from './sequences.js';
 
 export const framesOf = (folder: string): string[] => readdirSync(folder).filter((f) => f.endsWith('.JPG')).sort();
 
-/** Runs `seamscout check <folder> --no-cache --no-progress ...args` in a child. */
-export function checkInChild(folder: string, args: readonly string[] = []): { seconds: number; peakMiB: number; status: number | null } {
+/**
+ * Runs `seamscout check <folder> --no-cache --no-progress ...args` in a child. `firstPairSeconds`:
+ * from the child's start (its performance.now() origin) to the first pair line written on stdout.
+ */
+export function checkInChild(folder: string, args: readonly string[] = []): { seconds: number; peakMiB: number; status: number | null; firstPairSeconds: number | null } {
   const argv = ['seamscout', 'check', folder, '--no-cache', '--no-progress', ...args];
-  const script = `process.on('exit', () => process.stderr.write('\\nPEAK ' + process.resourceUsage().maxRSS + '\\n')); process.argv = [process.argv[0], ...${JSON.stringify(argv)}]; await import(${JSON.stringify(join(projectRoot, 'src/main/cli.ts'))});`;
+  const watch = `let firstPair = null; const write = process.stdout.write.bind(process.stdout); process.stdout.write = (s, ...r) => { if (firstPair === null && / -> /.test(String(s))) firstPair = performance.now(); return write(s, ...r); };`;
+  const script = `${watch} process.on('exit', () => process.stderr.write('\\nPEAK ' + process.resourceUsage().maxRSS + '\\nFIRSTPAIR ' + firstPair + '\\n')); process.argv = [process.argv[0], ...${JSON.stringify(argv)}]; await import(${JSON.stringify(join(projectRoot, 'src/main/cli.ts'))});`;
   const started = performance.now();
   const r = spawnSync(process.execPath, ['--import', 'tsx', '--input-type=module', '-e', script], {
     encoding: 'utf8',
@@ -26,7 +30,8 @@ export function checkInChild(folder: string, args: readonly string[] = []): { se
   const seconds = (performance.now() - started) / 1000;
   const peak = /PEAK (\d+)/.exec(r.stderr);
   if (!peak) throw new Error(`the check did not report its memory: ${r.stderr.slice(-500)}`);
-  return { seconds, peakMiB: Number(peak[1]) / 1024, status: r.status };
+  const first = /FIRSTPAIR (\d+(?:\.\d+)?)/.exec(r.stderr);
+  return { seconds, peakMiB: Number(peak[1]) / 1024, status: r.status, firstPairSeconds: first ? Number(first[1]) / 1000 : null };
 }
 
 /** Decodes every frame on one thread; returns the seconds and the decoded images. */

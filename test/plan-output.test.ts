@@ -18,8 +18,9 @@ beforeAll(async () => {
 }, 120_000);
 
 describe('seamscout check output', () => {
-  it('starts with the reshoot plan, then the verdict in one line', () => {
-    const lines = run.stdout.split('\n');
+  it('starts its final block with the reshoot plan, then the verdict in one line', () => {
+    // The pair lines printed while the check ran come first; the final block follows them.
+    const lines = run.stdout.split('\n').slice(run.stdout.split('\n').findIndex((l) => l.startsWith('Reshoot plan for ')));
     expect(lines[0]).toMatch(/^Reshoot plan for .*: nothing to reshoot\.$/);
     expect(lines[1]).toBe('Worth a look:');
     const verdictAt = lines.findIndex((l) => l.startsWith('Verdict: '));
@@ -30,7 +31,7 @@ describe('seamscout check output', () => {
   });
 
   it('prints the plan items the JSON report holds, in its order', () => {
-    const lines = run.stdout.split('\n');
+    const lines = run.stdout.split('\n').slice(run.stdout.split('\n').findIndex((l) => l.startsWith('Reshoot plan for ')));
     expect(report.plan.length).toBeGreaterThan(0);
     expect(report.plan.every((i) => i.optional)).toBe(true);
     expect(lines.slice(2, 2 + report.plan.length)).toEqual(report.plan.map((i) => `  - ${i.text}`));

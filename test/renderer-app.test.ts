@@ -292,6 +292,21 @@ describe('progress', () => {
     expect(document.querySelectorAll('[data-pair]').length).toBe(3);
   });
 
+  it('says "checking", never a verdict, while the check runs, however good the results so far look', async () => {
+    const f = fakeApi();
+    await mount(f);
+    buttonNamed('Try the demo shoot').click();
+    await tick();
+    // The pairs measured so far are all ok: judged alone they would read as a complete sequence.
+    const partial = judge({ ...analysis, pairs: analysis.pairs.slice(1, 2) }, defaultBudget);
+    expect(partial.verdict).toBe('ok');
+    f.emitPartial({ checkId: 7, report: partial });
+    expect($('[data-summary] [data-verdict]')?.getAttribute('data-verdict')).toBe('checking');
+    expect(text($('[data-summary]'))).not.toMatch(/looks complete/);
+    f.emitDone({ checkId: 7, report, error: null, cancelled: false });
+    expect($('[data-summary] [data-verdict]')?.getAttribute('data-verdict')).toBe(report.verdict);
+  });
+
   it('cancels the check and goes back to the start screen', async () => {
     const f = fakeApi();
     await mount(f);

@@ -21,6 +21,12 @@ import { checkFrames, defaultMaxSide, readCard } from './check.js';
 export interface CardCheckOptions extends CheckOptions {
   /** Check only this sequence: its number on the card (from 1) or its first file's name. */
   readonly sequence?: string | null;
+  /**
+   * A run of the card checked (a sequence, before single shots are told apart); `run` numbers the
+   * runs from 1 as `onPair` numbers them. A run that came apart by content is checked again as two
+   * new runs, and its pairs are streamed again under their numbers.
+   */
+  readonly onRunDone?: (e: { run: number; frames: number; pairs: number; splitAgain: boolean }) => void;
 }
 
 /** A run of the card's frames taken for one sequence, with why it is apart from the one before. */
@@ -103,7 +109,11 @@ export async function checkCard(folder: string, options: CardCheckOptions = {}):
   const pool = options.pool ?? createAnalysisPool(options.threads);
   try {
     const card = await readCard(folder, options);
-    if (card.ordered.length <= 1) return asOneSequence(await checkFrames(card, null, { ...options, pool }));
+    if (card.ordered.length <= 1) {
+      const one = asOneSequence(await checkFrames(card, null, { ...options, pool }));
+      options.onRunDone?.({ run: 1, frames: one.analysis.frames.length, pairs: one.analysis.pairs.length, splitAgain: false });
+      return one;
+    }
     const frames = card.ordered.map(splitFrameOf);
     const segments = splitByEvidence(frames);
     let runs: Run[] = segments.map((s) => ({ files: card.ordered.slice(s.start, s.end), splitBy: s.splitBy }));
@@ -117,11 +127,15 @@ export async function checkCard(folder: string, options: CardCheckOptions = {}):
       options.onProgress && ((p) => options.onProgress!({ ...p, done: Math.min(base + p.done, total), total: p.phase === 'frames' ? total : p.total, file: p.file }));
     const checked: { run: Run; result: CheckResult }[] = [];
     const queue = [...runs];
+    let runNumber = 0;
     while (queue.length) {
       const run = queue.shift()!;
       const single = runs.length === 1 && queue.length === 0 && checked.length === 0;
-      const result = await checkFrames(card, run.files, { ...options, pool, onProgress: progress, onPartial: single ? options.onPartial : undefined });
+      const number = ++runNumber;
+      const onPair: CheckOptions['onPair'] = options.onPair && ((e) => options.onPair!({ ...e, run: number }));
+      const result = await checkFrames(card, run.files, { ...options, pool, onProgress: progress, onPartial: single ? options.onPartial : undefined, onPair });
       const at = contentBreak(result.analysis, run.files);
+      options.onRunDone?.({ run: number, frames: result.analysis.frames.length, pairs: result.analysis.pairs.length, splitAgain: at > 0 });
       if (at > 0) {
         const a = run.files[at - 1].file, b = run.files[at].file;
         queue.unshift({ files: run.files.slice(0, at), splitBy: run.splitBy }, { files: run.files.slice(at), splitBy: [{ by: 'content', after: a, before: b }] });

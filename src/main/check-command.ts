@@ -16,7 +16,8 @@ import { isCardLayout } from './scan.js';
 import { NoCoverageMap, coverageMapContent, coverageMapFormat } from './coverage-map-file.js';
 import { createFeatureCache } from './feature-cache.js';
 import { readSettingsFile, settingsBudget } from './settings.js';
-import { forTerminal, progressLine, formatSummary } from './summary.js';
+import { forTerminal, formatSummary } from './summary.js';
+import { createCheckStream } from './check-stream.js';
 import { expectExportTarget, writeFileAtomic } from './write-file.js';
 import { plainArgumentError } from './argument-words.js';
 
@@ -55,7 +56,9 @@ Options:
   --settings FILE          settings file (default: the user settings file, if present); its budget
                            as below, overlaps in percent too. The command says which file it used
                            and which of its values differ from the defaults
-  --no-progress            no progress line (there is none either when stderr is not a terminal)
+  --no-progress            no progress line (there is one only when the output is a terminal)
+  --progress json          write one JSON object per event to stderr, for tools: start, frame,
+                           pair, sequence, end (see docs/progress-events.md)
 Match budget (also in the settings file under "budget"):
   --min-inliers N          fewest inliers for an ok pair (default 20)
   --reshoot-overlap PCT    reshoot a pair under this overlap, in percent: 20, not 0.2 (default 20)
@@ -105,7 +108,7 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
       options: {
         recursive: { type: 'boolean' }, 'no-recursive': { type: 'boolean' }, sequence: { type: 'string' }, 'all-pairs': { type: 'boolean' }, size: { type: 'string' }, threads: { type: 'string' },
         json: { type: 'string' }, graphml: { type: 'string' }, csv: { type: 'string' }, dot: { type: 'string' }, 'tie-points': { type: 'string' }, 'coverage-map': { type: 'string' }, prefer: { type: 'string' },
-        force: { type: 'boolean' }, 'no-cache': { type: 'boolean' }, settings: { type: 'string' }, 'no-progress': { type: 'boolean' }, help: { type: 'boolean' },
+        force: { type: 'boolean' }, 'no-cache': { type: 'boolean' }, settings: { type: 'string' }, 'no-progress': { type: 'boolean' }, progress: { type: 'string' }, help: { type: 'boolean' },
         'min-inliers': { type: 'string' }, 'reshoot-overlap': { type: 'string' }, 'weak-overlap': { type: 'string' }, 'max-ev': { type: 'string' },
         'min-sharpness': { type: 'string' }, 'max-bracket-shift': { type: 'string' }, 'full-sphere': { type: 'boolean' },
       },
@@ -135,6 +138,7 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
     size = whole('size', v.size, 64) ?? defaultMaxSide;
     threads = whole('threads', v.threads, 0);
     if (v['coverage-map']) coverageMapFormat(v['coverage-map']);
+    if (v.progress !== undefined && v.progress !== 'json') throw new TypeError(`Expected json for --progress but received ${v.progress}`);
     if (v.prefer !== undefined && v.prefer !== 'jpeg' && v.prefer !== 'raw') throw new TypeError(`Expected jpeg or raw for --prefer but received ${v.prefer}`);
     const { settings, file } = await readSettingsFile(v.settings);
     prefer = (v.prefer as 'jpeg' | 'raw' | undefined) ?? settings.prefer;
@@ -181,7 +185,14 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
   }
   if (refused) return 2;
 
-  const showProgress = process.stderr.isTTY && !v['no-progress'];
+  // Pair lines as they come on stdout; the progress line under them only on a terminal.
+  const stream = createCheckStream({
+    budget,
+    folder,
+    out: process.stdout,
+    bar: !!process.stdout.isTTY && !v['no-progress'] && v.progress !== 'json',
+    events: v.progress === 'json' ? process.stderr : null,
+  });
   let report: Report;
   let tiePoints;
   try {
@@ -195,13 +206,15 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
       threads: threads ?? commandLineThreads(),
       prefer,
       cache: v['no-cache'] ? null : createFeatureCache(),
-      onProgress: showProgress ? (p) => process.stderr.write(progressLine(p.phase, p.done, p.total)) : undefined,
+      onProgress: stream.onProgress,
+      onPair: stream.onPair,
+      onRunDone: stream.onRunDone,
     });
-    if (showProgress) process.stderr.write('\r\x1b[K');
     report = judge(result.analysis, budget);
+    stream.end(report.verdict);
     tiePoints = result.tiePoints;
   } catch (err) {
-    if (showProgress) process.stderr.write('\n');
+    stream.end(null);
     process.stderr.write(`seamscout: ${forTerminal((err as Error).message)}\n`);
     return 2;
   }
@@ -210,7 +223,7 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
     process.stderr.write(`seamscout: no image files in ${forTerminal(folder)}\n`);
     return 2;
   }
-  process.stdout.write(formatSummary(report));
+  process.stdout.write(formatSummary(report, stream.shown));
 
   const outputs: [string | undefined, () => string | Promise<string | Uint8Array>][] = [
     [v.json, () => JSON.stringify(report, null, 2) + '\n'],

@@ -51,6 +51,12 @@ export interface CheckOptions {
   readonly onProgress?: (p: CheckProgress) => void;
   /** The measurements so far, while pairs are still being matched (results as they arrive). */
   readonly onPartial?: (analysis: Analysis) => void;
+  /**
+   * Each pair as soon as it is measured, in the order of the final report's pairs (a pair is held
+   * back only until those before it are out). Its measures are final for the pair alone; what the
+   * sequence adds later (the lens, the closure, a guided retry) may still change them and its verdict.
+   */
+  readonly onPair?: (e: PairStreamed) => void;
   readonly signal?: AbortSignal;
 }
 
@@ -59,6 +65,16 @@ export interface TiePointSet {
   readonly a: string;
   readonly b: string;
   readonly points: Float64Array;
+}
+
+/** A pair measured while the check runs, with its two frames (enough to judge the pair alone). */
+export interface PairStreamed {
+  readonly pair: PairMeasure;
+  readonly frames: readonly [FrameMeasure, FrameMeasure];
+  /** Longest file name of the run, for a table whose columns do not move as lines come. */
+  readonly nameWidth: number;
+  /** Which run of the card this pair belongs to (set by checkCard; 0 for one folder checked alone). */
+  readonly run: number;
 }
 
 export interface CheckResult {
@@ -398,13 +414,31 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
         release(i);
         release(j);
         partialHook?.();
+        streamReady();
       });
       pairsInFlight.set(key, task);
       return task;
     };
 
+    // Pairs go out in the order of `planned` (the final report's order), each once its result is in.
+    let streamed = 0;
+    const nameWidth = Math.max(8, ...ordered.map((o) => o.file.length));
+    const streamReady = (): void => {
+      if (!options.onPair) return;
+      while (streamed < planned.length) {
+        const { i, j, kind } = planned[streamed];
+        if (!pairResults.has(`${i}:${j}`)) return;
+        streamed++;
+        options.onPair({ pair: pairMeasureOf(i, j, kind, null).pair, frames: [frameMeasureOf(i), frameMeasureOf(j)], nameWidth, run: 0 });
+      }
+    };
+    const keep = (p: PlannedPair): void => {
+      planned.push(p);
+      streamReady();
+    };
+
     const plan = (i: number, j: number, kind: PairKind): void => {
-      planned.push({ i, j, kind });
+      keep({ i, j, kind });
       const task = analysePair(i, j);
       // Awaited all together later; a failure must not count as unhandled before that.
       task.catch(() => undefined);
@@ -584,7 +618,7 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
       const closure: PlannedPair = { i: stations[stations.length - 1].reference, j: stations[0].reference, kind: 'closure' };
       await analysePair(closure.i, closure.j);
       const r = pairResults.get(`${closure.i}:${closure.j}`)!;
-      if (r.homography || (before !== null && before.horizontalDeg >= closingTurnDeg)) planned.push(closure);
+      if (r.homography || (before !== null && before.horizontalDeg >= closingTurnDeg)) keep(closure);
     }
     if (options.allPairs || shotInRows()) {
       // Every other pair of reference frames, screened cheaply on a sample of keypoints first (the
@@ -595,7 +629,7 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
       for (let x = 0; x < refs.length; x++)
         for (let y = x + 2; y < refs.length; y++) if (!known.has(`${refs[x]}:${refs[y]}`) && !known.has(`${refs[y]}:${refs[x]}`)) others.push([refs[x], refs[y]]);
       const chosen = screenPairs(samples, others);
-      for (const [i, j] of chosen) planned.push({ i, j, kind: 'other' });
+      for (const [i, j] of chosen) keep({ i, j, kind: 'other' });
       // Without --all-pairs the frames were let go: a few pairs at a time, so that a frame decoded
       // again is let go once its pairs are done instead of waiting for every pair asked for.
       if (keepAll) await Promise.all(chosen.map(([i, j]) => analysePair(i, j, false)));
@@ -727,7 +761,7 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
         if (known) known.kind = 'closure';
         else {
           await analysePair(i, j);
-          if (pairResults.get(`${i}:${j}`)!.homography || covered >= closingTurnDeg) planned.push({ i, j, kind: 'closure' });
+          if (pairResults.get(`${i}:${j}`)!.homography || covered >= closingTurnDeg) keep({ i, j, kind: 'closure' });
         }
       }
       return geometryOf(planned.filter((p) => p.kind !== 'bracket'), null);
@@ -769,59 +803,70 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
       return sequenceGeometry({ sizes, exifFocalPx, exifFocal35mm, links, closure: closure ? link(closure) : null });
     }
 
+    /** Focal length of a frame in full-resolution pixels: the sequence's, else its EXIF's. */
+    function focalOf(k: number, geometry: SequenceGeometry | null): number | null {
+      if (geometry) return geometry.focalPx;
+      const f35 = frames[k]!.exif.settings.focalLength35, sm = frames[k]!.summary;
+      return f35 ? focalPxFrom35mm(f35, sm.fullWidth, sm.fullHeight) : null;
+    }
+
+    /** One measured pair as the report has it, with its tie points at full resolution. */
+    function pairMeasureOf(i: number, j: number, kind: PairKind, geometry: SequenceGeometry | null): { pair: PairMeasure; tiePoints: TiePointSet | null } {
+      const name = (k: number): string => frames[k]!.file.name;
+      const r = pairResults.get(`${i}:${j}`)!;
+      const sa = frames[i]!.summary, sb = frames[j]!.summary;
+      const { scale } = fullResolution(r, sa, sb);
+      const full = fullPair(i, j);
+      const h = full?.h ?? null;
+      const pair: PairMeasure = {
+        a: name(i),
+        b: name(j),
+        kind,
+        matches: r.matches,
+        inliers: r.inliers,
+        matchesInOverlap: r.matchesInOverlap,
+        overlap: r.overlap,
+        homography: h ? Array.from(h) : null,
+        evDiff: r.evDiff,
+        rmsError: r.rmsError === null ? null : r.rmsError * scale,
+        shiftPx: full && kind === 'bracket' ? (bracketShift(full.points, sa.fullWidth, sa.fullHeight, focalOf(i, geometry) ?? NaN) ?? cornerShift(full.h, sa.fullWidth, sa.fullHeight)) : null,
+        moved: r.moved?.map((m) => ({ x: m.x * scale, y: m.y * scale, width: m.width * scale, height: m.height * scale })) ?? null,
+        misfit: r.misfit,
+        parallax: r.parallax,
+        ...(r.homography === null && predictedOverlaps.has(`${i}:${j}`) ? { predictedOverlap: predictedOverlaps.get(`${i}:${j}`) } : {}),
+        sharpnessRatio: r.sharpness?.ratio ?? null,
+        sharpnessByDirection: r.sharpness ? { horizontal: r.sharpness.byDirection[0], vertical: r.sharpness.byDirection[2], fallingDiagonal: r.sharpness.byDirection[1], risingDiagonal: r.sharpness.byDirection[3] } : null,
+        sharpnessBlocks: r.sharpness?.blocks ?? null,
+      };
+      return { pair, tiePoints: full ? { a: name(i), b: name(j), points: full.points } : null };
+    }
+
+    function frameMeasureOf(k: number): FrameMeasure {
+      const f = frames[k]!;
+      return {
+        file: f.file.name,
+        width: f.summary.fullWidth,
+        height: f.summary.fullHeight,
+        captureTime: f.exif.captureTime,
+        settings: f.exif.settings,
+        sharpness: f.summary.sharpness,
+        keypoints: f.summary.keypoints,
+        fingerprint: f.summary.fingerprint,
+      };
+    }
+
     /** The measurements so far: frames of finalised stations, the stations, the pairs measured yet. */
     function assemble(geometry: SequenceGeometry | null): CheckResult {
       const name = (k: number): string => frames[k]!.file.name;
-      // Focal length of a frame in full-resolution pixels: the sequence's, else its EXIF's.
-      const focalOf = (k: number): number | null => {
-        if (geometry) return geometry.focalPx;
-        const f35 = frames[k]!.exif.settings.focalLength35, sm = frames[k]!.summary;
-        return f35 ? focalPxFrom35mm(f35, sm.fullWidth, sm.fullHeight) : null;
-      };
       const tiePoints: TiePointSet[] = [];
       const measured = planned.filter(({ i, j }) => pairResults.has(`${i}:${j}`));
       const pairs: PairMeasure[] = measured.map(({ i, j, kind }) => {
-        const r = pairResults.get(`${i}:${j}`)!;
-        const sa = frames[i]!.summary, sb = frames[j]!.summary;
-        const { scale } = fullResolution(r, sa, sb);
-        const full = fullPair(i, j);
-        const h = full?.h ?? null;
-        if (full) tiePoints.push({ a: name(i), b: name(j), points: full.points });
-        return {
-          a: name(i),
-          b: name(j),
-          kind,
-          matches: r.matches,
-          inliers: r.inliers,
-          matchesInOverlap: r.matchesInOverlap,
-          overlap: r.overlap,
-          homography: h ? Array.from(h) : null,
-          evDiff: r.evDiff,
-          rmsError: r.rmsError === null ? null : r.rmsError * scale,
-          shiftPx: full && kind === 'bracket' ? (bracketShift(full.points, sa.fullWidth, sa.fullHeight, focalOf(i) ?? NaN) ?? cornerShift(full.h, sa.fullWidth, sa.fullHeight)) : null,
-          moved: r.moved?.map((m) => ({ x: m.x * scale, y: m.y * scale, width: m.width * scale, height: m.height * scale })) ?? null,
-          misfit: r.misfit,
-          parallax: r.parallax,
-          ...(r.homography === null && predictedOverlaps.has(`${i}:${j}`) ? { predictedOverlap: predictedOverlaps.get(`${i}:${j}`) } : {}),
-          sharpnessRatio: r.sharpness?.ratio ?? null,
-          sharpnessByDirection: r.sharpness ? { horizontal: r.sharpness.byDirection[0], vertical: r.sharpness.byDirection[2], fallingDiagonal: r.sharpness.byDirection[1], risingDiagonal: r.sharpness.byDirection[3] } : null,
-          sharpnessBlocks: r.sharpness?.blocks ?? null,
-        };
+        const m = pairMeasureOf(i, j, kind, geometry);
+        if (m.tiePoints) tiePoints.push(m.tiePoints);
+        return m.pair;
       });
       const inStations = stations.flatMap((s) => s.members).sort((p, q) => p - q);
-      const frameMeasures: FrameMeasure[] = inStations.map((k) => {
-        const f = frames[k]!;
-        return {
-          file: f.file.name,
-          width: f.summary.fullWidth,
-          height: f.summary.fullHeight,
-          captureTime: f.exif.captureTime,
-          settings: f.exif.settings,
-          sharpness: f.summary.sharpness,
-          keypoints: f.summary.keypoints,
-          fingerprint: f.summary.fingerprint,
-        };
-      });
+      const frameMeasures: FrameMeasure[] = inStations.map(frameMeasureOf);
       const stationMeasures: StationMeasure[] = stations.map((st, s) => ({
         index: s,
         frames: st.members.map(name),

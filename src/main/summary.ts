@@ -1,4 +1,4 @@
-import type { Report, ReportSequence, Verdict } from '../core/report.js';
+import type { Report, ReportPair, ReportSequence, Verdict } from '../core/report.js';
 import { millimetres } from '../core/number-words.js';
 import { sequenceReport } from '../core/sequence-report.js';
 import { lensSentence } from '../core/lens-words.js';
@@ -54,7 +54,7 @@ const clock = (iso: string | null): string | null => (iso ? iso.slice(11, 16) : 
  * sequence, headed by its frames, time span, stations and verdict, each as if it were checked alone;
  * then the single shots, the files not checked, and the card's count and verdict.
  */
-function formatCard(report: Report): string {
+function formatCard(report: Report, streamed?: ReadonlyMap<string, Verdict>): string {
   const seqs = report.sequences ?? [];
   const singles = report.singleShots ?? [];
   const out: string[] = [...planBlock(report, report.folder), '', `Seamscout check of ${report.folder}`];
@@ -65,7 +65,7 @@ function formatCard(report: Report): string {
     out.push('', `Sequence ${q.index} of ${seqs.length}: ${q.firstFile} to ${q.lastFile}, ${q.frames.length} frames, ${q.stations.length} stations${when}, ${word[q.verdict]}`);
     if (q.splitBy.length) out.push(`  apart from the sequence before: ${apartWords(q.splitBy)}`);
     // The card's plan above has every sequence's items already.
-    const body = formatOne(sequenceReport(report, q.index), false).trimEnd().split('\n').slice(1);
+    const body = formatOne(sequenceReport(report, q.index), false, streamed).trimEnd().split('\n').slice(1);
     // The heading has the counts already: what the sequence covers is left of that line.
     const rest = body[0].replace(/^\d+ frames in \d+ stations(, )?/, '');
     body[0] = rest.charAt(0).toUpperCase() + rest.slice(1);
@@ -103,13 +103,32 @@ function planBlock(report: Report, subject: string): string[] {
   return out;
 }
 
-/** The summary a photographer reads in the terminal: the reshoot plan, then the pairs in shooting order and the details behind the plan. */
-export function formatSummary(report: Report): string {
-  if ((report.sequences?.length ?? 0) > 1 || (report.singleShots?.length ?? 0) > 0) return formatCard(report);
-  return formatOne(report);
+/**
+ * The summary a photographer reads in the terminal: the reshoot plan, then the pairs in shooting
+ * order and the details behind the plan. `streamed` holds the verdicts printed while the check ran
+ * (by `pairKey`): a pair whose final verdict differs says what it was shown as.
+ */
+export function formatSummary(report: Report, streamed?: ReadonlyMap<string, Verdict>): string {
+  if ((report.sequences?.length ?? 0) > 1 || (report.singleShots?.length ?? 0) > 0) return formatCard(report, streamed);
+  return formatOne(report, true, streamed);
 }
 
-function formatOne(report: Report, withPlan = true): string {
+/** The key of a pair in the verdicts shown while checking. */
+export const pairKey = (p: { a: string; b: string; kind: string }): string => `${p.a}\n${p.b}\n${p.kind}`;
+
+/** The heading of the pair table; `w` is the longest file name. */
+export function pairTableHeader(w: number): string {
+  return `  ${pad('pair', 2 * w + 4)}  ${pad('kind', 9)} overlap  inliers  EV      verdict`;
+}
+
+/** One row of the pair table: mark, the two files, kind, overlap, inliers, EV difference, verdict and reasons. */
+export function pairRow(p: Pick<ReportPair, 'a' | 'b' | 'kind' | 'overlap' | 'inliers' | 'evDiff' | 'verdict' | 'reasons'>, w: number): string {
+  const overlap = p.overlap === null ? '   -  ' : `${(100 * p.overlap).toFixed(0).padStart(4)} %`;
+  const ev = p.evDiff === null ? '  -   ' : `${p.evDiff >= 0 ? '+' : ''}${p.evDiff.toFixed(2)}`.padStart(6);
+  return `${mark[p.verdict]}${pad(`${p.a} -> ${p.b}`, 2 * w + 4)}  ${pad(p.kind, 9)} ${overlap}  ${String(p.inliers).padStart(7)}  ${ev}  ${word[p.verdict]}${p.reasons.length ? ` (${p.reasons.join(', ')})` : ''}`;
+}
+
+function formatOne(report: Report, withPlan = true, streamed?: ReadonlyMap<string, Verdict>): string {
   const out: string[] = [];
   if (withPlan) out.push(...planBlock(report, report.folder), '');
   const g = report.geometry;
@@ -127,11 +146,11 @@ function formatOne(report: Report, withPlan = true): string {
   // Bracket pairs are listed only when flagged; the rest are summed up in one line.
   const shown = report.pairs.filter((p) => p.kind !== 'bracket' || p.verdict !== 'ok');
   const quietBrackets = report.pairs.filter((p) => p.kind === 'bracket' && p.verdict === 'ok');
-  if (shown.length) out.push(`  ${pad('pair', 2 * w + 4)}  ${pad('kind', 9)} overlap  inliers  EV      verdict`);
+  if (shown.length) out.push(pairTableHeader(w));
   for (const p of shown) {
-    const overlap = p.overlap === null ? '   -  ' : `${(100 * p.overlap).toFixed(0).padStart(4)} %`;
-    const ev = p.evDiff === null ? '  -   ' : `${p.evDiff >= 0 ? '+' : ''}${p.evDiff.toFixed(2)}`.padStart(6);
-    out.push(`${mark[p.verdict]}${pad(`${p.a} -> ${p.b}`, 2 * w + 4)}  ${pad(p.kind, 9)} ${overlap}  ${String(p.inliers).padStart(7)}  ${ev}  ${word[p.verdict]}${p.reasons.length ? ` (${p.reasons.join(', ')})` : ''}`);
+    // A pair printed while the check ran whose verdict the whole sequence changed says so.
+    const first = streamed?.get(pairKey(p));
+    out.push(pairRow(p, w) + (first !== undefined && first !== p.verdict ? `  [shown as ${word[first]} while checking]` : ''));
   }
   if (quietBrackets.length) {
     const worstShift = Math.max(...quietBrackets.map((p) => p.shiftPx ?? 0));

@@ -191,7 +191,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   function fillList(): void {
     if (!report) return;
     const hadFocus = listSlot.contains(doc.activeElement) ? doc.activeElement?.getAttribute('data-sequence') ?? null : null;
-    replaceChildren(summarySlot, renderSummary(report, { switchPreference: running ? undefined : switchPreference }));
+    replaceChildren(summarySlot, renderSummary(report, { switchPreference: running ? undefined : switchPreference, checking: running !== null }));
     replaceChildren(listSlot, renderSequenceList(report, { thumbnail, selected: listSelected, onOpen: openSequence, onSelect: (i) => selectSequence(i, false) }));
     listSlot.hidden = false;
     wide.hidden = true;
@@ -213,7 +213,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     wide.hidden = false;
     const hadFocus = stripSlot.contains(doc.activeElement) ? doc.activeElement?.getAttribute('data-pair') ?? null : null;
     const bar = isCard(card) && openSeq !== null ? renderSequenceBar(card, openSeq, backToList) : null;
-    replaceChildren(summarySlot, bar, renderSummary(report, { switchPreference: running ? undefined : switchPreference }));
+    replaceChildren(summarySlot, bar, renderSummary(report, { switchPreference: running ? undefined : switchPreference, checking: running !== null }));
     // While the detail is open the strip is out of the document, so that [data-pair="a|b"] names
     // one element only (the detail); thumbnails are kept and come back without reloading.
     if (detail) replaceChildren(stripSlot);

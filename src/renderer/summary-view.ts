@@ -28,7 +28,14 @@ function stat(name: string, value: string, label: string, icon: SVGSVGElement | 
 export interface SummaryActions {
   /** Checks the folder again reading the other file of each RAW+JPEG shot. */
   readonly switchPreference?: () => void;
+  /**
+   * The check is still running: the report is of the pairs measured so far, so no overall verdict
+   * is given (a sequence half checked is not "complete"); the state reads "checking" until the end.
+   */
+  readonly checking?: boolean;
 }
+
+const checkingWords = 'Checking: results so far. The verdict comes once every pair is checked.';
 
 /** Which file of each RAW+JPEG shot was checked, with a button to check the other. */
 function rawPlusJpegNote(r: NonNullable<Report['rawPlusJpeg']>, switchPreference: (() => void) | undefined): HTMLElement {
@@ -70,14 +77,16 @@ export function renderSummary(report: Report, act: SummaryActions = {}): HTMLEle
   const card = isCard(report);
   return el(
     'section',
-    { class: `summary summary-${report.verdict}`, 'data-summary': '', 'aria-label': 'Summary' },
-    el(
-      'div',
-      { class: `overall overall-${report.verdict}`, 'data-verdict': report.verdict },
-      verdictBadge(report.verdict, 44),
-      el('p', { class: 'overall-words' }, card ? `${cardWords(report)}.` : overallSentence(report)),
-      el('p', { class: 'folder', title: report.folder }, folderName),
-    ),
+    { class: `summary summary-${act.checking ? 'checking' : report.verdict}`, 'data-summary': '', 'aria-label': 'Summary' },
+    act.checking
+      ? el('div', { class: 'overall overall-checking', 'data-verdict': 'checking', role: 'status' }, el('p', { class: 'overall-words' }, checkingWords), el('p', { class: 'folder', title: report.folder }, folderName))
+      : el(
+          'div',
+          { class: `overall overall-${report.verdict}`, 'data-verdict': report.verdict },
+          verdictBadge(report.verdict, 44),
+          el('p', { class: 'overall-words' }, card ? `${cardWords(report)}.` : overallSentence(report)),
+          el('p', { class: 'folder', title: report.folder }, folderName),
+        ),
     renderPlan(report),
     el(
       'dl',
