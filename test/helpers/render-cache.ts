@@ -7,7 +7,7 @@
  * another sees either no entry or a whole one. SEAMSCOUT_TEST_RENDER_CACHE=off turns it off.
  */
 import { createHash, randomBytes } from 'node:crypto';
-import { constants, existsSync, readFileSync, readdirSync } from 'node:fs';
+import { constants, existsSync, readFileSync, readdirSync, rmSync, statSync, utimesSync } from 'node:fs';
 import { copyFile, mkdir, readFile, rename, rm, writeFile } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
@@ -50,8 +50,37 @@ export function sourcesHash(entries: readonly string[], dataFolders: readonly st
   return h.digest('hex').slice(0, 16);
 }
 
+/** Sources' folders untouched for this long are another renderer's and are removed. */
+const staleMs = 3 * 24 * 3600 * 1000;
+let pruned = false;
+const touched = new Set<string>();
+
+/** Removes the entries of renderers not used for staleMs (the cache would only grow otherwise). */
+function pruneStale(): void {
+  if (pruned) return;
+  pruned = true;
+  try {
+    for (const d of readdirSync(renderCacheRoot)) {
+      const path = join(renderCacheRoot, d);
+      if (Date.now() - statSync(path).mtimeMs > staleMs) rmSync(path, { recursive: true, force: true });
+    }
+  } catch {
+    // No cache yet, or another file pruned it first.
+  }
+}
+
 /** The entry's key: the sources' hash, then a hash of the spec (JSON, keys in the order given). */
 export function renderKey(sources: string, spec: unknown): string {
+  pruneStale();
+  if (!touched.has(sources)) {
+    touched.add(sources);
+    // Marks these sources' entries as in use, so that no other file prunes them.
+    try {
+      utimesSync(join(renderCacheRoot, sources), new Date(), new Date());
+    } catch {
+      // Not created yet.
+    }
+  }
   return join(sources, createHash('sha256').update(JSON.stringify(spec)).digest('hex').slice(0, 32));
 }
 
