@@ -9,14 +9,14 @@ import { sampleFeatures, screenPairs } from '../src/core/candidate-pairs.js';
 import type { AnalysisPool } from '../src/main/analysis-pool.js';
 import { createAnalysisPool } from '../src/main/analysis-pool.js';
 import { runCheck } from '../src/main/check.js';
-import { writeDemoShoot } from '../src/main/demo-writer.js';
 import { createFeatureCache } from '../src/main/feature-cache.js';
 import { runCli, tempDir } from './helpers/cli.js';
+import { cachedDemoShoot } from './helpers/render-cache.js';
 import type { DemoShootResult } from '../src/main/demo-writer.js';
 
 let demo: DemoShootResult;
 beforeAll(async () => {
-  demo = await writeDemoShoot(join(tempDir(), 'shoot'), { clean: true, stations: 6, width: 1200, height: 800, seed: 11 });
+  demo = await cachedDemoShoot(join(tempDir(), 'shoot'), { clean: true, stations: 6, width: 1200, height: 800, seed: 11 });
 }, 120_000);
 
 /** The in-thread pool, counting the frames it decodes. */

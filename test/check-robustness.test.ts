@@ -16,9 +16,10 @@ import { defaultBudget } from '../src/core/report.js';
 import { judge } from '../src/core/verdicts.js';
 import { createAnalysisPool } from '../src/main/analysis-pool.js';
 import { runCheck } from '../src/main/check.js';
-import { demoExif, writeDemoShoot } from '../src/main/demo-writer.js';
+import { demoExif } from '../src/main/demo-writer.js';
 import { progressLine } from '../src/main/summary.js';
 import { projectRoot, tempDir } from './helpers/cli.js';
+import { cachedDemoShoot } from './helpers/render-cache.js';
 
 const pool = createAnalysisPool(0);
 afterAll(() => pool.destroy());
@@ -42,7 +43,7 @@ function runCliOnTerminal(args: string[]): Promise<{ code: number; output: strin
 const turnOptions = { clean: true, width: 900, height: 600, seed: 5 } as const;
 let turn: { folder: string; truth: DemoTruth };
 beforeAll(async () => {
-  turn = await writeDemoShoot(join(tempDir(), 'turn'), turnOptions);
+  turn = await cachedDemoShoot(join(tempDir(), 'turn'), turnOptions);
 }, 120_000);
 
 const flagsOf = (r: Report): string[] => [
@@ -58,7 +59,7 @@ describe('from a terminal', () => {
   });
 
   it('checks a closing turn and a two-row set with default options and answers (exit 0 or 1, never 2)', async () => {
-    const rows = await writeDemoShoot(join(tempDir(), 'rows'), { clean: true, width: 900, height: 600, seed: 9, stations: 12, rows: [-12, 8] });
+    const rows = await cachedDemoShoot(join(tempDir(), 'rows'), { clean: true, width: 900, height: 600, seed: 9, stations: 12, rows: [-12, 8] });
     for (const folder of [turn.folder, rows.folder]) {
       const { code, output } = await runCliOnTerminal(['check', folder, '--no-cache']);
       expect(output, folder).not.toMatch(/seamscout: /);

@@ -10,14 +10,14 @@ import { judge } from '../src/core/verdicts.js';
 import { createAnalysisPool } from '../src/main/analysis-pool.js';
 import { runCheck } from '../src/main/check.js';
 import type { DemoShootResult } from '../src/main/demo-writer.js';
-import { writeDemoShoot } from '../src/main/demo-writer.js';
 import { tempDir } from './helpers/cli.js';
 import { externalFixture } from './helpers/images.js';
 import { snapshot } from './helpers/snapshot.js';
+import { cachedDemoShoot } from './helpers/render-cache.js';
 
 let demo: DemoShootResult;
 beforeAll(async () => {
-  demo = await writeDemoShoot(join(tempDir(), 'shoot'), { clean: true, stations: 8, width: 1800, height: 1200, seed: 5 });
+  demo = await cachedDemoShoot(join(tempDir(), 'shoot'), { clean: true, stations: 8, width: 1800, height: 1200, seed: 5 });
 }, 120_000);
 
 describe('cancelling', () => {

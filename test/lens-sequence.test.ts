@@ -20,9 +20,9 @@ import { createScene, prepareSceneView } from '../src/core/scene-radiance.js';
 import { judge } from '../src/core/verdicts.js';
 import { createAnalysisPool } from '../src/main/analysis-pool.js';
 import { runCheck } from '../src/main/check.js';
-import { writeDemoShoot } from '../src/main/demo-writer.js';
 import { formatSummary } from '../src/main/summary.js';
 import { tempDir } from './helpers/cli.js';
+import { cachedDemoShoot } from './helpers/render-cache.js';
 
 const pool = createAnalysisPool(0);
 afterAll(() => pool.destroy());
@@ -59,7 +59,7 @@ for (const c of cases) {
   describe(`a clean 12-frame full turn, ${c.name}`, () => {
     let report: Report;
     beforeAll(async () => {
-      const demo = await writeDemoShoot(join(tempDir(), 'lens'), { ...base, ...c.options });
+      const demo = await cachedDemoShoot(join(tempDir(), 'lens'), { ...base, ...c.options });
       expect(demo.truth.fullTurn).toBe(true);
       report = judge((await runCheck(demo.folder, { pool })).analysis, defaultBudget);
     }, 120_000);

@@ -22,10 +22,10 @@ import { defaultBudget } from '../src/core/report.js';
 import { judge } from '../src/core/verdicts.js';
 import { createAnalysisPool } from '../src/main/analysis-pool.js';
 import { runCheck } from '../src/main/check.js';
-import { writeDemoShoot } from '../src/main/demo-writer.js';
 import { tempDir } from './helpers/cli.js';
 import { externalFixture, jpegRoundTrip, loadGray } from './helpers/images.js';
 import { scenarios, writeSequence } from './helpers/photo-sequences.js';
+import { cachedDemoShoot } from './helpers/render-cache.js';
 
 const identity = [1, 0, 0, 0, 1, 0, 0, 0, 1];
 let photo: GrayImage;
@@ -79,7 +79,7 @@ describe('frames that do not line up as a whole', () => {
 describe('a rendered sequence with a figure in one overlap', () => {
   it('flags movement on that pair only', async () => {
     const pool = createAnalysisPool(0);
-    const demo = await writeDemoShoot(join(tempDir(), 'visitor'), { clean: true, width: 1200, height: 800, stations: 6, seed: 5, visitor: true });
+    const demo = await cachedDemoShoot(join(tempDir(), 'visitor'), { clean: true, width: 1200, height: 800, stations: 6, seed: 5, visitor: true });
     const planted = demo.truth.problems.find((p) => p.code === 'movement')!;
     const report = judge((await runCheck(demo.folder, { pool })).analysis, defaultBudget);
     const flagged = report.pairs.filter((p) => p.reasons.includes('movement')).map((p) => [p.a, p.b]);
@@ -101,7 +101,7 @@ describe('a rendered sequence with near posts, the camera turned off its pivot',
   const options = { clean: true, width: 1200, height: 800, stations: 12, seed: 5, posts: true } as const;
 
   it('flags parallax on the pairs that see posts, and nothing else but one known misdiagnosis', async () => {
-    const demo = await writeDemoShoot(join(tempDir(), 'pivot-off'), { ...options, pivotOffsetM: 0.1 });
+    const demo = await cachedDemoShoot(join(tempDir(), 'pivot-off'), { ...options, pivotOffsetM: 0.1 });
     const report = judge((await runCheck(demo.folder, { pool })).analysis, defaultBudget);
     const between = report.pairs.filter((p) => p.kind === 'neighbour' || p.kind === 'closure');
     const parallax = between.filter((p) => p.reasons.includes('parallax'));
@@ -118,7 +118,7 @@ describe('a rendered sequence with near posts, the camera turned off its pivot',
   it('still flags parallax through a barrel lens (k1 = -0.08), once the lens is taken out', async () => {
     // The lens is refined over the sequence and the flagged pairs are judged again on the frames
     // as a pinhole camera would have seen them: that must take out the lens, not the parallax.
-    const demo = await writeDemoShoot(join(tempDir(), 'pivot-off-barrel'), { ...options, pivotOffsetM: 0.1, distortion: { k1: -0.08, k2: 0 } });
+    const demo = await cachedDemoShoot(join(tempDir(), 'pivot-off-barrel'), { ...options, pivotOffsetM: 0.1, distortion: { k1: -0.08, k2: 0 } });
     const report = judge((await runCheck(demo.folder, { pool })).analysis, defaultBudget);
     const between = report.pairs.filter((p) => p.kind === 'neighbour' || p.kind === 'closure');
     const parallax = between.filter((p) => p.reasons.includes('parallax'));
@@ -127,7 +127,7 @@ describe('a rendered sequence with near posts, the camera turned off its pivot',
   }, 240_000);
 
   it('flags nothing when the camera turns about its centre', async () => {
-    const demo = await writeDemoShoot(join(tempDir(), 'pivot-on'), { ...options, pivotOffsetM: 0 });
+    const demo = await cachedDemoShoot(join(tempDir(), 'pivot-on'), { ...options, pivotOffsetM: 0 });
     const report = judge((await runCheck(demo.folder, { pool })).analysis, defaultBudget);
     expect(report.pairs.filter((p) => p.reasons.length).map((p) => `${p.a}->${p.b}: ${p.reasons}`)).toEqual([]);
     expect(report.verdict).toBe('ok');

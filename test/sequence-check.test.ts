@@ -15,9 +15,9 @@ import { defaultBudget } from '../src/core/report.js';
 import { judge } from '../src/core/verdicts.js';
 import { createAnalysisPool } from '../src/main/analysis-pool.js';
 import { runCheck } from '../src/main/check.js';
-import { writeDemoShoot } from '../src/main/demo-writer.js';
 import { tempDir } from './helpers/cli.js';
 import { copyWithoutExif, meanCornerError } from './helpers/images.js';
+import { cachedDemoShoot } from './helpers/render-cache.js';
 
 const pool = createAnalysisPool(0);
 
@@ -46,7 +46,7 @@ describe('the demo shoot with its planted problems (12 stations, 3000x2000)', ()
     return { homography: Array.from(normalise(invert(r.homography)!)), overlap: r.overlap, evDiff: -r.evDiff };
   };
   beforeAll(async () => {
-    const demo = await writeDemoShoot(join(tempDir(), 'shoot'));
+    const demo = await cachedDemoShoot(join(tempDir(), 'shoot'));
     truth = demo.truth;
     const result = await runCheck(demo.folder, { pool });
     peakHeld = result.peakFramesHeld;
@@ -182,7 +182,7 @@ describe('the demo shoot with its planted problems (12 stations, 3000x2000)', ()
 
 describe('a clean demo shoot', () => {
   it('gets no flag at all', async () => {
-    const demo = await writeDemoShoot(join(tempDir(), 'clean'), { clean: true, width: 2000, height: 1334, seed: 7 });
+    const demo = await cachedDemoShoot(join(tempDir(), 'clean'), { clean: true, width: 2000, height: 1334, seed: 7 });
     const report = judge((await runCheck(demo.folder, { pool })).analysis, defaultBudget);
     expect(report.stations.map((s) => s.frames)).toEqual(demo.truth.stations.map((s) => s.frames));
     const flagged = [...report.pairs.filter((p) => p.reasons.length).map((p) => `${p.a}->${p.b}: ${p.reasons}`), ...report.frames.filter((f) => f.flags.length).map((f) => `${f.file}: ${f.flags}`)];
@@ -193,7 +193,7 @@ describe('a clean demo shoot', () => {
 
 describe('frames without EXIF', () => {
   it('are grouped into stations by content: one view at different brightness', async () => {
-    const demo = await writeDemoShoot(join(tempDir(), 'exif'), { clean: true, width: 1200, height: 800, stations: 6, seed: 3 });
+    const demo = await cachedDemoShoot(join(tempDir(), 'exif'), { clean: true, width: 1200, height: 800, stations: 6, seed: 3 });
     const bare = await copyWithoutExif(demo.folder);
     const report = judge((await runCheck(bare, { pool })).analysis, defaultBudget);
     expect(report.frames.every((f) => f.captureTime === null && f.settings.evBias === null)).toBe(true);

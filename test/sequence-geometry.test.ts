@@ -16,8 +16,8 @@ import { judge } from '../src/core/verdicts.js';
 import { createAnalysisPool } from '../src/main/analysis-pool.js';
 import { runCheck } from '../src/main/check.js';
 import { coverageMapContent } from '../src/main/coverage-map-file.js';
-import { writeDemoShoot } from '../src/main/demo-writer.js';
 import { tempDir } from './helpers/cli.js';
+import { cachedDemoShoot } from './helpers/render-cache.js';
 
 const pool = createAnalysisPool(0);
 afterAll(() => pool.destroy());
@@ -49,7 +49,7 @@ describe('a full turn of 12 stations', () => {
   let truth: DemoTruth;
   let report: Report;
   beforeAll(async () => {
-    const demo = await writeDemoShoot(join(tempDir(), 'turn'), { clean: true, width: 1500, height: 1000, seed: 11 });
+    const demo = await cachedDemoShoot(join(tempDir(), 'turn'), { clean: true, width: 1500, height: 1000, seed: 11 });
     truth = demo.truth;
     report = judge((await runCheck(demo.folder, { pool })).analysis, defaultBudget);
   }, 240_000);
@@ -95,7 +95,7 @@ describe('a full turn of 12 stations', () => {
 
 describe('the same turn without its last station', () => {
   it('reports that the turn does not close, and how much is missing', async () => {
-    const demo = await writeDemoShoot(join(tempDir(), 'open'), { clean: true, width: 1200, height: 800, seed: 11 });
+    const demo = await cachedDemoShoot(join(tempDir(), 'open'), { clean: true, width: 1200, height: 800, seed: 11 });
     const last = demo.truth.stations[demo.truth.stations.length - 1];
     for (const f of last.frames) rmSync(join(demo.folder, f));
     const report = judge((await runCheck(demo.folder, { pool })).analysis, defaultBudget);
@@ -132,7 +132,7 @@ describe('a set shot in two rows', () => {
   // Default options: the check sees from the neighbour chain that the set was shot in rows and
   // screens the pairs across them itself, as --all-pairs would.
   it('is seen as two rows of twelve, with nothing flagged: the step between rows is no neighbour pair', async () => {
-    const demo = await writeDemoShoot(join(tempDir(), 'rows'), options);
+    const demo = await cachedDemoShoot(join(tempDir(), 'rows'), options);
     const report = judge((await runCheck(demo.folder, { pool })).analysis, defaultBudget);
     const g = report.geometry!;
     expect(g.rows.map((r) => r.stations.length)).toEqual([12, 12]);
@@ -149,7 +149,7 @@ describe('a set shot in two rows', () => {
   }, 240_000);
 
   it('finds the hole one missing frame of the upper row leaves, where it is', async () => {
-    const demo = await writeDemoShoot(join(tempDir(), 'rows-hole'), options);
+    const demo = await cachedDemoShoot(join(tempDir(), 'rows-hole'), options);
     const gone = demo.truth.stations[20];
     for (const f of gone.frames) rmSync(join(demo.folder, f));
     const report = judge((await runCheck(demo.folder, { pool })).analysis, defaultBudget);

@@ -23,6 +23,7 @@ import { createRandom } from '../../src/core/random.js';
 import { linearOf8bit, linearToSrgb } from '../../src/core/srgb.js';
 import { exifRational } from '../../src/main/demo-writer.js';
 import { externalFixture } from './images.js';
+import { cachedBytes, renderKey, sourcesHash } from './render-cache.js';
 
 // ---------------------------------------------------------------------------------------------
 // Photographs
@@ -493,6 +494,36 @@ export interface WrittenSequence {
   readonly elapsedMs: number;
 }
 
+let rendererSources: string | null = null;
+
+/**
+ * renderLinear's output for one frame, from the render cache (test/helpers/render-cache.ts) when
+ * an earlier file or run rendered the same frame: keyed by everything renderLinear reads, so
+ * frames shared by scenarios (a subset, renamed, retimed) are rendered once. Noise, clipping and
+ * encoding are redone, being cheap and depending on the frame's index and time.
+ */
+async function cachedLinear(spec: SequenceSpec, frame: FrameSpec, render: () => Promise<Float32Array>): Promise<Float32Array> {
+  rendererSources ??= sourcesHash(['test/helpers/photo-sequences.ts'], ['test/fixtures/external/photos']);
+  const key = renderKey(rendererSources, {
+    kind: 'photo-linear',
+    scene: spec.scene,
+    width: spec.width,
+    height: spec.height,
+    focalLengthMm: spec.focalLengthMm,
+    k1: spec.k1 ?? 0,
+    k2: spec.k2 ?? 0,
+    vignetting: spec.vignetting ?? null,
+    pose: [frame.yawDeg, frame.pitchDeg, frame.rollDeg],
+    ev: frame.ev ?? 0,
+    blur: [frame.blurPx ?? 0, frame.blurDirDeg ?? 0],
+  });
+  const bytes = await cachedBytes(key, async () => {
+    const lin = await render();
+    return new Uint8Array(lin.buffer, lin.byteOffset, lin.byteLength);
+  });
+  return new Float32Array(bytes.buffer, bytes.byteOffset, bytes.byteLength / 4);
+}
+
 /**
  * Renders and writes a sequence into `folder`, which must be missing or empty: nothing is written
  * anywhere else and nothing is overwritten. Encoding of one frame overlaps rendering of the next.
@@ -503,12 +534,12 @@ export async function writeSequence(folder: string, spec: SequenceSpec): Promise
   const present = await readdir(folder);
   if (present.length > 0) throw new Error(`Expected an empty folder for folder but received ${folder} holding ${present.length} entries`);
   const truth = framesTruth(spec);
-  const scene = await prepareScene(spec.scene);
+  let scene: Promise<PreparedScene> | null = null;
   const files: string[] = [];
   const buffers: Buffer[] = [];
   let pending: Promise<void> = Promise.resolve();
   for (let i = 0; i < spec.frames.length; i++) {
-    const lin = renderLinear(scene, spec, spec.frames[i]);
+    const lin = await cachedLinear(spec, spec.frames[i], async () => renderLinear(await (scene ??= prepareScene(spec.scene)), spec, spec.frames[i]));
     const px = toSensor8bit(lin, spec.noise, (spec.seed * 7919 + i * 104729) >>> 0);
     await pending;
     const t = truth[i];
