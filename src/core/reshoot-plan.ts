@@ -13,7 +13,7 @@
  */
 import type { CoverageHole, FlagCode, FrameSettings, MatchBudget, ReportFrame, ReportPair, ReportStation, SequenceGeometry, SkippedFile, Verdict } from './report.js';
 import { fNumber, isoSpeed, millimetres, percent, shutterTime, signedEv } from './number-words.js';
-import { modalPattern, patternOf } from './stations.js';
+import { missingOffsets, modalPattern, patternOf } from './stations.js';
 
 /** What an item asks for. */
 export type PlanAction =
@@ -264,14 +264,7 @@ export function reshootPlan(source: PlanSource, sequence: number | null = null, 
     const d = stationDraft(s);
     for (const code of s.reasons) {
       if (code === 'incomplete-bracket') {
-        const want = modal ? modal.split(',') : [];
-        const have = patterns[k].split(',');
-        const missing = want.filter((o) => {
-          const at = have.indexOf(o);
-          if (at < 0) return true;
-          have.splice(at, 1);
-          return false;
-        });
+        const missing = modal ? missingOffsets(modal, patterns[k]) : [];
         const known = missing.filter((o) => o !== 'x').map((o) => signedEv(Number(o)));
         note(d, code, s.verdict, known.length ? `the ${andList(known)} frame${known.length === 1 ? ' is' : 's are'} missing` : `it has ${s.frames.length} of ${bracketSize} bracket frames`);
       } else if (code === 'settings-drift') {

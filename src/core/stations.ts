@@ -199,3 +199,14 @@ export function modalPattern(patterns: readonly string[]): string | null {
   }
   return best;
 }
+
+/** The offsets (as `patternOf` writes them) the modal pattern has and a station's pattern lacks, each as often as it lacks it. */
+export function missingOffsets(modal: string, pattern: string): string[] {
+  const have = pattern.split(',');
+  return modal.split(',').filter((o) => {
+    const at = have.indexOf(o);
+    if (at < 0) return true;
+    have.splice(at, 1);
+    return false;
+  });
+}

@@ -2,7 +2,7 @@ import type { Analysis, CoverageHole, FlagCode, SkippedFile, Finding, FolderProb
 import { coverageFindings } from './coverage-map.js';
 import { lensMisfitLimitPx } from './lens.js';
 import { reportSchema } from './report.js';
-import { modalPattern, patternOf } from './stations.js';
+import { missingOffsets, modalPattern, patternOf } from './stations.js';
 import { blurredFrames } from './blur-verdict.js';
 import { copyAgainPlan, reshootPlan } from './reshoot-plan.js';
 import { degrees, fNumber, isoSpeed, millimetres, percent as pct, shutterTime, signedEv } from './number-words.js';
@@ -213,14 +213,7 @@ function judgeOne(analysis: Analysis, budget: MatchBudget): Report {
   if (modal && modalSize > 1) {
     analysis.stations.forEach((s, i) => {
       if (patterns[i] === modal) return;
-      const want = modal.split(',');
-      const have = patterns[i].split(',');
-      const missing = want.filter((o) => {
-        const k = have.indexOf(o);
-        if (k < 0) return true;
-        have.splice(k, 1);
-        return false;
-      });
+      const missing = missingOffsets(modal, patterns[i]);
       const missingText = missing.length ? ` (missing ${missing.map((o) => signedEv(Number(o))).join(', ')})` : '';
       const advice = `station ${s.index + 1} has ${s.frames.length} of ${modalSize} bracket frames${missingText}: reshoot the station`;
       stationFindings[i].add('incomplete-bracket', 'reshoot', advice);

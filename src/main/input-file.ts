@@ -150,14 +150,19 @@ export async function readInput(path: InputPath, options: { limit?: number; head
     const want = Math.min(size, options.head ?? size);
     if (want > limit) throw failure(`${pathText(path)} is ${size} bytes, over the ${limit} bytes read at most`, 'EFBIG');
     const out = Buffer.alloc(want);
-    for (let at = 0; at < want; ) {
-      const { bytesRead } = await handle.read(out, at, Math.min(want - at, 4 << 20), at);
-      if (bytesRead === 0) throw failure(`the file ended ${at} bytes in, before the ${want} its size promised`, 'ESHORTREAD');
-      at += bytesRead;
-    }
+    await readInto(handle, out, 0);
     return out;
   } finally {
     await handle.close();
+  }
+}
+
+/** Fills `out` from byte `from` of the file on, at the same offsets, 4 MiB a read; a file that ends sooner is a read error. */
+async function readInto(handle: FileHandle, out: Buffer, from: number): Promise<void> {
+  for (let at = from; at < out.length; ) {
+    const { bytesRead } = await handle.read(out, at, Math.min(out.length - at, 4 << 20), at);
+    if (bytesRead === 0) throw failure(`the file ended ${at} bytes in, before the ${out.length} its size promised`, 'ESHORTREAD');
+    at += bytesRead;
   }
 }
 
@@ -167,11 +172,7 @@ export async function readInputHead(path: InputPath, n: number): Promise<{ bytes
   try {
     const want = Math.min(size, n);
     const out = Buffer.alloc(want);
-    for (let at = 0; at < want; ) {
-      const { bytesRead } = await handle.read(out, at, want - at, at);
-      if (bytesRead === 0) throw failure(`the file ended ${at} bytes in, before the ${want} its size promised`, 'ESHORTREAD');
-      at += bytesRead;
-    }
+    await readInto(handle, out, 0);
     return { bytes: out, size };
   } finally {
     await handle.close();
@@ -190,11 +191,7 @@ export async function readInputRest(path: InputPath, head: Buffer, size: number)
     if (size > maxInputBytes) throw failure(`${pathText(path)} is ${size} bytes, over the ${maxInputBytes} bytes read at most`, 'EFBIG');
     const out = Buffer.alloc(size);
     head.copy(out);
-    for (let at = head.length; at < size; ) {
-      const { bytesRead } = await handle.read(out, at, Math.min(size - at, 4 << 20), at);
-      if (bytesRead === 0) throw failure(`the file ended ${at} bytes in, before the ${size} its size promised`, 'ESHORTREAD');
-      at += bytesRead;
-    }
+    await readInto(handle, out, head.length);
     return out;
   } finally {
     await handle.close();
