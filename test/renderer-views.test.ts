@@ -199,7 +199,7 @@ describe('the strip', () => {
 });
 
 describe('the summary header', () => {
-  it('shows frames, stations, sweep, weak and reshoot counts and the overall verdict as icon and word', () => {
+  it('shows frames, stations, sweep, the plan\'s count of what to reshoot and the overall verdict as icon and word', () => {
     const s = renderSummary(report);
     expect(s.hasAttribute('data-summary')).toBe(true);
     const overall = s.querySelector('[data-verdict]')!;
@@ -210,11 +210,14 @@ describe('the summary header', () => {
     expect(stat('frames')).toBe('9');
     expect(stat('stations')).toBe('3');
     expect(stat('sweep')).toBe('352°');
-    expect(stat('weak')).toBe(String(report.counts.weak));
-    expect(stat('reshoot')).toBe(String(report.counts.reshoot));
+    // What is counted is what to do, the plan's items; the findings they come from are said in words.
+    expect(stat('to-reshoot')).toBe(String(report.plan!.filter((i) => !i.optional).length));
+    expect(stat('worth-a-look')).toBe(String(report.plan!.filter((i) => i.optional).length));
+    expect(s.querySelector('[data-stat="reshoot"], [data-stat="weak"]')).toBeNull();
     // Two neighbour pairs, the blurred frame; the moved bracket frame and its pair are weak.
     expect(report.counts.reshoot).toBe(3);
     expect(report.counts.weak).toBe(2);
+    expect(text(s.querySelector('[data-plan-counted]'))).toMatch(/, from 2 pairs and 1 frame flagged reshoot; 1 pair and 1 frame flagged weak$/);
     expect(text(s.querySelector('[data-skipped]'))).toContain('notes.txt: not an image');
   });
 

@@ -20,7 +20,7 @@ import { renderStart } from './start-view.js';
 import { renderCoverage } from './coverage-view.js';
 import { showFrame } from './frame-image.js';
 import { isCard, renderSequenceBar, renderSequenceList } from './sequence-list-view.js';
-import { renderStrip } from './strip-view.js';
+import { renderStrip, revealInStrip } from './strip-view.js';
 import { renderSummary } from './summary-view.js';
 import { applyStoredTheme, themeToggle } from './theme.js';
 
@@ -213,17 +213,18 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     wide.hidden = false;
     const hadFocus = stripSlot.contains(doc.activeElement) ? doc.activeElement?.getAttribute('data-pair') ?? null : null;
     const bar = isCard(card) && openSeq !== null ? renderSequenceBar(card, openSeq, backToList) : null;
-    replaceChildren(summarySlot, bar, renderSummary(report, { switchPreference: running ? undefined : switchPreference, checking: running !== null }));
+    replaceChildren(summarySlot, bar, renderSummary(report, { switchPreference: running ? undefined : switchPreference, checking: running !== null, show }));
     // While the detail is open the strip is out of the document, so that [data-pair="a|b"] names
     // one element only (the detail); thumbnails are kept and come back without reloading.
     if (detail) replaceChildren(stripSlot);
     else replaceChildren(stripSlot, renderStrip(report, { thumbnail, selected, onOpen: openDetail, onSelect: (k) => select(k, false) }));
-    replaceChildren(adviceSlot, renderAdvice(report, openDetail));
+    // The plan, with a button to each item's pair or frame, is what to do; a report from before plans lists the advice.
+    replaceChildren(adviceSlot, report.plan ? null : renderAdvice(report, openDetail));
     replaceChildren(coverageSlot, detail ? null : renderCoverage(report));
     replaceChildren(exportSlot, renderExport(exportResult, doExport));
     budgetStatusEl.textContent = budgetStatus;
     stripSection.hidden = detail !== null;
-    adviceSlot.hidden = detail !== null;
+    adviceSlot.hidden = detail !== null || !!report.plan;
     if (detail) {
       const onToggleLines = (): void => {
         lines = !lines;
@@ -301,6 +302,16 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     fillResults();
     detailSlot.querySelector<HTMLElement>('.back')?.focus();
   }
+
+  /** Shows a station or frame of the strip (closing the detail first): the plan's and the overview's buttons. */
+  function reveal(what: { station: number } | { frame: string }): void {
+    if (detail) {
+      detail = null;
+      fillResults();
+    }
+    revealInStrip(stripSlot, what);
+  }
+  const show = { onOpenPair: (key: string) => openDetail(key), onShowStation: (station: number) => reveal({ station }), onShowFrame: (frame: string) => reveal({ frame }) };
 
   function closeDetail(): void {
     const key = detail;

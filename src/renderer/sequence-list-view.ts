@@ -67,9 +67,14 @@ export function splitWords(s: SequenceSplit): string {
   }
 }
 
-/** What is left to do in a sequence: "2 to reshoot · 1 weak", or "nothing to reshoot". */
+/**
+ * What is left to do in a sequence: "2 to reshoot · 1 worth a look" counting its plan's items (as
+ * the summary does), or, for a report from before plans, "2 to reshoot · 1 weak" counting findings.
+ */
 function todoWords(q: ReportSequence): string {
-  const parts = [q.counts.reshoot ? `${q.counts.reshoot} to reshoot` : 'nothing to reshoot', q.counts.weak ? `${q.counts.weak} weak` : null];
+  const must = q.plan ? q.plan.filter((i) => !i.optional).length : q.counts.reshoot;
+  const look = q.plan ? q.plan.filter((i) => i.optional).length : q.counts.weak;
+  const parts = [must ? `${must} to reshoot` : 'nothing to reshoot', look ? `${look} ${q.plan ? 'worth a look' : 'weak'}` : null];
   return parts.filter(Boolean).join(' · ');
 }
 

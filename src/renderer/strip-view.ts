@@ -2,11 +2,11 @@
 // reference frame on top), and between neighbouring stations a link with overlap, inliers, EV
 // difference and the verdict. A pure function of the report: a partial report (pairs still
 // missing) renders too, with "not measured yet" in place of the missing links.
-import type { FlagCode, Report, ReportFrame, ReportPair, ReportStation } from '../core/report.js';
+import type { FlagCode, Report, ReportFrame, ReportPair, ReportStation, Verdict } from '../core/report.js';
 import type { Child } from './dom.js';
 import { button, el } from './dom.js';
 import { evOffset, evStep, flagMeaning, flagWords, percent, pixels, plural, verdictWords } from './format.js';
-import { verdictBadge } from './icons.js';
+import { verdictBadge, verdictIcon } from './icons.js';
 import { bracketPairOf, chainSlots, pairKey } from './pairs.js';
 
 export interface StripContext {
@@ -27,7 +27,8 @@ function pairLinkBody(p: ReportPair, heading: Child): Child[] {
   const matched = p.homography !== null;
   const parts: Child[] = [
     heading,
-    el('span', { class: 'link-overlap' }, matched ? percent(p.overlap) : 'no match'),
+    // "no match" in words is wider than "45 %": its own class lets it wrap at a smaller size inside the card.
+    el('span', { class: matched ? 'link-overlap' : 'link-overlap link-no-match' }, matched ? percent(p.overlap) : 'no match'),
     el('span', { class: 'link-label' }, matched ? 'overlap' : 'no overlap found'),
     el('span', { class: 'link-inliers' }, plural(p.inliers, 'inlier')),
     el('span', { class: 'link-ev' }, evStep(p.evDiff)),
@@ -73,7 +74,8 @@ function frameTile(report: Report, f: ReportFrame, station: ReportStation, ctx: 
   const bracket = isRef ? null : bracketPairOf(report, f.file);
   return el(
     'figure',
-    { class: `frame frame-${f.verdict}${isRef ? ' is-reference' : ''}`, 'data-frame': f.file, 'data-verdict': f.verdict },
+    // Focusable from script (not by Tab): the plan's "Show frame" brings the frame into view and focus.
+    { class: `frame frame-${f.verdict}${isRef ? ' is-reference' : ''}`, 'data-frame': f.file, 'data-verdict': f.verdict, tabindex: -1 },
     el('div', { class: 'thumb' }, img),
     el(
       'figcaption',
@@ -107,7 +109,7 @@ function stationColumn(report: Report, s: ReportStation, ctx: StripContext): HTM
   const flagged = s.verdict !== 'ok';
   return el(
     'section',
-    { class: `station station-${s.verdict}`, 'data-station': s.index, 'data-verdict': s.verdict, 'aria-label': `Station ${s.index + 1}, ${plural(s.frames.length, 'frame')}` },
+    { class: `station station-${s.verdict}`, 'data-station': s.index, 'data-verdict': s.verdict, 'aria-label': `Station ${s.index + 1}, ${plural(s.frames.length, 'frame')}`, tabindex: -1 },
     el('header', { class: 'station-head' }, el('span', { class: 'station-name' }, `Station ${s.index + 1}`), flagged ? verdictBadge(s.verdict, 20) : null, flagList(s.flags)),
     el('div', { class: 'stack' }, files.flatMap((file) => {
       const f = byFile.get(file);
@@ -135,4 +137,80 @@ export function renderStrip(report: Report, ctx: StripContext): HTMLElement {
     strip.append(pairLink(closure.pair, `Closure, station ${closure.from + 1} back to 1`, el('span', { class: 'link-heading' }, 'back to station 1'), ctx, 'link-closure'));
   }
   return strip;
+}
+
+/**
+ * Brings a station or a frame of the strip into view (scrolling the strip sideways and the page as
+ * needed) and gives it focus, so the keyboard carries on from there. False when it is not shown.
+ */
+export function revealInStrip(strip: ParentNode, what: { station: number } | { frame: string }): boolean {
+  const selector = 'station' in what ? `[data-station="${what.station}"]` : `[data-frame="${what.frame.replace(/["\\]/g, '\\$&')}"]`;
+  const target = strip.querySelector<HTMLElement>(selector);
+  if (!target) return false;
+  target.scrollIntoView?.({ block: 'nearest', inline: 'center' });
+  target.focus({ preventScroll: true });
+  return true;
+}
+
+export interface OverviewContext {
+  readonly onOpen: (key: string) => void;
+  readonly onShowStation: (index: number) => void;
+}
+
+const rank: Record<Verdict, number> = { ok: 0, weak: 1, reshoot: 2 };
+const worst = (vs: readonly Verdict[]): Verdict => vs.reduce<Verdict>((w, v) => (rank[v] > rank[w] ? v : w), 'ok');
+
+/**
+ * A station as the overview marks it: the worst of its own verdict, its frames' and the plan's word
+ * for it (a station whose exposure jumped is judged on its links, yet the plan reshoots it).
+ */
+export function stationMark(report: Report, s: ReportStation): Verdict {
+  const frames = report.frames.filter((f) => f.station === s.index).map((f) => f.verdict);
+  const planned = (report.plan ?? []).filter((i) => i.action === 'reshoot-station' && i.stationIndices.includes(s.index)).map((i): Verdict => (i.optional ? 'weak' : 'reshoot'));
+  return worst([s.verdict, ...frames, ...planned]);
+}
+
+function overviewCell(kind: 'station' | 'link', verdict: Verdict, main: string, attrs: Record<string, string | number>, label: string, onClick: () => void, sub: string | null = null): HTMLLIElement {
+  const flagged = verdict !== 'ok';
+  return el(
+    'li',
+    { class: `ov-item ov-item-${kind}` },
+    button(
+      { class: `ov ov-${kind} ov-${verdict}`, 'data-overview-verdict': verdict, 'aria-label': label, title: label, ...attrs },
+      onClick,
+      // The icon beside the number and the word under it keep a flagged cell narrow enough for a whole sequence in one row.
+      el('span', { class: 'ov-main' }, flagged ? verdictIcon(verdict, 14) : null, main),
+      // Spaces keep the cell's text readable as text ("6 % reshoot"); the grid lays out the spans alone.
+      flagged ? [' ', el('span', { class: 'ov-word' }, verdictWords[verdict])] : null,
+      sub ? [' ', el('span', { class: 'ov-sub' }, sub)] : null,
+    ),
+  );
+}
+
+/**
+ * Every station and every link between them in one compact row, so the whole sequence and each
+ * flagged place is seen at once, whatever the strip below shows: a station's cell brings it into
+ * view in the strip, a link's cell opens its pair. Flagged cells carry the icon and the word.
+ */
+export function renderOverview(report: Report, ctx: OverviewContext): HTMLElement | null {
+  if (report.stations.length === 0) return null;
+  const slots = chainSlots(report);
+  const cells: HTMLLIElement[] = [];
+  const linkCell = (p: ReportPair, what: string, sub: string | null = null): HTMLLIElement => {
+    const reasons = p.reasons.length ? ` (${p.reasons.map(flagWords).join(', ')})` : '';
+    return overviewCell('link', p.verdict, p.homography ? percent(p.overlap) : 'no match', { 'data-overview-pair': pairKey(p) }, `${what}: ${p.homography ? `overlap ${percent(p.overlap)}` : 'no match'}, ${verdictWords[p.verdict]}${reasons}. Opens the pair.`, () => ctx.onOpen(pairKey(p)), sub);
+  };
+  report.stations.forEach((s, i) => {
+    const mark = stationMark(report, s);
+    const flags = [...new Set([...s.flags, ...report.frames.filter((f) => f.station === s.index).flatMap((f) => f.flags)])];
+    const why = flags.length ? ` (${flags.map(flagWords).join(', ')})` : '';
+    cells.push(overviewCell('station', mark, String(s.index + 1), { 'data-overview-station': s.index }, `Station ${s.index + 1}: ${verdictWords[mark]}${why}. Shows it in the strip.`, () => ctx.onShowStation(s.index)));
+    const slot = slots.find((x) => x.from === i && x.to === i + 1);
+    if (!slot) return;
+    if (slot.pair) cells.push(linkCell(slot.pair, `Station ${i + 1} to ${i + 2}`));
+    else cells.push(el('li', { class: 'ov-item ov-item-link' }, el('span', { class: 'ov ov-link ov-missing', title: 'not measured yet' }, el('span', { class: 'ov-main' }, '…'))));
+  });
+  const closure = slots.find((x) => x.pair?.kind === 'closure');
+  if (closure?.pair) cells.push(linkCell(closure.pair, `Closure, station ${closure.from + 1} back to 1`, 'to 1'));
+  return el('nav', { class: 'overview', 'data-overview': '', 'aria-label': 'Every station and link at a glance' }, el('span', { class: 'ov-title', 'aria-hidden': 'true' }, 'Stations'), el('ol', { class: 'overview-row' }, cells));
 }

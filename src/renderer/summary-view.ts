@@ -1,12 +1,16 @@
-// The summary header: the overall verdict, the reshoot plan, and the numbers, large.
+// The summary header: the overall verdict, the reshoot plan (each item with a way to see it), the
+// numbers in one compact row and, for a sequence, every station and link at a glance.
 import { lensSentence } from '../core/lens-words.js';
 import { millimetres } from '../core/number-words.js';
 import type { Report, Verdict } from '../core/report.js';
 import { notChecked } from '../core/verdicts.js';
+import type { PlanActions } from './advice-view.js';
+import { planButtons } from './advice-view.js';
 import { button, el } from './dom.js';
 import { plural } from './format.js';
 import { verdictBadge, verdictIcon } from './icons.js';
 import { cardWords, isCard } from './sequence-list-view.js';
+import { renderOverview } from './strip-view.js';
 
 const overallWords: Record<Verdict, string> = {
   ok: 'The sequence looks complete.',
@@ -33,6 +37,12 @@ export interface SummaryActions {
    * is given (a sequence half checked is not "complete"); the state reads "checking" until the end.
    */
   readonly checking?: boolean;
+  /**
+   * Where the plan's items and the overview row lead (a sequence shown with its strip): with them,
+   * each plan item gets "Show pair" / "Show frame" / "Show station" and the overview row is shown.
+   * Without them (a card's list, where stations count per sequence) neither is.
+   */
+  readonly show?: PlanActions;
 }
 
 const checkingWords = 'Checking: results so far. The verdict comes once every pair is checked.';
@@ -49,20 +59,48 @@ function rawPlusJpegNote(r: NonNullable<Report['rawPlusJpeg']>, switchPreference
   );
 }
 
+/** "4 pairs and 4 frames": what the verdicts flagged, in words. */
+function flaggedWords(report: Report, v: 'weak' | 'reshoot'): string | null {
+  const pairs = report.pairs.filter((p) => p.verdict === v).length, frames = report.frames.filter((f) => f.verdict === v).length;
+  const parts = [pairs ? plural(pairs, 'pair') : null, frames ? plural(frames, 'frame') : null].filter(Boolean);
+  return parts.length ? `${parts.join(' and ')} flagged ${v}` : null;
+}
+
+/**
+ * What the plan's numbers count, in words: its items, and the flagged pairs and frames they come
+ * from ("5 items, from 4 pairs and 4 frames flagged reshoot"), so that a count of findings is never
+ * read as a count of things to do.
+ */
+export function planCountWords(report: Report): string {
+  const plan = report.plan ?? [];
+  const must = plan.filter((i) => !i.optional).length, look = plan.length - must;
+  const items = [must ? `${plural(must, 'item')} to reshoot` : 'nothing to reshoot', look ? `${look} worth a look` : null].filter(Boolean).join(', ');
+  const from = [flaggedWords(report, 'reshoot'), flaggedWords(report, 'weak')].filter(Boolean);
+  return from.length ? `${items}, from ${from.join('; ')}` : items;
+}
+
 /**
  * The reshoot plan, read first: what must be reshot, numbered in shooting order, then what is worth
- * a look. Nothing when the plan is empty (the overall words say so) or the report has none.
+ * a look, each item with a button to its pair, frame or station when `show` is given. Nothing when
+ * the plan is empty (the overall words say so) or the report has none.
  */
-export function renderPlan(report: Report): HTMLElement | null {
+export function renderPlan(report: Report, show?: PlanActions): HTMLElement | null {
   const plan = report.plan ?? [];
   if (plan.length === 0) return null;
   const must = plan.filter((i) => !i.optional), look = plan.filter((i) => i.optional);
-  const item = (i: (typeof plan)[number]): HTMLElement =>
-    el('li', { class: `plan-item plan-${i.optional ? 'weak' : 'reshoot'}`, 'data-plan-item': i.action, ...(i.optional ? { 'data-optional': '' } : {}) }, verdictIcon(i.optional ? 'weak' : 'reshoot', 18), el('span', {}, ` ${i.text}`));
+  const item = (i: (typeof plan)[number]): HTMLElement => {
+    const go = show ? planButtons(report, i, show) : [];
+    return el(
+      'li',
+      { class: `plan-item plan-${i.optional ? 'weak' : 'reshoot'}`, 'data-plan-item': i.action, ...(i.optional ? { 'data-optional': '' } : {}) },
+      el('span', { class: 'plan-text' }, verdictIcon(i.optional ? 'weak' : 'reshoot', 18), ` ${i.text}`),
+      go.length ? el('span', { class: 'plan-go' }, go) : null,
+    );
+  };
   return el(
     'section',
     { class: 'plan', 'data-plan': plan.length, 'aria-label': 'Reshoot plan' },
-    must.length ? el('h2', {}, 'Reshoot plan, in shooting order') : null,
+    el('div', { class: 'plan-head' }, must.length ? el('h2', {}, 'Reshoot plan, in shooting order') : null, el('p', { class: 'plan-counted', 'data-plan-counted': '' }, planCountWords(report))),
     must.length ? el('ol', {}, must.map(item)) : null,
     look.length ? el('h3', {}, must.length ? 'Worth a look (optional)' : 'Worth a look') : null,
     look.length ? el('ul', {}, look.map(item)) : null,
@@ -87,7 +125,7 @@ export function renderSummary(report: Report, act: SummaryActions = {}): HTMLEle
           el('p', { class: 'overall-words' }, card ? `${cardWords(report)}.` : overallSentence(report)),
           el('p', { class: 'folder', title: report.folder }, folderName),
         ),
-    renderPlan(report),
+    renderPlan(report, act.show),
     el(
       'dl',
       { class: 'stats' },
@@ -98,9 +136,16 @@ export function renderSummary(report: Report, act: SummaryActions = {}): HTMLEle
       report.geometry ? stat('vertical', `${Math.round(report.geometry.verticalDeg)}°`, 'vertical') : null,
       report.geometry?.closure ? stat('turn', report.geometry.closure.closes ? 'closes' : 'open', 'full turn') : null,
       report.geometry?.focal35mm !== undefined ? stat('lens', millimetres(report.geometry.focal35mm), 'lens (35 mm eq.)', null, `Lens as measured: ${lensSentence(report)}`) : null,
-      stat('weak', String(c.weak), 'weak', verdictIcon('weak', 20)),
-      stat('reshoot', String(c.reshoot), 'reshoot', verdictIcon('reshoot', 20)),
+      // With a plan, what is counted is what to do: its items (the flagged findings they come from are said in words beside the plan).
+      ...(report.plan
+        ? [
+            stat('to-reshoot', String(report.plan.filter((i) => !i.optional).length), 'to reshoot', verdictIcon('reshoot', 18), planCountWords(report)),
+            // Nothing worth a look is said once, in the words beside the plan, not as a large 0.
+            report.plan.some((i) => i.optional) ? stat('worth-a-look', String(report.plan.filter((i) => i.optional).length), 'worth a look', verdictIcon('weak', 18), planCountWords(report)) : null,
+          ]
+        : [stat('weak', String(c.weak), 'pairs and frames weak', verdictIcon('weak', 18)), stat('reshoot', String(c.reshoot), 'pairs and frames to reshoot', verdictIcon('reshoot', 18))]),
     ),
+    act.show && !card ? renderOverview(report, { onOpen: act.show.onOpenPair, onShowStation: act.show.onShowStation }) : null,
     (report.folderProblems ?? []).length
       ? el('ul', { class: 'folder-problems', 'data-folder-problems': '' }, report.folderProblems.map((p) => el('li', { 'data-folder-problem': p.code }, verdictIcon('weak', 20), ` ${p.advice}`)))
       : null,
