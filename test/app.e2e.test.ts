@@ -20,6 +20,8 @@ import { projectRoot, tempDir } from './helpers/cli.js';
 
 const chromiumPath = '/usr/bin/chromium';
 const shots = join(projectRoot, 'test-results');
+// The screenshots the README and docs/ui.md show, taken afresh by every run.
+const docShots = join(projectRoot, 'docs', 'screenshots');
 
 let host: BrowserHost;
 let browser: Browser;
@@ -48,6 +50,48 @@ beforeAll(async () => {
   page = await context.newPage();
   page.on('pageerror', (err) => console.error('page error:', err.message));
 }, 240_000);
+
+/**
+ * Fails naming each card or cell of the page (strip stations, links, frames, bracket chips,
+ * overview cells, plan items, numbers) whose text or child boxes reach outside its own box, or that
+ * clips its content (overflow hidden or clip, with more to scroll than it shows).
+ */
+async function expectNoOverflow(where: string): Promise<void> {
+  expect(await findOverflow(), `${where}: text outside its box`).toEqual([]);
+}
+
+async function findOverflow(): Promise<string[]> {
+  return page.evaluate(() => {
+    const cards = [...document.querySelectorAll<HTMLElement>('.station, .link, .frame, .bracket-link, .ov, .plan-item, .stat, .summary, .advice, .sequence')];
+    const name = (n: Element): string => {
+      const hook = ['data-pair', 'data-frame', 'data-station', 'data-overview-station', 'data-overview-pair', 'data-stat', 'data-plan-item'].find((a) => n.hasAttribute(a));
+      return `${n.tagName.toLowerCase()}.${[...n.classList].join('.')}${hook ? `[${hook}="${n.getAttribute(hook)}"]` : ''} "${(n.textContent ?? '').replace(/\s+/g, ' ').trim().slice(0, 50)}"`;
+    };
+    const shown = (r: DOMRect): boolean => r.width > 0 && r.height > 0;
+    const problems: string[] = [];
+    for (const card of cards) {
+      const box = card.getBoundingClientRect();
+      if (!shown(box)) continue;
+      const out = (r: DOMRect): boolean => shown(r) && (r.left < box.left - 1 || r.top < box.top - 1 || r.right > box.right + 1 || r.bottom > box.bottom + 1);
+      for (const n of [card, ...card.querySelectorAll<HTMLElement>('*')]) {
+        if (n.closest('.visually-hidden')) continue;
+        const style = getComputedStyle(n);
+        const clips = /hidden|clip/.test(`${style.overflowX} ${style.overflowY}`);
+        if (clips && (n.scrollWidth > n.clientWidth + 1 || n.scrollHeight > n.clientHeight + 1)) problems.push(`${name(n)} clips its text (${n.scrollWidth}x${n.scrollHeight} in ${n.clientWidth}x${n.clientHeight}) in ${name(card)}`);
+        if (n !== card && out(n.getBoundingClientRect())) problems.push(`${name(n)} reaches outside ${name(card)}`);
+      }
+      // Text itself, which can run out of a box that stays inside its card (white-space: nowrap).
+      const walker = document.createTreeWalker(card, NodeFilter.SHOW_TEXT);
+      const range = document.createRange();
+      for (let t = walker.nextNode(); t; t = walker.nextNode()) {
+        if (!t.textContent?.trim() || t.parentElement?.closest('.visually-hidden')) continue;
+        range.selectNodeContents(t);
+        if (out(range.getBoundingClientRect())) problems.push(`text "${t.textContent.trim().slice(0, 30)}" runs out of ${name(card)}`);
+      }
+    }
+    return [...new Set(problems)];
+  });
+}
 
 afterAll(async () => {
   await browser?.close();
@@ -145,6 +189,105 @@ describe('the app in a real browser', () => {
     expect(xml).toContain('<graphml xmlns="http://graphml.graphdrawing.org/xmlns"');
     expect((xml.match(/<node /g) ?? []).length).toBe(truth.frames.length);
     await expect.poll(() => page.locator('[data-export-result]').innerText()).toMatch(/graphml/i);
+  }, 60_000);
+
+  // The first screen of a laptop (1366x768) and of a desktop (1920x1080), light and dark: the plan
+  // on top, every station and link in the overview row, each flagged place visible without
+  // scrolling, the numbers agreeing with the plan, and no text outside its box. The screenshots
+  // are the ones the README and docs/ui.md show.
+  it('shows the plan, every station and link and each flagged one on the first screen, at 1366x768 and 1920x1080, light and dark', async () => {
+    mkdirSync(docShots, { recursive: true });
+    const plan = await page.locator('[data-plan] ol > [data-plan-item]').count();
+    expect(plan).toBeGreaterThan(0);
+    for (const [width, height] of [[1366, 768], [1920, 1080]] as const) {
+      for (const colorScheme of ['light', 'dark'] as const) {
+        const where = `${width}x${height} ${colorScheme}`;
+        await page.setViewportSize({ width, height });
+        // The theme as a person switches it: the toggle in the top bar (style.css's page colour of each theme).
+        const background = colorScheme === 'dark' ? 'rgb(15, 17, 19)' : 'rgb(255, 255, 255)';
+        const bodyColour = (): Promise<string> => page.evaluate(() => getComputedStyle(document.body).backgroundColor);
+        if ((await bodyColour()) !== background) await page.locator('[data-theme-toggle]').click();
+        expect(await bodyColour(), where).toBe(background);
+        await page.evaluate(() => window.scrollTo(0, 0));
+        await page.waitForLoadState('networkidle');
+        // Fully inside the first screen: the plan's items with their buttons, every overview cell.
+        const outside = await page.evaluate(() => {
+          const w = document.documentElement.clientWidth, h = document.documentElement.clientHeight;
+          const boxes = [...document.querySelectorAll<HTMLElement>('[data-plan-item], [data-plan] button, [data-overview-station], [data-overview-pair], [data-stat]')];
+          return boxes.filter((b) => {
+            const r = b.getBoundingClientRect();
+            return r.top < 0 || r.left < 0 || r.bottom > h || r.right > w;
+          }).map((b) => b.getAttribute('data-overview-station') ?? b.getAttribute('data-overview-pair') ?? b.getAttribute('data-stat') ?? b.textContent?.slice(0, 40));
+        });
+        expect(outside, `${where}: not on the first screen`).toEqual([]);
+        expect(await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth), where).toBe(0);
+        // Every station and every link (the closure too) has its cell; every flagged one says so in icon and word.
+        expect(await page.locator('[data-overview-station]').count()).toBe(truth.stations.length);
+        expect(await page.locator('[data-overview-pair]').count()).toBe(await page.locator('.strip > [data-pair], .strip > .link-missing').count());
+        const flagged = await page.locator('[data-overview-verdict]:not([data-overview-verdict="ok"])').evaluateAll((cells) => cells.map((c) => ({ v: c.getAttribute('data-overview-verdict'), icon: c.querySelector('[data-icon]')?.getAttribute('data-icon'), word: c.querySelector('.ov-word')?.textContent })));
+        expect(flagged.length).toBeGreaterThan(0);
+        for (const f of flagged) expect(f, where).toEqual({ v: f.v, icon: f.v, word: f.v });
+        // Each planted problem is flagged in the overview row: the link across a gap or a jump, the station of a frame problem.
+        const stationOf = new Map(truth.stations.flatMap((st, i) => st.frames.map((file) => [file, i])));
+        for (const problem of truth.problems) {
+          const cell = problem.code === 'low-overlap'
+            ? page.locator(`[data-overview-pair="${problem.frames[0]}|${problem.frames[1]}"]`)
+            : page.locator(`[data-overview-station="${stationOf.get(problem.frames[0])}"]`);
+          expect(await cell.getAttribute('data-overview-verdict'), `${where}: ${problem.code} on ${problem.frames.join(', ')}`).not.toBe('ok');
+        }
+        // One count: what is to reshoot is the plan's items, never the count of flagged pairs and frames.
+        expect(await page.locator('[data-stat="to-reshoot"] dd').innerText()).toBe(String(plan));
+        expect(await page.locator('[data-stat="reshoot"]').count()).toBe(0);
+        await expectNoOverflow(where);
+        await page.screenshot({ path: join(docShots, `app-${width}x${height}-${colorScheme}.png`) });
+      }
+    }
+    await page.locator('[data-theme-toggle]').click();
+    expect(await page.evaluate(() => getComputedStyle(document.body).backgroundColor)).toBe('rgb(255, 255, 255)');
+    await page.setViewportSize({ width: 1600, height: 1000 });
+  }, 90_000);
+
+  it('finds text that runs out of its card, and names the card', async () => {
+    // The check itself, on a planted fault: overlap numerals far too large for their link cards.
+    const ok = (await page.locator('.strip > [data-pair][data-verdict="ok"]').first().getAttribute('data-pair'))!;
+    // (Through element.style: the page's Content-Security-Policy refuses a style sheet from the test.)
+    const numeral = page.locator(`.strip > [data-pair="${ok}"] .link-overlap`);
+    await numeral.evaluate((n) => ((n as HTMLElement).style.fontSize = '6rem'));
+    const found = await findOverflow();
+    await numeral.evaluate((n) => ((n as HTMLElement).style.fontSize = ''));
+    expect(found.some((f) => f.includes(`[data-pair="${ok}"]`) && /reaches outside|runs out of/.test(f))).toBe(true);
+    expect(await findOverflow()).toEqual([]);
+  }, 30_000);
+
+  it('leads from a plan item to its pair, from another to its frame, and from the overview to a station', async () => {
+    await page.setViewportSize({ width: 1366, height: 768 });
+    await page.evaluate(() => window.scrollTo(0, 0));
+    const first = page.locator('[data-plan] [data-open-pair]').first();
+    const key = (await first.getAttribute('data-open-pair'))!;
+    await first.click();
+    await page.locator(`[data-detail][data-pair="${key}"]`).waitFor();
+    await page.keyboard.press('Escape');
+    await page.locator('.strip').waitFor();
+    // A frame or a station comes into view in the strip and takes the focus.
+    const target = page.locator('[data-plan] [data-show-frame], [data-plan] [data-show-station]').first();
+    const file = await target.getAttribute('data-show-frame');
+    const index = await target.getAttribute('data-show-station');
+    await target.click();
+    const focused = page.locator(file !== null ? `.strip [data-frame="${file}"]` : `.strip [data-station="${index}"]`);
+    await expect.poll(() => focused.evaluate((n) => n === document.activeElement)).toBe(true);
+    const inView = (): Promise<boolean> => focused.evaluate((n) => {
+      const r = n.getBoundingClientRect();
+      return r.right > 0 && r.left < document.documentElement.clientWidth && r.bottom > 0 && r.top < document.documentElement.clientHeight;
+    });
+    expect(await inView()).toBe(true);
+    const last = truth.stations.length - 1;
+    await page.evaluate(() => window.scrollTo(0, 0));
+    await page.locator(`[data-overview-station="${last}"]`).click();
+    await expect.poll(() => page.evaluate(() => document.activeElement?.getAttribute('data-station'))).toBe(String(last));
+    const station = page.locator(`.strip [data-station="${last}"]`);
+    expect(await station.evaluate((n) => n.getBoundingClientRect().right <= document.documentElement.clientWidth)).toBe(true);
+    await page.evaluate(() => window.scrollTo(0, 0));
+    await page.setViewportSize({ width: 1600, height: 1000 });
   }, 60_000);
 });
 

@@ -198,7 +198,7 @@ export function renderOverview(report: Report, ctx: OverviewContext): HTMLElemen
   const cells: HTMLLIElement[] = [];
   const linkCell = (p: ReportPair, what: string, sub: string | null = null): HTMLLIElement => {
     const reasons = p.reasons.length ? ` (${p.reasons.map(flagWords).join(', ')})` : '';
-    return overviewCell('link', p.verdict, p.homography ? percent(p.overlap) : 'no match', { 'data-overview-pair': pairKey(p) }, `${what}: ${p.homography ? `overlap ${percent(p.overlap)}` : 'no match'}, ${verdictWords[p.verdict]}${reasons}. Opens the pair.`, () => ctx.onOpen(pairKey(p)), sub);
+    return overviewCell('link', p.verdict, p.homography ? percent(p.overlap) : 'no match', { 'data-overview-pair': pairKey(p), ...(p.homography ? {} : { 'data-no-match': '' }) }, `${what}: ${p.homography ? `overlap ${percent(p.overlap)}` : 'no match'}, ${verdictWords[p.verdict]}${reasons}. Opens the pair.`, () => ctx.onOpen(pairKey(p)), sub);
   };
   report.stations.forEach((s, i) => {
     const mark = stationMark(report, s);
