@@ -123,6 +123,16 @@ describe('the plan with a way to see each item', () => {
     expect(text(s.querySelector('[data-plan-counted]'))).toMatch(new RegExp(`^${must} items to reshoot(, \\d+ worth a look)?, from ${pairs} pairs and ${frames} frames flagged reshoot`));
   });
 
+  it('while the check runs, counts what is to reshoot so far and says nothing yet about the folder as a whole', () => {
+    // The first results of a check: no frame judged yet, which the finished check would call a folder problem.
+    const early = judge({ ...analysis, frames: [], stations: [], pairs: [] }, defaultBudget);
+    expect(early.folderProblems.map((p) => p.code)).toEqual(['no-frames']);
+    const running = renderSummary(early, { checking: true, show });
+    expect(running.querySelector('[data-folder-problems]')).toBeNull();
+    expect(text(running.querySelector('[data-stat="to-reshoot"] dt'))).toBe('to reshoot so far');
+    expect(renderSummary(early).querySelector('[data-folder-problem="no-frames"]')).not.toBeNull();
+  });
+
   it('leaves the buttons and the overview out where no strip is shown (a card\'s list)', () => {
     const plain = renderSummary(report);
     expect(plain.querySelectorAll('[data-plan] button').length).toBe(0);

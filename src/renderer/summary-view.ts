@@ -139,14 +139,15 @@ export function renderSummary(report: Report, act: SummaryActions = {}): HTMLEle
       // With a plan, what is counted is what to do: its items (the flagged findings they come from are said in words beside the plan).
       ...(report.plan
         ? [
-            stat('to-reshoot', String(report.plan.filter((i) => !i.optional).length), 'to reshoot', verdictIcon('reshoot', 18), planCountWords(report)),
+            stat('to-reshoot', String(report.plan.filter((i) => !i.optional).length), act.checking ? 'to reshoot so far' : 'to reshoot', verdictIcon('reshoot', 18), planCountWords(report)),
             // Nothing worth a look is said once, in the words beside the plan, not as a large 0.
             report.plan.some((i) => i.optional) ? stat('worth-a-look', String(report.plan.filter((i) => i.optional).length), 'worth a look', verdictIcon('weak', 18), planCountWords(report)) : null,
           ]
         : [stat('weak', String(c.weak), 'pairs and frames weak', verdictIcon('weak', 18)), stat('reshoot', String(c.reshoot), 'pairs and frames to reshoot', verdictIcon('reshoot', 18))]),
     ),
     act.show && !card ? renderOverview(report, { onOpen: act.show.onOpenPair, onShowStation: act.show.onShowStation }) : null,
-    (report.folderProblems ?? []).length
+    // A folder's problems (no frame, one frame) are judged on the whole folder: not before the check ends.
+    !act.checking && (report.folderProblems ?? []).length
       ? el('ul', { class: 'folder-problems', 'data-folder-problems': '' }, report.folderProblems.map((p) => el('li', { 'data-folder-problem': p.code }, verdictIcon('weak', 20), ` ${p.advice}`)))
       : null,
     report.rawPlusJpeg ? rawPlusJpegNote(report.rawPlusJpeg, act.switchPreference) : null,
