@@ -307,6 +307,30 @@ describe('progress', () => {
     expect($('[data-summary] [data-verdict]')?.getAttribute('data-verdict')).toBe(report.verdict);
   });
 
+  it('leads from the plan and the overview row to the pair or the station, and keeps a plan button focused as fuller results arrive', async () => {
+    const f = fakeApi();
+    await mount(f);
+    buttonNamed('Try the demo shoot').click();
+    await tick();
+    f.emitPartial({ checkId: 7, report });
+    const gap = $<HTMLButtonElement>(`[data-plan] [data-open-pair="${K12}"]`)!;
+    expect(gap).not.toBeNull();
+    gap.focus();
+    // A fuller report of the same check draws the summary again: the focus stays on the same button.
+    f.emitPartial({ checkId: 7, report });
+    expect(document.activeElement?.getAttribute('data-open-pair')).toBe(K12);
+    expect(document.activeElement).not.toBe(gap);
+    f.emitDone({ checkId: 7, report, error: null, cancelled: false });
+    $<HTMLButtonElement>(`[data-plan] [data-open-pair="${K12}"]`)!.click();
+    expect($('[data-detail]')?.getAttribute('data-pair')).toBe(K12);
+    // A station's cell closes the detail and gives the focus to that station in the strip.
+    $<HTMLButtonElement>('[data-overview-station="3"]')!.click();
+    expect($('[data-detail]')).toBeNull();
+    expect(document.activeElement?.getAttribute('data-station')).toBe('3');
+    // The plan replaces the list of advice.
+    expect($('[data-advice]')).toBeNull();
+  });
+
   it('cancels the check and goes back to the start screen', async () => {
     const f = fakeApi();
     await mount(f);

@@ -21,7 +21,7 @@ import { renderCoverage } from './coverage-view.js';
 import { showFrame } from './frame-image.js';
 import { isCard, renderSequenceBar, renderSequenceList } from './sequence-list-view.js';
 import { renderStrip, revealInStrip } from './strip-view.js';
-import { renderSummary } from './summary-view.js';
+import { focusedInSummary, renderSummary } from './summary-view.js';
 import { applyStoredTheme, themeToggle } from './theme.js';
 
 export interface MountOptions {
@@ -160,10 +160,10 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
       running.view.update(running.model);
     } else if (screen === 'results' && report) {
       // While the check still runs, its progress (and Cancel) stays above the results so far.
-      if (running) {
-        replaceChildren(view, running.view.element, results);
-        running.view.update(running.model);
-      } else replaceChildren(view, results);
+      // Put in place only when not already there: moving the results out and back would drop the focus.
+      const parts = running ? [running.view.element, results] : [results];
+      if (view.childNodes.length !== parts.length || parts.some((n, i) => view.childNodes[i] !== n)) replaceChildren(view, ...parts);
+      running?.view.update(running.model);
       fillResults();
     }
   }
@@ -212,6 +212,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     listSlot.hidden = true;
     wide.hidden = false;
     const hadFocus = stripSlot.contains(doc.activeElement) ? doc.activeElement?.getAttribute('data-pair') ?? null : null;
+    const summaryFocus = focusedInSummary(summarySlot);
     const bar = isCard(card) && openSeq !== null ? renderSequenceBar(card, openSeq, backToList) : null;
     replaceChildren(summarySlot, bar, renderSummary(report, { switchPreference: running ? undefined : switchPreference, checking: running !== null, show }));
     // While the detail is open the strip is out of the document, so that [data-pair="a|b"] names
@@ -235,6 +236,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
       replaceChildren(detailSlot);
     }
     if (hadFocus) stripSlot.querySelector<HTMLElement>(`[data-pair="${cssEscape(hadFocus)}"]`)?.focus();
+    if (summaryFocus) summarySlot.querySelector<HTMLElement>(summaryFocus)?.focus();
   }
 
   /** Redraws an open detail (tie points arrived, lines toggled), keeping focus on the same control. */

@@ -161,3 +161,17 @@ export function renderSummary(report: Report, act: SummaryActions = {}): HTMLEle
       : null,
   );
 }
+
+const focusHooks = ['data-open-pair', 'data-show-frame', 'data-show-station', 'data-overview-station', 'data-overview-pair', 'data-switch-preference'];
+
+/**
+ * A selector for the summary's button that has the focus, so that a summary drawn again (a fuller
+ * report while the check runs, a new budget) gives the focus back to the same button; null when
+ * the focus is elsewhere.
+ */
+export function focusedInSummary(slot: Element): string | null {
+  const a = slot.ownerDocument.activeElement;
+  if (!a || !slot.contains(a)) return null;
+  const hook = focusHooks.find((k) => a.hasAttribute(k));
+  return hook ? `[${hook}="${(a.getAttribute(hook) ?? '').replace(/["\\]/g, '\\$&')}"]` : null;
+}
