@@ -9,8 +9,9 @@ import type { MatchBudget } from '../core/report.js';
 import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent } from './app-api.js';
 import { expectExportFormat } from './app-api.js';
 import { AppService } from './app-service.js';
+import type { DemoWriting } from './demo-shoot.js';
 import { createFrameGate } from './frame-gate.js';
-import { loadStoredBudget, loadStoredPreference, storeBudget, storePreference } from './settings-store.js';
+import { loadStoredBudget, loadStoredPreference, storeBudget, storedSettingsInfo, storePreference } from './settings-store.js';
 import { readRecentFolders } from './recent-folders.js';
 
 export const contentSecurityPolicy =
@@ -41,7 +42,7 @@ export interface BrowserHost {
 export interface BrowserHostOptions {
   /** Folder of the built page (index.html and its assets). */
   readonly assets: string;
-  readonly demoFolder: () => Promise<string>;
+  readonly demoFolder: (writing?: DemoWriting) => Promise<string>;
   readonly version: string;
   readonly threads?: number;
   /** What the page opens first. */
@@ -148,7 +149,8 @@ export async function startBrowserHost(options: BrowserHostOptions): Promise<Bro
   const cookieName = (): string => `seamscout-${port}`;
 
   const api: Record<string, (args: unknown[]) => Promise<unknown> | unknown> = {
-    hostInfo: () => ({ shell: 'browser', version: options.version, initialTarget: options.initialTarget ?? null }),
+    // A page loaded again gets the check it started, never its first target again.
+    hostInfo: () => ({ shell: 'browser', version: options.version, initialTarget: service.hasStarted ? null : options.initialTarget ?? null, latest: service.latest() }),
     chooseFolder: () => null,
     recentFolders: () => readRecentFolders(),
     startCheck: ([target]) => {
@@ -160,6 +162,7 @@ export async function startBrowserHost(options: BrowserHostOptions): Promise<Bro
     cancelCheck: ([id]) => service.cancelCheck(Number(id)),
     loadBudget: () => loadStoredBudget(),
     saveBudget: ([b]) => storeBudget((b ?? {}) as Record<string, unknown>),
+    settingsInfo: () => storedSettingsInfo(),
     loadShotPreference: () => loadStoredPreference(),
     saveShotPreference: ([p]) => storePreference(p),
     exportContent: ([id, format, budget]) => {
@@ -252,7 +255,8 @@ export async function startBrowserHost(options: BrowserHostOptions): Promise<Bro
     }
 
     if (req.method !== 'GET') return refuse(res, 405, 'method not allowed');
-    const path = url.pathname === '/' ? 'index.html' : decodeURIComponent(url.pathname.slice(1));
+    // Browsers ask for /favicon.ico whatever the page links: the page's own icon answers.
+    const path = url.pathname === '/' ? 'index.html' : url.pathname === '/favicon.ico' ? 'favicon.svg' : decodeURIComponent(url.pathname.slice(1));
     const target = normalize(join(options.assets, path));
     const rel = relative(options.assets, target);
     if (rel.startsWith('..') || isAbsolute(rel) || rel.split(sep).some((p) => p.startsWith('.'))) return send(res, 404, 'not found');
