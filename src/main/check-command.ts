@@ -55,8 +55,9 @@ Options:
                            written inside the checked folder)
   --no-cache               analyse every frame again (the cache lives in the user's cache folder)
   --settings FILE          settings file (default: the user settings file, if present); its budget
-                           as below, overlaps in percent too. The command says which file it used
-                           and which of its values differ from the defaults
+                           as below, overlaps in percent too (a file of earlier versions with
+                           overlaps as shares, 0.2, is read as 20 % with a note). The command says
+                           which file it used and which of its values differ from the defaults
   --no-progress            no progress line (there is one only when the output is a terminal)
   --progress json          write one JSON object per event to stderr, for tools: start, frame,
                            pair, sequence, end (see docs/progress-events.md)

@@ -119,7 +119,7 @@ export function createBudgetPanel(initial: MatchBudget, onChange: (b: MatchBudge
     sphere.checked = b.fullSphere === true;
   };
 
-  const preferSlot = el('div', { class: 'field' });
+  const preferSlot = el('div', { class: 'field field-check field-prefer' });
   const setPrefer = (p: ShotPreference): void => {
     preferSlot.replaceChildren(
       preferenceChoice(p, prefer.onChange, { name: 'panel-prefer', hook: 'data-panel-shot-preference' }),
