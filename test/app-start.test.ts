@@ -120,6 +120,11 @@ describe('the browser host across page loads', () => {
     expect(after.latest).toMatchObject({ checkId: id, folder: card, demo: false, running: false });
     expect(after.latest?.report?.frames).toEqual([]);
   });
+
+  it('takes a typed path from the home folder (~/...) and says plainly what a relative one lacks', async () => {
+    await expect(call('startCheck', { folder: 'DCIM/100CAMERA' })).rejects.toThrow('Expected the folder\'s full path, such as /media/card/DCIM/100CAMERA, but received DCIM/100CAMERA');
+    expect(typeof (await call('startCheck', { folder: '~/seamscout-no-such-folder' }))).toBe('number');
+  });
 });
 
 describe('a settings file of earlier versions, overlaps as shares', () => {

@@ -199,8 +199,11 @@ describe('the app in a real browser', () => {
       `Saved in ${join(process.env.SEAMSCOUT_CONFIG_DIR!, 'settings.json')}: the command (seamscout check) uses these values from now on too.`,
     );
     await inliers.fill('20');
+    // Saved shortly after the edit: the reload below must find it saved.
+    const stored = (): unknown => JSON.parse(readFileSync(join(process.env.SEAMSCOUT_CONFIG_DIR!, 'settings.json'), 'utf8')).budget.minInliers;
+    await expect.poll(stored, { timeout: 5000 }).toBe(20);
     expect(await page.locator('[data-budget] [data-panel-shot-preference] input:checked').getAttribute('value')).toBe('jpeg');
-    await page.locator('[data-budget]').screenshot({ path: join(shots, 'budget-panel.png') });
+    await page.locator('.results-side').screenshot({ path: join(shots, 'budget-panel.png') });
     const verdicts = (): Promise<(string | null)[]> => page.locator('[data-pair]').evaluateAll((n) => n.map((x) => x.getAttribute('data-verdict')));
     const before = await verdicts();
     const starts: string[] = [];

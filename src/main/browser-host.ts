@@ -4,6 +4,7 @@ import type { IncomingMessage, Server, ServerResponse } from 'node:http';
 import { createServer } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { isIPv4 } from 'node:net';
+import { homedir } from 'node:os';
 import { extname, isAbsolute, join, normalize, relative, sep } from 'node:path';
 import type { MatchBudget } from '../core/report.js';
 import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent } from './app-api.js';
@@ -157,6 +158,9 @@ export async function startBrowserHost(options: BrowserHostOptions): Promise<Bro
       const t = target as { folder?: unknown; demo?: unknown };
       if (t && t.demo === true) return service.startCheck({ demo: true });
       if (t && typeof t.folder === 'string' && isAbsolute(t.folder)) return service.startCheck({ folder: t.folder });
+      // A path typed into the page: the home folder's short form read as the shell does, anything else relative said plainly.
+      if (t && typeof t.folder === 'string' && /^~(\/|$)/.test(t.folder)) return service.startCheck({ folder: join(homedir(), t.folder.slice(1)) });
+      if (t && typeof t.folder === 'string') throw new TypeError(`Expected the folder's full path, such as /media/card/DCIM/100CAMERA, but received ${t.folder}`);
       throw new TypeError('Expected { folder: <absolute path> } or { demo: true } for startCheck');
     },
     cancelCheck: ([id]) => service.cancelCheck(Number(id)),
