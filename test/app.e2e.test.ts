@@ -99,6 +99,51 @@ afterAll(async () => {
 });
 
 describe('the app in a real browser', () => {
+  it('loads the start screen with its icon and nothing missing, and a reload starts no check', async () => {
+    const failed: string[] = [];
+    const onResponse = (r: { status(): number; url(): string }): void => {
+      if (r.status() >= 400) failed.push(`${r.status()} ${r.url()}`);
+    };
+    const consoleErrors: string[] = [];
+    const onConsole = (m: { type(): string; text(): string }): void => {
+      if (m.type() === 'error') consoleErrors.push(m.text());
+    };
+    const starts: string[] = [];
+    const onRequest = (r: { url(): string }): void => {
+      if (r.url().includes('/api/startCheck')) starts.push(r.url());
+    };
+    page.on('response', onResponse);
+    page.on('console', onConsole);
+    page.on('request', onRequest);
+    try {
+      await page.setViewportSize({ width: 1366, height: 768 });
+      await page.goto(host.url);
+      await page.locator('[data-start]').waitFor();
+      const icon = await page.locator('link[rel="icon"]').getAttribute('href');
+      const res = await page.request.get(new URL(icon!, page.url()).toString());
+      expect(res.status()).toBe(200);
+      expect(res.headers()['content-type']).toBe('image/svg+xml');
+      expect((await page.request.get(new URL('/favicon.ico', page.url()).toString())).status()).toBe(200);
+      // The browser shell has no folder dialog: the path field comes up, with a neutral example.
+      await page.locator('[data-choose-folder]').click();
+      expect(await page.locator('input[name="folder"]').getAttribute('placeholder')).toBe('/media/card/DCIM/100CAMERA');
+      await page.waitForLoadState('networkidle');
+      await page.screenshot({ path: join(shots, 'start-1366.png') });
+      await page.reload();
+      await page.locator('[data-start]').waitFor();
+      await page.waitForLoadState('networkidle');
+      expect(await page.locator('[role="progressbar"]').count()).toBe(0);
+      expect(starts).toEqual([]);
+      expect(failed).toEqual([]);
+      expect(consoleErrors).toEqual([]);
+    } finally {
+      page.off('response', onResponse);
+      page.off('console', onConsole);
+      page.off('request', onRequest);
+      await page.setViewportSize({ width: 1600, height: 1000 });
+    }
+  }, 60_000);
+
   it('opens the demo shoot and flags every planted problem', async () => {
     await page.goto(host.url);
     await page.getByRole('button', { name: 'Try the demo shoot' }).click();
@@ -289,6 +334,37 @@ describe('the app in a real browser', () => {
     await page.evaluate(() => window.scrollTo(0, 0));
     await page.setViewportSize({ width: 1600, height: 1000 });
   }, 60_000);
+
+  it('says where a saved budget went, offers the RAW+JPEG choice beside it, and a reload shows the same results without checking again', async () => {
+    const inliers = page.locator('input[name="minInliers"]');
+    await inliers.fill('25');
+    await expect.poll(() => page.locator('[data-budget-status]').innerText(), { timeout: 5000 }).toBe(
+      `Saved in ${join(process.env.SEAMSCOUT_CONFIG_DIR!, 'settings.json')}: the command (seamscout check) uses these values from now on too.`,
+    );
+    await inliers.fill('20');
+    // Saved shortly after the edit: the reload below must find it saved.
+    const stored = (): unknown => JSON.parse(readFileSync(join(process.env.SEAMSCOUT_CONFIG_DIR!, 'settings.json'), 'utf8')).budget.minInliers;
+    await expect.poll(stored, { timeout: 5000 }).toBe(20);
+    expect(await page.locator('[data-budget] [data-panel-shot-preference] input:checked').getAttribute('value')).toBe('jpeg');
+    await page.locator('.results-side').screenshot({ path: join(shots, 'budget-panel.png') });
+    const verdicts = (): Promise<(string | null)[]> => page.locator('[data-pair]').evaluateAll((n) => n.map((x) => x.getAttribute('data-verdict')));
+    const before = await verdicts();
+    const starts: string[] = [];
+    const onRequest = (r: { url(): string }): void => {
+      if (r.url().includes('/api/startCheck')) starts.push(r.url());
+    };
+    page.on('request', onRequest);
+    try {
+      await page.reload();
+      await page.locator('[data-summary]').waitFor({ timeout: 20_000 });
+      await page.waitForLoadState('networkidle');
+      expect(starts).toEqual([]);
+      expect(await page.locator('[role="progressbar"]').count()).toBe(0);
+      expect(await verdicts()).toEqual(before);
+    } finally {
+      page.off('request', onRequest);
+    }
+  }, 60_000);
 });
 
 // No check splits a card into sequences yet: this case gives the page the same built assets but a
@@ -305,7 +381,7 @@ describe('a card of several sequences in a real browser', () => {
         hostInfo: async () => ({ shell: 'desktop', version: 'e2e', initialTarget: { demo: true } }),
         chooseFolder: async () => null, recentFolders: async () => [], cancelCheck: async () => undefined,
         startCheck: async () => { setTimeout(() => done.forEach((l) => l({ checkId: 1, report, error: null, cancelled: false })), 20); return 1; },
-        loadBudget: async () => report.budget, saveBudget: async (b) => b,
+        loadBudget: async () => report.budget, saveBudget: async (b) => b, settingsInfo: async () => ({ path: '/home/me/.config/seamscout/settings.json', note: null }),
         loadShotPreference: async () => 'jpeg', saveShotPreference: async (p) => p,
         exportReport: async () => null, tiePoints: async () => [],
         frameUrl: (id, file) => thumb(file),
@@ -332,6 +408,39 @@ describe('a card of several sequences in a real browser', () => {
     await p.screenshot({ path: join(shots, 'card-sequence.png') });
     await p.keyboard.press('Escape');
     await p.locator('[data-sequence="2"]:focus').waitFor();
+    await context.close();
+  }, 60_000);
+});
+
+// The demo shoot's first writing takes half a minute: a stand-in API (as above) tells it as the host
+// does, to see the start screen say so at the smallest screen we support.
+describe('the demo shoot written on first use, in a real browser', () => {
+  it('shows the writing and its estimate on the start screen, inside 1366x768', async () => {
+    const standIn = `window.seamscout = (() => {
+      const progress = [];
+      return {
+        hostInfo: async () => ({ shell: 'browser', version: 'e2e', initialTarget: { demo: true }, latest: null }),
+        chooseFolder: async () => null, recentFolders: async () => ['/media/card/DCIM/100CAMERA'], cancelCheck: async () => undefined,
+        startCheck: async () => { setTimeout(() => progress.forEach((l) => { l({ checkId: 1, phase: 'demo', done: 0, total: 35, secondsLeft: 27 }); l({ checkId: 1, phase: 'demo', done: 12, total: 35, secondsLeft: 18, file: 'SSC_0012.jpg' }); }), 20); return 1; },
+        loadBudget: async () => (${JSON.stringify(defaultBudget)}), saveBudget: async (b) => b, settingsInfo: async () => ({ path: '/home/me/.config/seamscout/settings.json', note: null }),
+        loadShotPreference: async () => 'jpeg', saveShotPreference: async (p) => p,
+        exportReport: async () => null, tiePoints: async () => [], frameUrl: () => '',
+        onProgress: (l) => { progress.push(l); return () => undefined; }, onPartial: () => () => undefined, onDone: () => () => undefined,
+      };
+    })();`;
+    const context = await browser.newContext({ viewport: { width: 1366, height: 768 }, deviceScaleFactor: 1 });
+    const p = await context.newPage();
+    p.on('pageerror', (err) => console.error('page error:', err.message));
+    await p.addInitScript({ content: standIn });
+    await p.goto(host.url);
+    const block = p.locator('[data-demo-writing]');
+    await expect.poll(() => block.innerText(), { timeout: 20_000 }).toMatch(/12 of 35 frames/);
+    expect(await block.locator('.phase').innerText()).toBe('Writing the demo shoot (about 27 s)');
+    expect(await p.locator('[data-demo]').isDisabled()).toBe(true);
+    const box = await block.boundingBox();
+    expect(box!.y + box!.height).toBeLessThanOrEqual(768);
+    expect(await p.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth)).toBe(0);
+    await p.screenshot({ path: join(shots, 'demo-writing.png') });
     await context.close();
   }, 60_000);
 });

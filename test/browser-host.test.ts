@@ -74,7 +74,7 @@ describe('browser host', () => {
     expect((await get(`/api/hostInfo?t=${host.token}`, {}, 'POST', body)).status).toBe(403);
     const r = await get('/api/hostInfo', { 'x-seamscout-token': host.token, 'content-type': 'application/json' }, 'POST', body);
     expect(r.status).toBe(200);
-    expect(JSON.parse(r.body)).toEqual({ ok: { shell: 'browser', version: 'test', initialTarget: null } });
+    expect(JSON.parse(r.body)).toEqual({ ok: { shell: 'browser', version: 'test', initialTarget: null, latest: null } });
     // Names inherited from Object's prototype are not calls.
     expect((await get('/api/constructor', { 'x-seamscout-token': host.token }, 'POST', body)).status).toBe(404);
   });

@@ -3,7 +3,7 @@
 // re-judging without re-analysis, keyboard navigation, the detail, export, drop and theme. The
 // report is four single-frame stations judged by core's `judge` with the default budget.
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
-import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat, HostInfo, SeamscoutApi, ShotPreference } from '../src/main/app-api.js';
+import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat, HostInfo, SeamscoutApi, SettingsInfo, ShotPreference } from '../src/main/app-api.js';
 import type { Analysis, MatchBudget, PairMeasure, Report } from '../src/core/report.js';
 import { defaultBudget } from '../src/core/report.js';
 import { judge } from '../src/core/verdicts.js';
@@ -30,7 +30,7 @@ const K12 = 'F1.jpg|F2.jpg', K23 = 'F2.jpg|F3.jpg', K34 = 'F3.jpg|F4.jpg';
 
 interface Call { readonly name: string; readonly args: unknown[] }
 
-function fakeApi(opts: { prefer?: ShotPreference; shell?: HostInfo['shell']; chooseFolder?: string | null; budget?: MatchBudget; exportResult?: () => Promise<string | null>; startCheck?: () => Promise<number>; pathForFile?: (f: File) => string } = {}) {
+function fakeApi(opts: { prefer?: ShotPreference; shell?: HostInfo['shell']; latest?: HostInfo['latest']; settings?: SettingsInfo; chooseFolder?: string | null; budget?: MatchBudget; exportResult?: () => Promise<string | null>; startCheck?: () => Promise<number>; pathForFile?: (f: File) => string } = {}) {
   const calls: Call[] = [];
   const progress: ((e: CheckProgressEvent) => void)[] = [];
   const done: ((e: CheckDoneEvent) => void)[] = [];
@@ -40,13 +40,14 @@ function fakeApi(opts: { prefer?: ShotPreference; shell?: HostInfo['shell']; cho
     return value;
   };
   const api: SeamscoutApi & { pathForFile?: (f: File) => string } = {
-    hostInfo: async () => log('hostInfo', [], { shell: opts.shell ?? 'desktop', version: '0.1.0' }),
+    hostInfo: async () => log('hostInfo', [], { shell: opts.shell ?? 'desktop', version: '0.1.0', latest: opts.latest ?? null }),
     chooseFolder: async () => log('chooseFolder', [], opts.chooseFolder ?? null),
     recentFolders: async () => log('recentFolders', [], ['/card/yesterday', '/card/shoot']),
     startCheck: (target) => log('startCheck', [target], opts.startCheck ? opts.startCheck() : Promise.resolve(7)),
     cancelCheck: async (id) => log('cancelCheck', [id], undefined),
     loadBudget: async () => log('loadBudget', [], opts.budget ?? defaultBudget),
     saveBudget: async (b) => log('saveBudget', [b], b),
+    settingsInfo: async () => log('settingsInfo', [], opts.settings ?? { path: '/home/me/.config/seamscout/settings.json', note: null }),
     loadShotPreference: async () => log('loadShotPreference', [], opts.prefer ?? 'jpeg'),
     saveShotPreference: async (p) => log('saveShotPreference', [p], p),
     exportReport: (id: number, format: ExportFormat, budget: MatchBudget) => log('exportReport', [id, format, budget], opts.exportResult ? opts.exportResult() : Promise.resolve(`/home/me/shoot.${format}`)),
@@ -129,7 +130,7 @@ describe('start screen', () => {
   it('offers the folder dialog, the recent folders and the demo shoot', async () => {
     const f = fakeApi();
     await mount(f);
-    expect(f.names().sort()).toEqual(['hostInfo', 'loadBudget', 'loadShotPreference', 'recentFolders']);
+    expect(f.names().sort()).toEqual(['hostInfo', 'loadBudget', 'loadShotPreference', 'recentFolders', 'settingsInfo']);
     expect(text($('[data-choose-folder]'))).toBe('Open folder…');
     expect([...document.querySelectorAll('[data-recent]')].map((b) => b.getAttribute('data-recent'))).toEqual(['/card/yesterday', '/card/shoot']);
     buttonNamed('Try the demo shoot').click();
@@ -382,23 +383,27 @@ describe('results and the budget panel', () => {
     expect(after[0].args[0]).toEqual({ ...defaultBudget, reshootOverlap: 0.1, weakOverlap: 0.5 });
   });
 
-  it('shows resolveBudget\'s message beside a bad field and keeps the last good budget', async () => {
+  it('shows the command\'s message for the same mistake beside a bad field, in the panel\'s words and percent, and keeps the last good budget', async () => {
     const f = fakeApi();
     await withResults(f);
     const before = f.calls.length;
     type('weakOverlap', '150');
     const error = $('[data-error-for="weakOverlap"]')!;
     expect(error.hidden).toBe(false);
-    expect(text(error)).toBe('Expected a number from 0 to 100 (%) for weakOverlap but received "150"');
+    expect(text(error)).toBe('Expected a percentage from 0 to 100 for the weak below overlap but received 150');
     expect($('[name="weakOverlap"]')?.getAttribute('aria-invalid')).toBe('true');
     expect($(`[data-pair="${K34}"]`)?.getAttribute('data-verdict')).toBe('weak');
     type('weakOverlap', '30');
     expect(error.hidden).toBe(true);
     type('minInliers', 'many');
-    expect(text($('[data-error-for="minInliers"]'))).toBe('Expected a number from 0 to 10000 for minInliers but received "many"');
+    expect(text($('[data-error-for="minInliers"]'))).toBe('Expected a number from 0 to 10000 for the fewest inliers but received many');
+    // A share typed where a percentage belongs: refused with the percentage it likely meant, as the command does.
+    type('weakOverlap', '0.3');
+    expect(text(error)).toBe('Expected a percentage from 0 to 100 for the weak below overlap but received 0.3 (did you mean 30?)');
+    type('weakOverlap', '30');
     type('minInliers', '20');
     type('reshootOverlap', '40');
-    expect(text($('[data-error-for="reshootOverlap"]'))).toBe('Expected reshootOverlap (40 %) not above weakOverlap (30 %)');
+    expect(text($('[data-error-for="reshootOverlap"]'))).toBe('Expected the reshoot below overlap (40 %) not above the weak below overlap (30 %)');
     expect($(`[data-pair="${K12}"]`)?.getAttribute('data-verdict')).toBe('reshoot');
     await tick(5);
     // The only good edits restored the defaults; nothing else was asked of main.
@@ -697,5 +702,97 @@ describe('a card of several sequences', () => {
     expect($('[data-sequence], [data-back-to-list]')).toBeNull();
     press('Escape');
     expect($('[data-choose-folder]')).not.toBeNull();
+  });
+});
+
+describe('start screen, settings and reloading', () => {
+  it('gives a neutral card folder as the example, and "Open folder…" one full stop wherever it is named', async () => {
+    const f = fakeApi({ shell: 'browser' });
+    await mount(f);
+    ($('[data-choose-folder]') as HTMLElement).click();
+    await tick();
+    expect($<HTMLInputElement>('input[name="folder"]')?.placeholder).toBe('/media/card/DCIM/100CAMERA');
+    const drop = new Event('drop', { bubbles: true, cancelable: true });
+    Object.defineProperty(drop, 'dataTransfer', { value: { types: ['Files'], files: [new File([], 'DCIM')], dropEffect: 'none' } });
+    window.dispatchEvent(drop);
+    expect(text(root)).toContain('Open folder…');
+    expect(text(root)).not.toMatch(/…\.|\.\.\.\./);
+  });
+
+  it('a page loaded again shows the host\'s finished check instead of starting one', async () => {
+    const f = fakeApi({ latest: { checkId: 4, folder: '/card/shoot', demo: false, running: false, report } });
+    await mount(f);
+    expect(f.names()).not.toContain('startCheck');
+    expect($('[data-summary] [data-verdict]')?.getAttribute('data-verdict')).toBe('reshoot');
+    expect($<HTMLImageElement>('[data-frame="F2.jpg"] img')?.getAttribute('src')).toBe('seamscout-frame://frames/4/F2.jpg?max=320');
+  });
+
+  it('a page loaded again follows the host\'s running check to its end, and can cancel it', async () => {
+    const f = fakeApi({ latest: { checkId: 5, folder: '/card/shoot', demo: false, running: true, report: null } });
+    await mount(f);
+    expect(f.names()).not.toContain('startCheck');
+    expect($('[role="progressbar"]')).not.toBeNull();
+    expect(text($('[data-progress] h2'))).toBe('Checking shoot');
+    f.emitProgress({ checkId: 5, phase: 'frames', done: 2, total: 4, secondsLeft: 3 });
+    expect(text($('[data-count="frames"]'))).toBe('frames 2 / 4');
+    buttonNamed('Cancel').click();
+    expect(f.calls.at(-1)).toEqual({ name: 'cancelCheck', args: [5] });
+    f.emitDone({ checkId: 5, report, error: null, cancelled: false });
+    expect($('[data-summary] [data-verdict]')?.getAttribute('data-verdict')).toBe('reshoot');
+  });
+
+  it('shows the demo shoot being written on the start screen, with its estimate, then the check\'s progress', async () => {
+    const f = fakeApi();
+    await mount(f);
+    buttonNamed('Try the demo shoot').click();
+    await tick();
+    f.emitProgress({ checkId: 7, phase: 'demo', done: 0, total: 35, secondsLeft: 27.4 });
+    expect($('[data-start]')).not.toBeNull();
+    expect(text($('[data-demo-writing] .phase'))).toBe('Writing the demo shoot (about 27 s)');
+    expect($<HTMLButtonElement>('[data-demo]')?.disabled).toBe(true);
+    f.emitProgress({ checkId: 7, phase: 'demo', done: 12, total: 35, secondsLeft: 15, file: 'SSC_0012.jpg' });
+    // The estimate stays as it was said; the time left follows the frames.
+    expect(text($('[data-demo-writing] .phase'))).toBe('Writing the demo shoot (about 27 s)');
+    expect(text($('[data-demo-writing] .eta'))).toBe('12 of 35 frames, about 15 s left');
+    expect($('[data-demo-writing] [role="progressbar"]')?.getAttribute('aria-valuenow')).toBe('12');
+    f.emitProgress({ checkId: 7, phase: 'frames', done: 1, total: 35, secondsLeft: null });
+    expect($('[data-demo-writing]')).toBeNull();
+    expect(text($('[data-count="frames"]'))).toBe('frames 1 / 35');
+  });
+
+  it('offers the RAW+JPEG choice in the budget panel too, saved with the settings and shown on the start screen', async () => {
+    const f = fakeApi({ prefer: 'jpeg' });
+    await withResults(f);
+    const inPanel = (v: string): HTMLInputElement => document.querySelector<HTMLInputElement>(`[data-budget] [data-panel-shot-preference] input[value="${v}"]`)!;
+    expect(inPanel('jpeg').checked).toBe(true);
+    inPanel('raw').checked = true;
+    inPanel('raw').dispatchEvent(new Event('change', { bubbles: true }));
+    await tick();
+    expect(f.calls.at(-1)).toEqual({ name: 'saveShotPreference', args: ['raw'] });
+    buttonNamed('New check').click();
+    expect(document.querySelector<HTMLInputElement>('[data-shot-preference] input:checked')?.value).toBe('raw');
+    // And the other way: chosen on the start screen, the panel shows it.
+    const jpeg = document.querySelector<HTMLInputElement>('[data-shot-preference] input[value="jpeg"]')!;
+    jpeg.checked = true;
+    jpeg.dispatchEvent(new Event('change', { bubbles: true }));
+    await tick();
+    expect(f.calls.at(-1)).toEqual({ name: 'saveShotPreference', args: ['jpeg'] });
+    buttonNamed('Back to the results').click();
+    expect(inPanel('jpeg').checked).toBe(true);
+  });
+
+  it('says where a saved budget went and that the command uses it from now on', async () => {
+    const f = fakeApi({ settings: { path: '/home/me/.config/seamscout/settings.json', note: null } });
+    await withResults(f);
+    type('minInliers', '30');
+    await tick(5);
+    expect(f.calls.filter((c) => c.name === 'saveBudget').length).toBe(1);
+    expect(text($('[data-budget-status]'))).toBe('Saved in /home/me/.config/seamscout/settings.json: the command (seamscout check) uses these values from now on too.');
+  });
+
+  it('shows how the stored settings were read when there is something to say', async () => {
+    const note = 'The settings file /s.json gives overlaps as shares, as earlier versions wrote them (weakOverlap 0.35): read as weakOverlap 35 %.';
+    await withResults(fakeApi({ settings: { path: '/s.json', note } }));
+    expect(text($('[data-budget-status]'))).toBe(note);
   });
 });

@@ -8,7 +8,6 @@ import type { Analysis, FrameMeasure, FrameSettings, PairMeasure } from '../src/
 import { defaultBudget } from '../src/core/report.js';
 import { judge } from '../src/core/verdicts.js';
 import { adviceItems, renderAdvice } from '../src/renderer/advice-view.js';
-import { inFieldUnits } from '../src/renderer/budget-panel.js';
 import { renderDetail } from '../src/renderer/detail-view.js';
 import type { TiePointState } from '../src/renderer/detail-view.js';
 import { svgNS } from '../src/renderer/dom.js';
@@ -344,12 +343,6 @@ describe('words and numbers', () => {
     expect([percent(0.449), percent(null), percent(1)]).toEqual(['45 %', '—', '100 %']);
     expect([evStep(1.26), evStep(-0.7), evStep(0.04), evStep(null)]).toEqual(['+1.3 EV', '-0.7 EV', '0.0 EV', '—']);
     expect([timeLeft(null), timeLeft(39.2), timeLeft(185), timeLeft(1500)]).toEqual([null, 'about 40 s left', 'about 3 min 5 s left', 'about 25 min left']);
-  });
-
-  it('restates resolveBudget\'s messages in percent for the overlap fields', () => {
-    expect(inFieldUnits('Expected a number from 0 to 1 for weakOverlap but received 1.5', { weakOverlap: '150' })).toBe('Expected a number from 0 to 100 (%) for weakOverlap but received "150"');
-    expect(inFieldUnits('Expected reshootOverlap (0.35) not above weakOverlap (0.3)', {})).toBe('Expected reshootOverlap (35 %) not above weakOverlap (30 %)');
-    expect(inFieldUnits('Expected a number from 0 to 20 for maxEvDiff but received -1', { maxEvDiff: '-1' })).toBe('Expected a number from 0 to 20 for maxEvDiff but received -1');
   });
 });
 

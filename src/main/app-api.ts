@@ -5,7 +5,8 @@ import type { MatchBudget, Report } from '../core/report.js';
 /** Progress of a running check, as it streams. */
 export interface CheckProgressEvent {
   readonly checkId: number;
-  readonly phase: 'frames' | 'pairs';
+  /** 'demo' while the demo shoot is written (on first use, before its check starts). */
+  readonly phase: 'demo' | 'frames' | 'pairs';
   readonly done: number;
   readonly total: number;
   readonly file?: string;
@@ -44,12 +45,31 @@ export function expectShotPreference(prefer: unknown): ShotPreference {
   return prefer;
 }
 
+/** The latest check the host holds: a page loaded again shows it instead of starting one. */
+export interface LatestCheck {
+  readonly checkId: number;
+  readonly folder: string;
+  readonly demo: boolean;
+  readonly running: boolean;
+  /** Its report, or the results so far while it runs (null before any). */
+  readonly report: Report | null;
+}
+
+/** The settings file the app keeps its budget and RAW+JPEG choice in (the command reads the same file), and what to say about how it was read. */
+export interface SettingsInfo {
+  readonly path: string;
+  /** How an unusual file was read (overlaps as shares), or why it could not be; null when all is well. */
+  readonly note: string | null;
+}
+
 export interface HostInfo {
   /** 'desktop' inside the Electron window, 'browser' from the local browser host. */
   readonly shell: 'desktop' | 'browser';
   readonly version: string;
-  /** What to open first: the folder given on the command line, the demo shoot, or nothing (start screen). */
+  /** What to open first: the folder given on the command line, the demo shoot, or nothing (start screen). Given only until a check starts. */
   readonly initialTarget?: { folder: string } | { demo: true } | null;
+  /** The check this host ran last, when it still has it: what a reloaded page shows. */
+  readonly latest?: LatestCheck | null;
 }
 
 export interface SeamscoutApi {
@@ -63,6 +83,8 @@ export interface SeamscoutApi {
   /** The budget stored between runs. */
   loadBudget(): Promise<MatchBudget>;
   saveBudget(budget: MatchBudget): Promise<MatchBudget>;
+  /** Where the budget is saved, and anything to say about how the stored one was read. */
+  settingsInfo(): Promise<SettingsInfo>;
   /** Which file of a RAW+JPEG shot checks read, stored between runs (the next check uses it). */
   loadShotPreference(): Promise<ShotPreference>;
   saveShotPreference(prefer: ShotPreference): Promise<ShotPreference>;
@@ -87,6 +109,7 @@ export const channels = {
   cancelCheck: 'seamscout:cancel-check',
   loadBudget: 'seamscout:load-budget',
   saveBudget: 'seamscout:save-budget',
+  settingsInfo: 'seamscout:settings-info',
   loadShotPreference: 'seamscout:load-shot-preference',
   saveShotPreference: 'seamscout:save-shot-preference',
   exportReport: 'seamscout:export-report',

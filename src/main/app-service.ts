@@ -1,4 +1,4 @@
-import { realpath } from 'node:fs/promises';
+import { opendir, realpath, stat } from 'node:fs/promises';
 import { isAbsolute, relative, resolve, sep } from 'node:path';
 import { budgetFromTyped, pageBudget } from '../core/budget.js';
 import { cardCoverageMapSvg } from '../core/card-coverage-map.js';
@@ -9,7 +9,7 @@ import type { MatchBudget, Report } from '../core/report.js';
 import { judge, rejudge } from '../core/verdicts.js';
 import type { AnalysisPool } from './analysis-pool.js';
 import { createAnalysisPool } from './analysis-pool.js';
-import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat } from './app-api.js';
+import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat, LatestCheck } from './app-api.js';
 import { loadStoredBudget, loadStoredPreference } from './settings-store.js';
 import type { TiePointSet } from './check.js';
 import { checkCard } from './card-check.js';
@@ -19,15 +19,21 @@ import { pathOfName } from './input-file.js';
 import { createFeatureCache } from './feature-cache.js';
 import { rememberFolder } from './recent-folders.js';
 import { writeFileAtomic } from './write-file.js';
+import type { DemoWriting } from './demo-shoot.js';
 
 /** Bytes of rendered frames kept for the page to show again (a strip of thumbnails is a few megabytes). */
 const frameCacheLimit = 48 * 1024 * 1024;
 
 interface CheckState {
   readonly id: number;
-  readonly folder: string;
+  folder: string;
+  readonly demo: boolean;
   readonly controller: AbortController;
   report: Report | null;
+  /** The results so far, while it runs. */
+  partial: Report | null;
+  /** Ended: with a report, an error or cancelled. */
+  ended: boolean;
   /** Frames of the check known so far (images of these may be shown while it runs). */
   files: Set<string>;
   tiePoints: readonly TiePointSet[];
@@ -36,8 +42,8 @@ interface CheckState {
 }
 
 export interface AppServiceOptions {
-  /** Makes (once) and returns the demo shoot's folder. */
-  readonly demoFolder: () => Promise<string>;
+  /** Makes (once, reporting how it goes when it must be written) and returns the demo shoot's folder. */
+  readonly demoFolder: (writing?: DemoWriting) => Promise<string>;
   readonly threads?: number;
   readonly onProgress: (e: CheckProgressEvent) => void;
   readonly onDone: (e: CheckDoneEvent) => void;
@@ -54,6 +60,23 @@ export function expectBudget(budget: unknown): MatchBudget {
     throw new TypeError(`Expected a match budget (its thresholds by name) for budget but received ${JSON.stringify(budget) ?? String(budget)}`);
   }
   return budgetFromTyped(pageBudget(budget as Record<string, unknown>));
+}
+
+/**
+ * Why a folder could not be opened, in plain words: no system error codes ("no such folder" for
+ * ENOENT, "no permission to read it" for EACCES).
+ */
+export function cannotOpen(folder: string, err: unknown): string {
+  const code = (err as NodeJS.ErrnoException).code;
+  const why =
+    code === 'ENOENT' ? 'there is no such folder' :
+    code === 'ENOTDIR' ? 'it is a file, not a folder' :
+    code === 'EACCES' || code === 'EPERM' ? 'there is no permission to read it' :
+    code === 'ELOOP' ? 'it is a link that leads round in a loop' :
+    code === 'EIO' ? 'the card or disk could not be read there' :
+    code === 'ENAMETOOLONG' ? 'the path is too long' :
+    'it cannot be read';
+  return `cannot open ${folder} (${why})`;
 }
 
 /** Text of an export of a report, and the file name to suggest for it. */
@@ -83,6 +106,7 @@ export function exportContent(report: Report, format: ExportFormat): { text: str
 export class AppService {
   private readonly checks = new Map<number, CheckState>();
   private nextId = 1;
+  private started = false;
   private pool: AnalysisPool | null = null;
   private readonly frameCache = new Map<string, Buffer>();
   private frameCacheBytes = 0;
@@ -94,22 +118,58 @@ export class AppService {
     return this.pool;
   }
 
+  /** Whether any check was started (a page loaded again must not start its first one again). */
+  get hasStarted(): boolean {
+    return this.started;
+  }
+
+  /** The latest check, for a page loaded again: running, or finished with its report; null when there is none or it failed. */
+  latest(): LatestCheck | null {
+    const s = [...this.checks.values()].at(-1);
+    if (!s || (s.ended && !s.report)) return null;
+    return { checkId: s.id, folder: s.folder, demo: s.demo, running: !s.ended, report: s.report ?? s.partial };
+  }
+
   async startCheck(target: { folder: string } | { demo: true }): Promise<number> {
     const id = this.nextId++;
-    const folder = 'demo' in target ? await this.options.demoFolder() : resolve(target.folder);
-    const state: CheckState = { id, folder, controller: new AbortController(), report: null, files: new Set(), tiePoints: [], realFolder: null };
+    this.started = true;
+    const demo = 'demo' in target;
+    const state: CheckState = { id, folder: demo ? '' : resolve(target.folder), demo, controller: new AbortController(), report: null, partial: null, ended: false, files: new Set(), tiePoints: [], realFolder: null };
     // Only the latest check is kept: frames of older ones stop resolving.
     for (const old of this.checks.values()) old.controller.abort();
     this.checks.clear();
     this.checks.set(id, state);
-    void this.run(state, !('demo' in target));
+    void this.run(state, !demo);
     return id;
   }
 
   private async run(state: CheckState, remember: boolean): Promise<void> {
-    const started = Date.now();
+    let started = Date.now();
     try {
-      state.realFolder = await realpath(state.folder);
+      if (state.demo) {
+        // Written on first use: its frames are told as progress of phase 'demo', the first with the time it should take.
+        let estimate: number | null = null;
+        state.folder = await this.options.demoFolder({
+          onStart: (frames, seconds) => {
+            estimate = seconds;
+            this.options.onProgress({ checkId: state.id, phase: 'demo', done: 0, total: frames, secondsLeft: seconds });
+          },
+          onFrame: (file, done, total) => {
+            const elapsed = (Date.now() - started) / 1000;
+            const secondsLeft = estimate === null ? null : Math.max(0, done > 0 ? (elapsed / done) * (total - done) : estimate - elapsed);
+            this.options.onProgress({ checkId: state.id, phase: 'demo', done, total, file, secondsLeft });
+          },
+        });
+        started = Date.now();
+      }
+      if (state.controller.signal.aborted) throw new Error('cancelled');
+      try {
+        state.realFolder = await realpath(state.folder);
+        if (!(await stat(state.realFolder)).isDirectory()) throw Object.assign(new Error('not a folder'), { code: 'ENOTDIR' });
+        await (await opendir(state.realFolder)).close();
+      } catch (err) {
+        throw new Error(cannotOpen(state.folder, err), { cause: err });
+      }
       if (remember) await rememberFolder(state.folder);
       const [budget, prefer] = await Promise.all([loadStoredBudget(), loadStoredPreference()]);
       const result = await checkCard(state.folder, {
@@ -122,7 +182,8 @@ export class AppService {
           ? (analysis) => {
               if (state.controller.signal.aborted) return;
               state.files = new Set(analysis.frames.map((f) => f.file));
-              this.options.onPartial?.({ checkId: state.id, report: judge(analysis, budget) });
+              state.partial = judge(analysis, budget);
+              this.options.onPartial?.({ checkId: state.id, report: state.partial });
             }
           : undefined,
         onProgress: (p) => {
@@ -134,9 +195,11 @@ export class AppService {
       state.report = judge(result.analysis, budget);
       state.files = new Set(result.analysis.frames.map((f) => f.file));
       state.tiePoints = result.tiePoints;
+      state.ended = true;
       this.options.onDone({ checkId: state.id, report: state.report, error: null, cancelled: false });
     } catch (err) {
       const cancelled = state.controller.signal.aborted;
+      state.ended = true;
       this.options.onDone({ checkId: state.id, report: null, error: cancelled ? null : (err as Error).message, cancelled });
     }
   }

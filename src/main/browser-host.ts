@@ -4,13 +4,15 @@ import type { IncomingMessage, Server, ServerResponse } from 'node:http';
 import { createServer } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { isIPv4 } from 'node:net';
+import { homedir } from 'node:os';
 import { extname, isAbsolute, join, normalize, relative, sep } from 'node:path';
 import type { MatchBudget } from '../core/report.js';
 import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent } from './app-api.js';
 import { expectExportFormat } from './app-api.js';
 import { AppService } from './app-service.js';
+import type { DemoWriting } from './demo-shoot.js';
 import { createFrameGate } from './frame-gate.js';
-import { loadStoredBudget, loadStoredPreference, storeBudget, storePreference } from './settings-store.js';
+import { loadStoredBudget, loadStoredPreference, storeBudget, storedSettingsInfo, storePreference } from './settings-store.js';
 import { readRecentFolders } from './recent-folders.js';
 
 export const contentSecurityPolicy =
@@ -41,7 +43,7 @@ export interface BrowserHost {
 export interface BrowserHostOptions {
   /** Folder of the built page (index.html and its assets). */
   readonly assets: string;
-  readonly demoFolder: () => Promise<string>;
+  readonly demoFolder: (writing?: DemoWriting) => Promise<string>;
   readonly version: string;
   readonly threads?: number;
   /** What the page opens first. */
@@ -148,18 +150,23 @@ export async function startBrowserHost(options: BrowserHostOptions): Promise<Bro
   const cookieName = (): string => `seamscout-${port}`;
 
   const api: Record<string, (args: unknown[]) => Promise<unknown> | unknown> = {
-    hostInfo: () => ({ shell: 'browser', version: options.version, initialTarget: options.initialTarget ?? null }),
+    // A page loaded again gets the check it started, never its first target again.
+    hostInfo: () => ({ shell: 'browser', version: options.version, initialTarget: service.hasStarted ? null : options.initialTarget ?? null, latest: service.latest() }),
     chooseFolder: () => null,
     recentFolders: () => readRecentFolders(),
     startCheck: ([target]) => {
       const t = target as { folder?: unknown; demo?: unknown };
       if (t && t.demo === true) return service.startCheck({ demo: true });
       if (t && typeof t.folder === 'string' && isAbsolute(t.folder)) return service.startCheck({ folder: t.folder });
+      // A path typed into the page: the home folder's short form read as the shell does, anything else relative said plainly.
+      if (t && typeof t.folder === 'string' && /^~(\/|$)/.test(t.folder)) return service.startCheck({ folder: join(homedir(), t.folder.slice(1)) });
+      if (t && typeof t.folder === 'string') throw new TypeError(`Expected the folder's full path, such as /media/card/DCIM/100CAMERA, but received ${t.folder}`);
       throw new TypeError('Expected { folder: <absolute path> } or { demo: true } for startCheck');
     },
     cancelCheck: ([id]) => service.cancelCheck(Number(id)),
     loadBudget: () => loadStoredBudget(),
     saveBudget: ([b]) => storeBudget((b ?? {}) as Record<string, unknown>),
+    settingsInfo: () => storedSettingsInfo(),
     loadShotPreference: () => loadStoredPreference(),
     saveShotPreference: ([p]) => storePreference(p),
     exportContent: ([id, format, budget]) => {
@@ -252,7 +259,8 @@ export async function startBrowserHost(options: BrowserHostOptions): Promise<Bro
     }
 
     if (req.method !== 'GET') return refuse(res, 405, 'method not allowed');
-    const path = url.pathname === '/' ? 'index.html' : decodeURIComponent(url.pathname.slice(1));
+    // Browsers ask for /favicon.ico whatever the page links: the page's own icon answers.
+    const path = url.pathname === '/' ? 'index.html' : url.pathname === '/favicon.ico' ? 'favicon.svg' : decodeURIComponent(url.pathname.slice(1));
     const target = normalize(join(options.assets, path));
     const rel = relative(options.assets, target);
     if (rel.startsWith('..') || isAbsolute(rel) || rel.split(sep).some((p) => p.startsWith('.'))) return send(res, 404, 'not found');

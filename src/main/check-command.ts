@@ -15,7 +15,8 @@ import { sequenceReport } from '../core/sequence-report.js';
 import { isCardLayout } from './scan.js';
 import { NoCoverageMap, coverageMapContent, coverageMapFormat } from './coverage-map-file.js';
 import { createFeatureCache } from './feature-cache.js';
-import { readSettingsFile, settingsBudget } from './settings.js';
+import type { SettingsFile } from './settings.js';
+import { readSettingsFile, settingsBudget, shareOverlapNote } from './settings.js';
 import { forTerminal, formatSummary } from './summary.js';
 import { createCheckStream } from './check-stream.js';
 import { expectExportTarget, writeFileAtomic } from './write-file.js';
@@ -54,8 +55,9 @@ Options:
                            written inside the checked folder)
   --no-cache               analyse every frame again (the cache lives in the user's cache folder)
   --settings FILE          settings file (default: the user settings file, if present); its budget
-                           as below, overlaps in percent too. The command says which file it used
-                           and which of its values differ from the defaults
+                           as below, overlaps in percent too (a file of earlier versions with
+                           overlaps as shares, 0.2, is read as 20 % with a note). The command says
+                           which file it used and which of its values differ from the defaults
   --no-progress            no progress line (there is one only when the output is a terminal)
   --progress json          write one JSON object per event to stderr, for tools: start, frame,
                            pair, sequence, end (see docs/progress-events.md)
@@ -88,14 +90,18 @@ const budgetOptions = {
   minSharpnessRatio: 'min-sharpness', maxBracketShiftPx: 'max-bracket-shift', fullSphere: 'full-sphere',
 } as const satisfies Record<keyof MatchBudget, string>;
 
-/** One line on where the budget came from: the settings file, and which of its values differ from the defaults. */
-export function budgetSourceLine(file: string, fileBudget: Record<string, unknown>): string {
+/**
+ * One line on where the budget came from: the settings file, and which of the values it gives differ
+ * from the defaults, in the file's names and the person's units (overlaps in percent). The file's
+ * budget was checked before this is asked.
+ */
+export function budgetSourceLine(file: string, settings: SettingsFile): string {
   const defaults = budgetAsTyped(defaultBudget);
-  // The file's values were checked with the rest of the budget: numbers, or words for them ("35 %", "true").
-  const value = (v: unknown): number | boolean => (typeof v === 'string' ? (v === 'true' ? true : v === 'false' ? false : Number(v.trim().replace(/\s*%$/, ''))) : (v as number | boolean));
+  const mine = budgetAsTyped(budgetFromTyped(settingsBudget(settings, file)));
+  const unit = (k: keyof MatchBudget): string => (percentBudgetKeys.includes(k as NumericBudgetKey) ? ' %' : '');
   const differ = budgetKeys
-    .filter((k) => fileBudget[k] !== undefined && value(fileBudget[k]) !== defaults[k])
-    .map((k) => `${k} ${value(fileBudget[k])}${percentBudgetKeys.includes(k as NumericBudgetKey) ? ' %' : ''} (default ${defaults[k]}${percentBudgetKeys.includes(k as NumericBudgetKey) ? ' %' : ''})`);
+    .filter((k) => settings.budget?.[k] !== undefined && mine[k] !== defaults[k])
+    .map((k) => `${k} ${mine[k]}${unit(k)} (default ${defaults[k]}${unit(k)})`);
   return `Settings from ${file}: ${differ.length ? differ.join(', ') : 'the default budget'}\n`;
 }
 
@@ -146,7 +152,11 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
     // Only a flag given says so: its absence leaves the settings file's declaration standing.
     typed.fullSphere = v['full-sphere'] ? true : undefined;
     budget = budgetFromTyped(settingsBudget(settings, file ?? v.settings ?? ''), { values: typed, name: (k) => `--${budgetOptions[k]}` });
-    if (file) settingsNote = budgetSourceLine(file, settings.budget ?? {});
+    if (file) {
+      settingsNote = budgetSourceLine(file, settings);
+      const shares = shareOverlapNote(settings, file);
+      if (shares) settingsNote += `note: ${shares}\n`;
+    }
   } catch (err) {
     process.stderr.write(`seamscout: ${forTerminal((err as Error).message)}\n`);
     return 2;

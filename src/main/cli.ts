@@ -12,14 +12,33 @@ const usage = `Usage:
 
 ${checkUsage}`;
 
-/** The demo shoot, written on first use with a progress line on a terminal. */
+/**
+ * The demo shoot. Only when it must be written (first use): one line saying so and how long it
+ * should take, a progress line under it on a terminal, and the time it took.
+ */
 function demoFolder(): Promise<string> {
   const tty = process.stderr.isTTY;
-  return ensureDemoShoot((_file, done, total) => {
-    if (tty) process.stderr.write(progressLine('demo', done, total));
-  }).finally(() => {
-    if (tty) process.stderr.write('\r\x1b[K');
-  });
+  let started: number | null = null;
+  return ensureDemoShoot({
+    onStart: (frames, seconds) => {
+      started = performance.now();
+      process.stderr.write(`writing the demo shoot (about ${seconds} s): ${frames} frames, on first use only\n`);
+    },
+    onFrame: (_file, done, total) => {
+      if (tty) process.stderr.write(progressLine('demo', done, total));
+    },
+  }).then(
+    (folder) => {
+      if (started === null) return folder;
+      if (tty) process.stderr.write('\r\x1b[K');
+      process.stderr.write(`wrote the demo shoot in ${Math.round((performance.now() - started) / 1000)} s\n`);
+      return folder;
+    },
+    (err: unknown) => {
+      if (tty && started !== null) process.stderr.write('\r\x1b[K');
+      throw err;
+    },
+  );
 }
 
 export async function main(argv: string[]): Promise<number> {

@@ -120,6 +120,8 @@ export async function inspectShootFolder(folder: string): Promise<FolderState> {
 export interface WriteDemoOptions extends DemoPlanOptions {
   /** Worker threads for rendering: 0 renders in this thread; default: one per core, at most one per render job. */
   readonly workers: number;
+  /** Called once the folder is found fit to write, before the first frame is rendered. */
+  readonly onStart: (plan: DemoPlan) => void;
   /** Called after each frame is written. */
   readonly onFrame: (file: string, done: number, total: number) => void;
 }
@@ -156,6 +158,7 @@ export async function writeDemoShoot(folder: string, options: Partial<WriteDemoO
   if (state.kind === 'other') throw new DemoFolderError(`Expected an empty folder or a previous demo shoot for ${folder} but received a folder that is neither: ${state.reason}`);
   await mkdir(folder, { recursive: true });
   if (state.kind === 'demo') for (const f of state.files) await rm(join(folder, f), { force: true });
+  o.onStart?.(plan);
 
   const jobs = renderJobs(plan);
   const workers = o.workers ?? Math.min(jobs.length, availableParallelism());

@@ -7,7 +7,7 @@ import { app, BrowserWindow, dialog, ipcMain, protocol } from 'electron';
 import type { IpcMainInvokeEvent } from 'electron';
 import { channels, expectExportFormat, frameProtocol } from './app-api.js';
 import { AppService } from './app-service.js';
-import { loadStoredBudget, loadStoredPreference, storeBudget, storePreference } from './settings-store.js';
+import { loadStoredBudget, loadStoredPreference, storeBudget, storedSettingsInfo, storePreference } from './settings-store.js';
 import { ensureDemoShoot } from './demo-shoot.js';
 import { readRecentFolders } from './recent-folders.js';
 import { appOrigin, appScheme, desktopContentSecurityPolicy, hardenEveryContents, isTrustedSender, windowOptions } from './window-options.js';
@@ -63,7 +63,8 @@ app.whenReady().then(async () => {
     return image ? new Response(new Uint8Array(image), { headers: { 'Content-Type': 'image/jpeg' } }) : new Response('not found', { status: 404 });
   });
 
-  handle(channels.hostInfo, () => ({ shell: 'desktop', version: app.getVersion(), initialTarget: initial ? { folder: initial } : { demo: true } }));
+  // A page loaded again gets the check it started, never its first target again.
+  handle(channels.hostInfo, () => ({ shell: 'desktop', version: app.getVersion(), initialTarget: service.hasStarted ? null : initial ? { folder: initial } : { demo: true }, latest: service.latest() }));
   handle(channels.chooseFolder, async () => {
     const r = await dialog.showOpenDialog(win!, { properties: ['openDirectory'] });
     return r.canceled ? null : r.filePaths[0] ?? null;
@@ -78,6 +79,7 @@ app.whenReady().then(async () => {
   handle(channels.cancelCheck, (id) => service.cancelCheck(Number(id)));
   handle(channels.loadBudget, () => loadStoredBudget());
   handle(channels.saveBudget, (b) => storeBudget((b ?? {}) as Record<string, unknown>));
+  handle(channels.settingsInfo, () => storedSettingsInfo());
   handle(channels.loadShotPreference, () => loadStoredPreference());
   handle(channels.saveShotPreference, (p) => storePreference(p));
   handle(channels.tiePoints, (id, a, b) => service.tiePoints(Number(id), String(a), String(b)));

@@ -2,18 +2,34 @@ import { mkdir } from 'node:fs/promises';
 import { dirname } from 'node:path';
 import { budgetAsTyped, budgetFromTyped, pageBudget, resolveBudget } from '../core/budget.js';
 import type { MatchBudget } from '../core/report.js';
-import type { ShotPreference } from './app-api.js';
+import type { SettingsInfo, ShotPreference } from './app-api.js';
 import { expectShotPreference } from './app-api.js';
 import type { SettingsFile } from './settings.js';
-import { defaultSettingsPath, readSettings, settingsBudget } from './settings.js';
+import { defaultSettingsPath, readSettings, settingsBudget, shareOverlapNote } from './settings.js';
 import { writeFileAtomic } from './write-file.js';
 
-/** The budget from the user's settings file (defaults where it says nothing or is unreadable). */
+/** The budget from the user's settings file (defaults where it says nothing or is unreadable: storedSettingsInfo says so). */
 export async function loadStoredBudget(): Promise<MatchBudget> {
   try {
     return budgetFromTyped(settingsBudget(await readSettings(undefined), defaultSettingsPath()));
   } catch {
     return resolveBudget();
+  }
+}
+
+/**
+ * The user's settings file and what to say about it: overlaps read as shares (a file of earlier
+ * versions), or a file that cannot be used, so that the app never takes its defaults in silence.
+ */
+export async function storedSettingsInfo(): Promise<SettingsInfo> {
+  const path = defaultSettingsPath();
+  try {
+    const settings = await readSettings(undefined);
+    budgetFromTyped(settingsBudget(settings, path));
+    const shares = shareOverlapNote(settings, path);
+    return { path, note: shares ? shares.charAt(0).toUpperCase() + shares.slice(1) : null };
+  } catch (err) {
+    return { path, note: `The stored budget cannot be used (${(err as Error).message}): the app uses the default budget until it is saved here, which replaces the file.` };
   }
 }
 

@@ -1,6 +1,6 @@
 // The page's controller: holds the state (screen, report, budget, selection), talks to main only
 // through the SeamscoutApi object, and hands plain data to the views, which build DOM from it.
-import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat, HostInfo, SeamscoutApi, ShotPreference } from '../main/app-api.js';
+import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat, HostInfo, LatestCheck, SeamscoutApi, ShotPreference } from '../main/app-api.js';
 import type { MatchBudget, Report } from '../core/report.js';
 import { defaultBudget } from '../core/report.js';
 import { sequenceReport } from '../core/sequence-report.js';
@@ -15,7 +15,7 @@ import { renderExport } from './export-panel.js';
 import { chainPairs, findPair, pairKey } from './pairs.js';
 import type { ProgressModel, ProgressView } from './progress-view.js';
 import { createProgressView, emptyProgress, withEvent } from './progress-view.js';
-import type { StartModel } from './start-view.js';
+import type { DemoWriting, StartModel } from './start-view.js';
 import { renderStart } from './start-view.js';
 import { renderCoverage } from './coverage-view.js';
 import { showFrame } from './frame-image.js';
@@ -44,6 +44,8 @@ interface Running {
   model: ProgressModel;
   readonly view: ProgressView;
   cancelAsked: boolean;
+  /** The demo shoot being written before its check (first use): shown on the start screen. */
+  writing: DemoWriting | null;
 }
 
 /** The desktop bridge adds this beside the contract: a dropped file's path (Electron's webUtils). */
@@ -92,6 +94,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   let exportResult: ExportResult = { state: 'idle' };
   let saveTimer: ReturnType<typeof setTimeout> | null = null;
   let budgetStatus = '';
+  let settingsPath: string | null = null;
   let thumbs = new Map<string, HTMLImageElement>();
   let fulls = new Map<string, SVGImageElement>();
 
@@ -106,11 +109,15 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   );
 
   // The results screen's parts, built once; the parts that depend on the report are refilled.
-  const panel = createBudgetPanel(budget, (b) => {
-    budgetEdited = true;
-    setBudget(b);
-    scheduleSave(b);
-  });
+  const panel = createBudgetPanel(
+    budget,
+    (b) => {
+      budgetEdited = true;
+      setBudget(b);
+      scheduleSave(b);
+    },
+    { initial: prefer, onChange: (p) => void setPrefer(p) },
+  );
   const summarySlot = el('div', { class: 'summary-slot' });
   const listSlot = el('div', { class: 'list-slot' });
   const stripSlot = el('div', { class: 'strip-slot' });
@@ -153,7 +160,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   // Rendering.
   function render(): void {
     newCheck.hidden = screen !== 'results';
-    if (screen === 'start') {
+    if (screen === 'start' || (screen === 'progress' && running?.writing)) {
       replaceChildren(view, renderStart(startModel(), startActions));
     } else if (screen === 'progress' && running) {
       replaceChildren(view, running.view.element);
@@ -169,7 +176,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   }
 
   function startModel(): StartModel {
-    return { shell: host?.shell ?? null, recent, showPathField, canDrop: typeof bridge.pathForFile === 'function', message, hasResults: report !== null, prefer };
+    return { shell: host?.shell ?? null, recent, showPathField, canDrop: typeof bridge.pathForFile === 'function', message, hasResults: report !== null, prefer, writing: running?.writing ?? null };
   }
 
   /** The card shows its list; a sequence opened from it, or a report of one sequence, shows the strip. */
@@ -375,7 +382,8 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     saveTimer = setTimeout(() => {
       saveTimer = null;
       api.saveBudget(b).then(
-        () => setBudgetStatus(''),
+        // The command reads the same file: a budget changed here changes its verdicts, so say so.
+        () => setBudgetStatus(`Saved in ${settingsPath ?? 'the settings file'}: the command (seamscout check) uses these values from now on too.`),
         (e) => setBudgetStatus(`The budget could not be saved: ${messageOf(e)}`),
       );
     }, saveDelay);
@@ -389,7 +397,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   // Checks.
   async function startCheck(target: { folder: string } | { demo: true }, label: string): Promise<void> {
     if (running) return;
-    const r: Running = { id: null, model: emptyProgress(label), view: createProgressView(cancel), cancelAsked: false };
+    const r: Running = { id: null, model: emptyProgress(label), view: createProgressView(cancel), cancelAsked: false, writing: null };
     running = r;
     early = [];
     message = null;
@@ -434,8 +442,29 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
       return;
     }
     if (e.checkId !== r.id) return;
+    if (e.phase === 'demo') {
+      // The first event carries the estimate; it is said as it was, the time left follows the frames.
+      r.writing = { done: e.done, total: e.total, seconds: r.writing?.seconds ?? (e.secondsLeft === null ? null : Math.round(e.secondsLeft)), secondsLeft: e.secondsLeft };
+      if (screen === 'progress') render();
+      return;
+    }
+    if (r.writing) {
+      r.writing = null;
+      if (screen === 'progress') render();
+    }
     r.model = withEvent(r.model, e);
     if (screen === 'progress' || screen === 'results') r.view.update(r.model);
+  }
+
+  /** A page loaded again: the host's latest check, still running or with its report, instead of a new one. */
+  function resume(latest: LatestCheck): void {
+    if (latest.running) {
+      const label = latest.demo ? 'the demo shoot' : latest.folder.split(/[\\/]/).filter(Boolean).pop() ?? latest.folder;
+      running = { id: latest.checkId, model: emptyProgress(label), view: createProgressView(cancel), cancelAsked: false, writing: null };
+      screen = 'progress';
+    }
+    if (latest.report) receiveReport(latest.checkId, latest.report);
+    else render();
   }
 
   /** Results so far of the running check: shown at once, replaced by fuller ones as they come. */
@@ -514,6 +543,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   async function setPrefer(p: ShotPreference): Promise<boolean> {
     prefer = p;
     preferChosen = true;
+    panel.setPrefer(p);
     try {
       await api.saveShotPreference(p);
       return true;
@@ -660,7 +690,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
       openFolder(path);
       return;
     }
-    message = { kind: 'info', text: 'Dropping a folder needs the desktop app: type the folder path instead, or use Open folder….' };
+    message = { kind: 'info', text: 'Dropping a folder needs the desktop app: use Open folder… or type the folder path instead.' };
     if (host?.shell === 'browser') showPathField = true;
     screen = 'start';
     render();
@@ -685,8 +715,18 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
       recent = r;
     }, () => undefined),
     api.loadShotPreference().then((p) => {
-      if (!preferChosen) prefer = p;
+      if (preferChosen) return;
+      prefer = p;
+      panel.setPrefer(p);
     }, () => undefined),
+    // Tolerant of a bridge without it: the path is only said when a budget is saved.
+    Promise.resolve()
+      .then(() => api.settingsInfo())
+      .then((info) => {
+        settingsPath = info.path;
+        if (info.note && !budgetStatus) setBudgetStatus(info.note);
+      })
+      .catch(() => undefined),
     api.loadBudget().then((b) => {
       if (budgetEdited) return;
       panel.set(b);
@@ -695,7 +735,8 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   ]).then(() => {
     // Opened with a folder (or, by default, the demo shoot): go straight to its check.
     const first = host?.initialTarget;
-    if (screen === 'start' && first) {
+    if (screen === 'start' && host?.latest) resume(host.latest);
+    else if (screen === 'start' && first) {
       if ('demo' in first) startActions.tryDemo();
       else openFolder(first.folder);
     } else if (screen === 'start') render();

@@ -1,6 +1,6 @@
 // The page's side of the local browser host: the same SeamscoutApi as the desktop bridge, over HTTP
 // to this run's own loopback address with its token (given in the address the host printed).
-import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat, HostInfo, SeamscoutApi, ShotPreference } from '../main/app-api.js';
+import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat, HostInfo, SeamscoutApi, SettingsInfo, ShotPreference } from '../main/app-api.js';
 import type { MatchBudget } from '../core/report.js';
 
 function takeToken(): string {
@@ -43,6 +43,7 @@ export function createBrowserClient(): SeamscoutApi {
     cancelCheck: (id) => call<void>('cancelCheck', id),
     loadBudget: () => call<MatchBudget>('loadBudget'),
     saveBudget: (b) => call<MatchBudget>('saveBudget', b),
+    settingsInfo: () => call<SettingsInfo>('settingsInfo'),
     loadShotPreference: () => call<ShotPreference>('loadShotPreference'),
     saveShotPreference: (p) => call<ShotPreference>('saveShotPreference', p),
     exportReport: async (id: number, format: ExportFormat, budget: MatchBudget) => {

@@ -1,11 +1,15 @@
 // The budget panel: one input per match budget field, in the units a photographer thinks in
-// (overlap in percent). A good edit calls onChange at once (the caller re-judges, no re-analysis);
-// a bad one shows resolveBudget's message beside the field and keeps the last good budget.
-import type { NumericBudgetKey } from '../core/budget.js';
-import { resolveBudget } from '../core/budget.js';
+// (overlap in percent), and which file of a RAW+JPEG shot the next check reads. A good edit calls
+// onChange at once (the caller re-judges, no re-analysis); a bad one shows, beside the field, the
+// message the command gives for the same mistake (budgetFromTyped, in the panel's words), and keeps
+// the last good budget.
+import type { ShotPreference } from '../main/app-api.js';
+import type { NumericBudgetKey, TypedBudget } from '../core/budget.js';
+import { budgetFromTyped, budgetPanelWords } from '../core/budget.js';
 import type { MatchBudget } from '../core/report.js';
 import { defaultBudget } from '../core/report.js';
 import { button, el } from './dom.js';
+import { preferenceChoice } from './start-view.js';
 
 export interface BudgetField {
   readonly name: NumericBudgetKey;
@@ -27,37 +31,23 @@ export const budgetFields: readonly BudgetField[] = [
 const tidy = (v: number): string => String(Number(v.toPrecision(12)));
 const shown = (f: BudgetField, b: MatchBudget): string => tidy(f.percent ? 100 * b[f.name] : b[f.name]);
 
-/** The value a field's text stands for in the budget's own units: a number, or the text itself when it is none. */
-function parsed(f: BudgetField, text: string): number | string {
-  const t = text.trim().replace(',', '.');
-  const n = t === '' ? NaN : Number(t);
-  if (!Number.isFinite(n)) return text;
-  return f.percent ? n / 100 : n;
-}
+/** A field's text as typed, a decimal comma read as a point. */
+const typedValue = (text: string): string => text.trim().replace(',', '.');
 
-/**
- * resolveBudget speaks the budget's units (overlap 0..1); say the same in the field's units, so
- * "Expected a number from 0 to 1 for weakOverlap but received 1.5" reads "... from 0 to 100 (%) ...
- * received 150" next to a percent field.
- */
-export function inFieldUnits(message: string, typed: Record<string, string>): string {
-  let m = message;
-  for (const f of budgetFields.filter((x) => x.percent)) {
-    m = m.replace(new RegExp(`from 0 to 1 for ${f.name} but received .*$`), () => `from 0 to 100 (%) for ${f.name} but received ${JSON.stringify(typed[f.name] ?? '')}`);
-    m = m.replace(new RegExp(`${f.name} \\(([-+0-9.e]+)\\)`), (_all, v: string) => `${f.name} (${tidy(100 * Number(v))} %)`);
-  }
-  return m;
-}
+/** The panel's fields as a person typed them (overlaps in percent), named in the panel's words, for the command's own check. */
+export const panelBudget = (values: Record<string, unknown>): TypedBudget => ({ values, name: (k) => `the ${budgetPanelWords[k]}` });
 
 export interface BudgetPanel {
   readonly element: HTMLElement;
   /** Shows a budget (loaded, or the defaults) and clears any error; does not call onChange. */
   set(budget: MatchBudget): void;
+  /** Shows which file of a RAW+JPEG shot the next check reads; does not call its onChange. */
+  setPrefer(prefer: ShotPreference): void;
   /** The last good budget. */
   current(): MatchBudget;
 }
 
-export function createBudgetPanel(initial: MatchBudget, onChange: (b: MatchBudget) => void): BudgetPanel {
+export function createBudgetPanel(initial: MatchBudget, onChange: (b: MatchBudget) => void, prefer: { readonly initial: ShotPreference; readonly onChange: (p: ShotPreference) => void }): BudgetPanel {
   let good = initial;
   const inputs = new Map<NumericBudgetKey, HTMLInputElement>();
   const errors = new Map<NumericBudgetKey, HTMLElement>();
@@ -79,22 +69,22 @@ export function createBudgetPanel(initial: MatchBudget, onChange: (b: MatchBudge
     // apart so that only the field's own range is checked here).
     for (const f of budgetFields) {
       try {
-        resolveBudget({ reshootOverlap: 0, weakOverlap: 1 }, { [f.name]: parsed(f, text[f.name]) });
+        budgetFromTyped({ values: { reshootOverlap: 0, weakOverlap: 100 }, name: (k) => k }, panelBudget({ [f.name]: typedValue(text[f.name]) }));
         showError(f.name, null);
       } catch (e) {
-        showError(f.name, inFieldUnits((e as Error).message, text));
+        showError(f.name, (e as Error).message);
         bad = true;
       }
     }
     if (bad) return;
-    const layer = { ...Object.fromEntries(budgetFields.map((f) => [f.name, parsed(f, text[f.name])])), fullSphere: sphere.checked };
+    const layer = { ...Object.fromEntries(budgetFields.map((f) => [f.name, typedValue(text[f.name])])), fullSphere: sphere.checked };
     try {
-      const next = resolveBudget(layer);
+      const next = budgetFromTyped(panelBudget(layer));
       good = next;
       onChange(next);
     } catch (e) {
       // Only the fields' relation is left to fail (reshoot above weak): say so beside the field just edited.
-      showError(changed.name, inFieldUnits((e as Error).message, text));
+      showError(changed.name, (e as Error).message);
     }
   };
 
@@ -129,6 +119,15 @@ export function createBudgetPanel(initial: MatchBudget, onChange: (b: MatchBudge
     sphere.checked = b.fullSphere === true;
   };
 
+  const preferSlot = el('div', { class: 'field field-check field-prefer' });
+  const setPrefer = (p: ShotPreference): void => {
+    preferSlot.replaceChildren(
+      preferenceChoice(p, prefer.onChange, { name: 'panel-prefer', hook: 'data-panel-shot-preference' }),
+      el('p', { class: 'help' }, 'used from the next check on; the results shown keep the file they were checked with'),
+    );
+  };
+  setPrefer(prefer.initial);
+
   const element = el(
     'section',
     { class: 'budget', 'data-budget': '', 'aria-label': 'Match budget' },
@@ -139,6 +138,7 @@ export function createBudgetPanel(initial: MatchBudget, onChange: (b: MatchBudge
       set(defaultBudget);
       onChange(defaultBudget);
     }, 'Defaults'),
+    preferSlot,
   );
-  return { element, set, current: () => good };
+  return { element, set, setPrefer, current: () => good };
 }
