@@ -299,7 +299,9 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
       );
     }
     fillResults();
-    detailSlot.querySelector<HTMLElement>('.back')?.focus();
+    // The detail opens at the top of the window, its measures in sight whatever stands above it.
+    detailSlot.scrollIntoView?.({ block: 'start' });
+    detailSlot.querySelector<HTMLElement>('.back')?.focus({ preventScroll: true });
   }
 
   function closeDetail(): void {
