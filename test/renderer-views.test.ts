@@ -406,6 +406,10 @@ describe('the coverage map', () => {
     expect(svg.querySelectorAll('rect.hole').length).toBeGreaterThan(0);
     expect(svg.getAttribute('aria-label')).toMatch(/not covered/);
     expect(s.textContent).toMatch(/% of the shot band is not covered/);
+    // The low-overlap link is marked on the map and said in words; the exposure jump is no coverage problem.
+    expect(svg.querySelectorAll('line.link-mark[data-link="A01.jpg|A05.jpg"][data-code="low-overlap"]').length).toBeGreaterThan(0);
+    expect(svg.querySelectorAll('line.link-mark:not([data-link="A01.jpg|A05.jpg"])')).toHaveLength(0);
+    expect([...s.querySelectorAll('[data-mark]')].map((li) => [li.getAttribute('data-link'), text(li)])).toEqual([['A01.jpg|A05.jpg', 'Reshoot: stations 1 and 2 share only 12 % (dashed line between them).']]);
   });
 
   it('is left out when the frames could not be placed', () => {
