@@ -206,6 +206,65 @@ describe('the app in a real browser', () => {
     await page.locator('[data-summary]').waitFor();
   }, 60_000);
 
+  it('shows a flagged pair\'s measures without scrolling at 1366x768, its small overlap as a sliver, and says what its tie points are', async () => {
+    const gap = truth.problems.find((p) => p.code === 'low-overlap')!;
+    const [a, b] = gap.frames;
+    await page.setViewportSize({ width: 1366, height: 768 });
+    try {
+      await page.locator(`[data-pair="${a}|${b}"]`).click();
+      const detail = page.locator('[data-detail]');
+      await detail.locator('[data-tie-note="ready"]').waitFor({ timeout: 20_000 });
+      await page.waitForLoadState('networkidle');
+      // The numbers a verdict rests on lie inside the window as the detail opens: nothing scrolled by the test.
+      const inView = await page.evaluate(() =>
+        ['overlap', 'inliers', 'evDiff', 'verdict', 'reasons'].map((m) => {
+          const r = document.querySelector(`[data-detail] [data-measure="${m}"]`)!.getBoundingClientRect();
+          return { m, top: Math.round(r.top), bottom: Math.round(r.bottom), ok: r.height > 0 && r.top >= 0 && r.bottom <= window.innerHeight };
+        }),
+      );
+      expect(inView.filter((x) => !x.ok), JSON.stringify(inView)).toEqual([]);
+      // Both frames placed in one view: the demo's 6 % overlap is a thin sliver of it, and in sight too.
+      const placed = await page.evaluate(() => {
+        const view = document.querySelector('[data-detail] svg.placed-canvas')!.getBoundingClientRect();
+        const sliver = document.querySelector('[data-detail] [data-placed-overlap]')!.getBoundingClientRect();
+        return { share: sliver.width / view.width, top: sliver.top, bottom: sliver.bottom, height: window.innerHeight };
+      });
+      expect(placed.share).toBeGreaterThan(0.01);
+      expect(placed.share).toBeLessThan(0.1);
+      expect(placed.top).toBeGreaterThanOrEqual(0);
+      expect(placed.bottom).toBeLessThanOrEqual(placed.height);
+      // The tie points drawn are counted, and the note says how they stand to the inlier count.
+      const note = detail.locator('[data-tie-note]');
+      const drawn = Number(await note.getAttribute('data-tie-count'));
+      expect(await detail.locator('[data-tie]').count()).toBe(drawn);
+      const inliers = Number(await detail.locator('[data-measure="inliers"] .numeral').innerText());
+      expect(await note.innerText()).toContain(drawn === inliers ? `${drawn} tie points drawn, as many as the inliers` : `${drawn} tie points drawn: the points the homography is finally fitted to`);
+      if (drawn !== inliers) expect(await note.innerText()).toContain(`not the ${inliers} inliers`);
+      await page.screenshot({ path: join(shots, 'detail-1366x768.png') });
+      await page.keyboard.press('Escape');
+      await page.locator('[data-summary]').waitFor();
+    } finally {
+      await page.setViewportSize({ width: 1600, height: 1000 });
+    }
+  }, 60_000);
+
+  it('marks the low-overlap link on the coverage map, and nothing else', async () => {
+    const gaps = truth.problems.filter((p) => p.code === 'low-overlap').map((p) => `${p.frames[0]}|${p.frames[1]}`);
+    await page.setViewportSize({ width: 1366, height: 768 });
+    try {
+      const coverage = page.locator('.coverage');
+      await coverage.scrollIntoViewIfNeeded();
+      const marked = await coverage.locator('svg line.link-mark').evaluateAll((n) => [...new Set(n.map((x) => x.getAttribute('data-link')))]);
+      expect(marked.sort()).toEqual(gaps.sort());
+      expect(await coverage.locator('svg line.link-mark').first().getAttribute('stroke-dasharray')).toBeTruthy();
+      expect(await coverage.locator('svg').first().textContent()).toContain('link with too little overlap');
+      expect(await coverage.locator(`[data-mark="link"][data-link="${gaps[0]}"]`).innerText()).toMatch(/share only \d+ %/);
+      await coverage.screenshot({ path: join(shots, 'coverage-1366x768.png') });
+    } finally {
+      await page.setViewportSize({ width: 1600, height: 1000 });
+    }
+  }, 60_000);
+
   it('re-judges at once when the minimum overlap changes', async () => {
     // Pick a neighbour link that is ok now; require more overlap than it has.
     const links = page.locator('[data-kind="neighbour"][data-verdict="ok"]');

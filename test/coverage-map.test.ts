@@ -346,3 +346,83 @@ describe('holes in every row, and the poles only when asked or approached', () =
     expect(() => resolveBudget({ fullSphere: 1 })).toThrow(/Expected true or false for fullSphere/);
   });
 });
+
+describe('problems marked in place on the exported map', () => {
+  // A single turn like the demo shoot's: 12 stations, one step of 51 degrees where the others are
+  // about 30 (frames 54 degrees wide: 6 % overlap there, as the pair's measure says).
+  const yaws = [0, 30, 60, 111, 140, 169, 198, 227, 256, 285, 314, 343].map(wrap);
+  const sweepPairs = (overlapOf: (k: number) => number | null): Analysis['pairs'] =>
+    yaws.map((_, k) => {
+      const j = (k + 1) % yaws.length, o = overlapOf(k);
+      return {
+        a: `F${k}.JPG`, b: `F${j}.JPG`, kind: j === 0 ? 'closure' : 'neighbour',
+        matches: o === null ? 10 : 400, inliers: o === null ? 0 : 220, matchesInOverlap: o === null ? 0 : 300,
+        overlap: o, homography: o === null ? null : [1, 0, 0, 0, 1, 0, 0, 0, 1], evDiff: o === null ? null : 0, rmsError: o === null ? null : 0.4, shiftPx: null,
+      };
+    });
+  const sweep = (overlapOf: (k: number) => number | null): Report => judge(analysisOf(yaws.map((yawDeg) => ({ yawDeg, pitchDeg: 0, rollDeg: 0 })), { pairs: sweepPairs(overlapOf) }), defaultBudget);
+  const attrs = (svg: string, cls: string): Record<string, string>[] =>
+    [...svg.matchAll(new RegExp(`<[a-z]+ class="${cls}"([^>]*)>`, 'g'))].map((m) => Object.fromEntries([...m[1].matchAll(/([\w-]+)="([^"]*)"/g)].map((a) => [a[1], a[2]])));
+
+  it('draws a low-overlap link between its stations in the reshoot colour, dashed on a dark casing, with its overlap and a legend entry', () => {
+    const report = sweep((k) => (k === 2 ? 0.06 : 0.45));
+    expect(report.pairs.find((p) => p.a === 'F2.JPG')!.reasons).toEqual(['low-overlap']);
+    const svg = coverageMapSvg(report)!;
+    const marks = attrs(svg, 'link-mark');
+    expect(marks).toHaveLength(1);
+    const m = marks[0];
+    expect(m['data-link']).toBe('F2.JPG|F3.JPG');
+    expect([m['data-code'], m['data-verdict'], m.stroke]).toEqual(['low-overlap', 'reshoot', '#D55E00']);
+    // Not colour alone: a dash pattern, a dark casing under it, the overlap in words, a legend entry.
+    expect(m['stroke-dasharray']).toMatch(/^\d+ \d+$/);
+    expect(attrs(svg, 'link-casing')).toHaveLength(1);
+    expect(svg).toMatch(/class="link-words"[^>]*>6 %<\/text>/);
+    expect(svg).toContain('link with too little overlap (dashed, its overlap beside it), reshoot');
+    // From station 3's centre toward station 4's, 2 px a degree: yaw 60 and 111 at x = 480 and 582, less 10 px at each end.
+    expect(Number(m.x1)).toBeCloseTo(490, 0);
+    expect(Number(m.x2)).toBeCloseTo(572, 0);
+  });
+
+  it('marks nothing on a clean turn, and dots a link that did not match', () => {
+    const clean = coverageMapSvg(sweep(() => 0.45))!;
+    expect(clean).not.toMatch(/class="(link-mark|link-casing|link-words|hole-mark|aim-mark)"/);
+    expect(clean).not.toContain('link with');
+    expect(clean).not.toContain('hole to fill');
+    const failed = sweep((k) => (k === 6 ? null : 0.45));
+    expect(failed.pairs.find((p) => p.a === 'F6.JPG')!.reasons).toContain('no-match');
+    const svg = coverageMapSvg(failed)!;
+    const marks = attrs(svg, 'link-mark');
+    expect(marks.map((x) => [x['data-link'], x['data-code']])).toEqual([['F6.JPG|F7.JPG', 'no-match']]);
+    expect(marks[0]['stroke-dasharray']).not.toBe(attrs(coverageMapSvg(sweep((k) => (k === 2 ? 0.06 : 0.45)))!, 'link-mark')[0]['stroke-dasharray']);
+    expect(svg).toMatch(/class="link-words"[^>]*>no match<\/text>/);
+    expect(svg).toContain('link that did not match (dotted)');
+  });
+
+  it('outlines a coverage hole with a cross where to aim, and leaves a complete set of rows unmarked', () => {
+    const all = twoRows();
+    const missing = all.find((p) => p.pitchDeg === 20 && p.yawDeg === 135)!;
+    const poses = all.filter((p) => p !== missing);
+    const across = (a: Placed, b: Placed): boolean => a.pitchDeg === 20 && a.yawDeg === 90 && Math.abs(b.yawDeg) === 180;
+    const report = judge(analysisOf(poses, { focalPx: wide, pairs: rowPairs(poses, across) }), defaultBudget);
+    const svg = coverageMapSvg(report)!;
+    const outline = attrs(svg, 'hole-mark');
+    expect(outline).toHaveLength(1);
+    expect([outline[0]['data-verdict'], outline[0].stroke, outline[0].fill]).toEqual(['reshoot', '#D55E00', 'none']);
+    expect(outline[0]['stroke-dasharray']).toBeTruthy();
+    // The cross sits where the hole's advice says to aim: yaw 135, pitch +20 (x = 630, y = 28 + 70 x 2).
+    const cross = attrs(svg, 'aim-mark');
+    expect(cross).toHaveLength(1);
+    const [cx, cy] = /^M ([\d.]+) ([\d.]+)/.exec(cross[0].d)!.slice(1).map(Number);
+    expect(cx + 7).toBeCloseTo(x135(report), 0);
+    expect(cy).toBeCloseTo(28 + (90 - report.holes![0].pitchDeg) * 2, 0);
+    expect(svg).toContain('hole to fill, reshoot (dashed outline; + where to aim)');
+    // The failed pair is the hole (one cause, one flag): no link mark of its own.
+    expect(attrs(svg, 'link-mark')).toHaveLength(0);
+
+    const complete = coverageMapSvg(judge(analysisOf(all, { focalPx: wide, pairs: rowPairs(all, () => false) }), defaultBudget))!;
+    expect(complete).not.toMatch(/class="(link-mark|hole-mark|aim-mark)"/);
+  });
+});
+
+/** x on the map (2 px a degree) of the hole's yaw, which the advice gives as where to aim. */
+const x135 = (report: Report): number => (report.holes![0].yawDeg + 180) * 2;

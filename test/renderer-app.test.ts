@@ -478,7 +478,7 @@ describe('keyboard and the pair detail', () => {
     expect(document.querySelectorAll('[data-detail] [data-tie]').length).toBe(3);
     // Redrawn with its tie points, the detail keeps focus on its Back button.
     expect(document.activeElement?.classList.contains('back')).toBe(true);
-    expect($('[data-detail] image')?.getAttribute('href')).toBe('seamscout-frame://frames/7/F2.jpg?max=1200');
+    expect($('[data-detail] .pair-canvas image')?.getAttribute('href')).toBe('seamscout-frame://frames/7/F2.jpg?max=1200');
 
     press('Escape');
     expect($('[data-detail]')).toBeNull();

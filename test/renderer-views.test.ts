@@ -268,7 +268,7 @@ describe('the pair detail', () => {
 
   it('draws the two frames, one mark per tie point, and the overlap on each frame', () => {
     const d = show('A01.jpg|A05.jpg');
-    const images = [...d.querySelectorAll('image')];
+    const images = [...d.querySelectorAll('.pair-canvas image')];
     expect(images.map((i) => i.getAttribute('href'))).toEqual(['seamscout-frame://frames/1/A01.jpg?max=1200', 'seamscout-frame://frames/1/A05.jpg?max=1200']);
     // Both frames scaled to 1000 units high: a is 1500 wide, b starts after a 48-unit gap.
     expect(images.map((i) => [i.getAttribute('x'), i.getAttribute('width'), i.getAttribute('height')])).toEqual([['0', '1500', '1000'], ['1548', '1500', '1000']]);
@@ -286,7 +286,35 @@ describe('the pair detail', () => {
     expect(Math.max(...xsOf('a'))).toBeCloseTo(1500, 0);
     expect(Math.min(...xsOf('b'))).toBeCloseTo(1548, 0);
     expect(Math.max(...xsOf('b'))).toBeCloseTo(1728, 0);
-    expect(text(d.querySelector('[data-tie-note]'))).toBe('5 tie points drawn; the outline is the overlap.');
+    // Five tie points for a pair of 60 inliers: the note says what they are, not that they are the inliers.
+    expect(d.querySelector('[data-tie-note]')?.getAttribute('data-tie-count')).toBe('5');
+    expect(text(d.querySelector('[data-tie-note]'))).toBe('5 tie points drawn: the points the homography is finally fitted to (the first frame\'s corners in the overlap, each found in the second by its appearance). They are not the 60 inliers, which count the descriptor matches that agree. The outline is the overlap.');
+    const sixty = Array.from({ length: 60 }, (_, k) => [2700 + k, 100 + 20 * k, 60 + k, 100 + 20 * k]).flat();
+    expect(text(show('A01.jpg|A05.jpg', { state: 'ready', points: sixty }).querySelector('[data-tie-note]'))).toBe('60 tie points drawn, as many as the inliers: the points the homography is fitted to. The outline is the overlap.');
+  });
+
+  it('puts the measures a verdict rests on before the pictures, and places b on a with the overlap outlined', () => {
+    const d = show('A01.jpg|A05.jpg');
+    const order = [...d.querySelectorAll('[data-measure], .placed-figure, .pair-canvas')].map((n) => n.getAttribute('data-measure') ?? n.getAttribute('class'));
+    const first = order.indexOf('placed-figure');
+    expect(order.slice(0, first)).toEqual(['overlap', 'inliers', 'evDiff', 'verdict', 'reasons']);
+    expect(order.slice(first + 1)).toEqual(['matches', 'inlierShare', 'matchesInOverlap', 'rmsError', 'pair-canvas']);
+    // The fixture's frames have a 24 mm (35 mm equivalent) focal length in EXIF and no geometry: the view is the sphere.
+    const placed = d.querySelector('svg.placed-canvas')!;
+    expect(placed.getAttribute('data-surface')).toBe('sphere');
+    expect(placed.querySelector('[data-side="b"]')?.getAttribute('data-pieces')).toBe('128');
+    expect(placed.querySelectorAll('[data-side="b"] use').length).toBe(128);
+    expect(placed.querySelector('#placed-b-picture')?.getAttribute('href')).toBe('seamscout-frame://frames/1/A05.jpg?max=1200');
+    expect(placed.getAttribute('aria-label')).toContain('the overlap, 12 % of A01.jpg');
+    const ov = (placed.querySelector('[data-placed-overlap]')?.getAttribute('points') ?? '').split(' ').map((p) => Number(p.split(',')[0]));
+    const box = (placed.getAttribute('viewBox') ?? '').split(' ').map(Number);
+    // 12 % of a's width, on a view about two frames wide.
+    expect((Math.max(...ov) - Math.min(...ov)) / box[2]).toBeGreaterThan(0.03);
+    expect((Math.max(...ov) - Math.min(...ov)) / box[2]).toBeLessThan(0.1);
+    const none = judge({ ...analysis, pairs: analysis.pairs.map((p) => (p.a === 'A01.jpg' && p.b === 'A05.jpg' ? { ...p, homography: null, overlap: null, inliers: 0 } : p)) }, defaultBudget);
+    const unplaced = renderDetail(none, 'A01.jpg|A05.jpg', { image, tiePoints: ready, lines: true, onBack: () => undefined, onToggleLines: () => undefined });
+    expect(unplaced.querySelector('svg.placed-canvas')).toBeNull();
+    expect(text(unplaced.querySelector('.placed-figure'))).toBe('No homography: the frames could not be placed in one view.');
   });
 
   it('draws dots without lines when lines are off, and says when tie points are loading or failed', () => {
@@ -374,6 +402,10 @@ describe('the coverage map', () => {
     expect(svg.querySelectorAll('rect.hole').length).toBeGreaterThan(0);
     expect(svg.getAttribute('aria-label')).toMatch(/not covered/);
     expect(s.textContent).toMatch(/% of the shot band is not covered/);
+    // The low-overlap link is marked on the map and said in words; the exposure jump is no coverage problem.
+    expect(svg.querySelectorAll('line.link-mark[data-link="A01.jpg|A05.jpg"][data-code="low-overlap"]').length).toBeGreaterThan(0);
+    expect(svg.querySelectorAll('line.link-mark:not([data-link="A01.jpg|A05.jpg"])')).toHaveLength(0);
+    expect([...s.querySelectorAll('[data-mark]')].map((li) => [li.getAttribute('data-link'), text(li)])).toEqual([['A01.jpg|A05.jpg', 'Reshoot: stations 1 and 2 share only 12 % (dashed line between them).']]);
   });
 
   it('is left out when the frames could not be placed', () => {

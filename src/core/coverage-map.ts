@@ -2,7 +2,7 @@
  * The coverage map: every placed frame's footprint on an equirectangular view of the sphere around
  * the camera (yaw across, pitch up), and the directions inside the shot band no frame sees.
  */
-import type { Analysis, CoverageHole, CoverageNote, MatchBudget, SequenceGeometry, Verdict } from './report.js';
+import type { Analysis, CoverageHole, CoverageNote, FlagCode, MatchBudget, PairMeasure, SequenceGeometry, Verdict } from './report.js';
 import { cross } from './rotations.js';
 import { distortionFactor, undistortRadius } from './lens.js';
 
@@ -10,7 +10,16 @@ import { distortionFactor, undistortRadius } from './lens.js';
  * What the map is drawn from: the frames' sizes, the stations' reference frames, the geometry, and
  * (from a report or a budget) whether the set is declared a full sphere.
  */
-export type MapSource = Pick<Analysis, 'frames' | 'stations' | 'geometry'> & { readonly budget?: Pick<MatchBudget, 'fullSphere'> | null };
+export type MapSource = Pick<Analysis, 'frames' | 'stations' | 'geometry'> & {
+  readonly budget?: Pick<MatchBudget, 'fullSphere'> | null;
+  /** The pairs, judged (a report's): links between stations flagged for overlap or matching are marked on the map. */
+  readonly pairs?: readonly MapLink[];
+  /** A report's coverage holes, outlined where they are with where to aim. */
+  readonly holes?: readonly CoverageHole[];
+};
+
+/** What the map needs of a pair to mark it: its frames, kind, overlap and, once judged, verdict and reasons. */
+export type MapLink = Pick<PairMeasure, 'a' | 'b' | 'kind' | 'overlap'> & { readonly verdict?: Verdict; readonly reasons?: readonly FlagCode[] };
 
 type Vec = [number, number, number];
 
@@ -286,17 +295,111 @@ export function holeShare(map: CoverageMap): number {
 
 const esc = (s: string): string => s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;');
 
+/** Okabe & Ito's colours for the two warning verdicts ("Color Universal Design", 2002), as the app uses them. */
+const warningColour: Record<Exclude<Verdict, 'ok'>, string> = { weak: '#E69F00', reshoot: '#D55E00' };
+
+/** Why a link between stations is marked, most telling first; each has its own dash pattern and words. */
+const linkCodes = ['no-match', 'no-closure', 'low-overlap'] as const;
+export type LinkMarkCode = (typeof linkCodes)[number];
+const linkDash: Record<LinkMarkCode, string> = { 'no-match': '2 5', 'no-closure': '12 4 2 4', 'low-overlap': '9 5' };
+const linkLegend: Record<LinkMarkCode, string> = {
+  'no-match': 'link that did not match (dotted)',
+  'no-closure': 'turn that does not close (dash-dot)',
+  'low-overlap': 'link with too little overlap (dashed, its overlap beside it)',
+};
+
+/** A link between two placed stations that the verdicts flag for its overlap or its match. */
+export interface LinkMark {
+  readonly a: string;
+  readonly b: string;
+  /** Stations (counting from 0) of a and b. */
+  readonly stations: readonly [number, number];
+  readonly code: LinkMarkCode;
+  readonly verdict: Exclude<Verdict, 'ok'>;
+  readonly overlap: number | null;
+  /** The stations' centres, yaw and pitch in degrees, b's yaw unwrapped to lie within 180 degrees of a's. */
+  readonly from: readonly [number, number];
+  readonly to: readonly [number, number];
+}
+
+/**
+ * The neighbour and closure links a judged report flags for low overlap, no match or no closure,
+ * between stations the map places; a link with a station not placed has nowhere to be drawn.
+ */
+export function linkMarks(source: MapSource): LinkMark[] {
+  const map = coverageMap(source);
+  if (!map) return [];
+  const centre = new Map(map.footprints.map((fp) => [fp.station, fp.centre]));
+  const stationOf = (file: string): number | undefined => source.stations.find((st) => st.frames.includes(file))?.index;
+  const marks: LinkMark[] = [];
+  for (const p of source.pairs ?? []) {
+    if ((p.kind !== 'neighbour' && p.kind !== 'closure') || !p.verdict || p.verdict === 'ok') continue;
+    const code = linkCodes.find((c) => p.reasons?.includes(c));
+    const sa = stationOf(p.a), sb = stationOf(p.b);
+    if (!code || sa === undefined || sb === undefined) continue;
+    const ca = centre.get(sa), cb = centre.get(sb);
+    if (!ca || !cb) continue;
+    marks.push({ a: p.a, b: p.b, stations: [sa, sb], code, verdict: p.verdict, overlap: p.overlap, from: [ca[0], ca[1]], to: [ca[0] + wrapYaw(cb[0] - ca[0]), cb[1]] });
+  }
+  return marks;
+}
+
+/** Approximate width of a legend text at 11 px sans-serif: wide enough to keep entries apart. */
+const textWidth = (t: string): number => 6.2 * t.length;
+
 /**
  * The map as a standalone SVG: 2 px a degree by default, yaw from -180 (left) to 180, pitch 90 at
- * the top. Frames are outlined and numbered by station (counting from 1, as the app does); holes
- * are hatched in vermillion (Okabe & Ito's palette) and named in the legend, never by colour alone.
+ * the top. Frames are outlined and numbered by station (counting from 1, as the app does). Problems
+ * are marked where they are, each in a warning colour of Okabe & Ito's palette with a second cue
+ * and a legend entry in words, never by colour alone: what no frame sees is hatched; a report's
+ * coverage holes get a dashed outline and a cross where to aim; a link flagged for low overlap,
+ * no match or no closure is a line between its stations' centres, dashed, dotted or dash-dotted,
+ * on a dark casing, with its overlap or the words beside it.
  */
 export function coverageMapSvg(report: MapSource, scale = 2): string | null {
   const map = coverageMap(report);
   if (!map) return null;
-  const W = 360 * scale, H = 180 * scale, top = 28, bottom = 36;
+  const W = 360 * scale, H = 180 * scale, top = 28;
   const x = (yaw: number): number => (yaw + 180) * scale;
   const y = (pitch: number): number => top + (90 - pitch) * scale;
+  const links = linkMarks(report);
+  const holes = report.holes ?? [];
+
+  // The legend: entries in words, flowing onto a second line where the first is full.
+  const legend: { swatch: (lx: number, ly: number) => string; text: string }[] = [
+    { swatch: (lx, ly) => `<rect x="${lx}" y="${ly - 10}" width="14" height="12" fill="#0072B2" fill-opacity="0.08" stroke="#0072B2"/>`, text: 'frame (station number)' },
+    { swatch: (lx, ly) => `<rect x="${lx}" y="${ly - 10}" width="14" height="12" fill="url(#hole)" stroke="#D55E00"/>`, text: map.holes.length ? 'not covered (hatched)' : 'not covered (none in the shot band)' },
+  ];
+  for (const v of ['reshoot', 'weak'] as const) {
+    const here = holes.filter((h) => h.verdict === v);
+    if (here.length === 0) continue;
+    legend.push({
+      swatch: (lx, ly) => `<rect x="${lx + 1}" y="${ly - 9}" width="12" height="10" fill="none" stroke="${warningColour[v]}" stroke-width="2" stroke-dasharray="4 2"/><path d="M ${lx + 7} ${ly - 8} v 8 M ${lx + 3} ${ly - 4} h 8" stroke="#000000" stroke-width="1.5"/>`,
+      text: `hole to fill, ${v === 'reshoot' ? 'reshoot' : 'weak'} (dashed outline; + where to aim)`,
+    });
+  }
+  for (const code of linkCodes) {
+    for (const v of ['reshoot', 'weak'] as const) {
+      if (!links.some((l) => l.code === code && l.verdict === v)) continue;
+      legend.push({
+        swatch: (lx, ly) => `<line x1="${lx}" y1="${ly - 4}" x2="${lx + 22}" y2="${ly - 4}" stroke="#000000" stroke-opacity="0.75" stroke-width="6"/><line x1="${lx}" y1="${ly - 4}" x2="${lx + 22}" y2="${ly - 4}" stroke="${warningColour[v]}" stroke-width="3.5" stroke-dasharray="${linkDash[code]}"/>`,
+        text: `${linkLegend[code]}, ${v}`,
+      });
+    }
+  }
+  const placedLegend: { lx: number; line: number; entry: (typeof legend)[number] }[] = [];
+  let lx = 4, line = 0;
+  for (const entry of legend) {
+    const wide = 28 + textWidth(entry.text) + 18;
+    if (lx > 4 && lx + wide > W) {
+      lx = 4;
+      line++;
+    }
+    placedLegend.push({ lx, line, entry });
+    lx += wide;
+  }
+  const bottom = 36 + 18 * line;
+
   const parts: string[] = [];
   parts.push(`<svg xmlns="http://www.w3.org/2000/svg" width="${W}" height="${H + top + bottom}" viewBox="0 0 ${W} ${H + top + bottom}" font-family="sans-serif" font-size="11">`);
   parts.push('<title>Seamscout coverage map</title>');
@@ -319,11 +422,42 @@ export function coverageMapSvg(report: MapSource, scale = 2): string | null {
     }
     parts.push(`<text x="${x(fp.centre[0]).toFixed(1)}" y="${(y(fp.centre[1]) + 4).toFixed(1)}" text-anchor="middle" fill="#003b5c">${esc(String(fp.station + 1))}</text>`);
   }
+  // Copies a yaw's width to either side, so a mark across the seam at +-180 degrees shows whole.
+  const shifts = (yawLo: number, yawHi: number): number[] => [0, ...(yawHi > 180 ? [-360] : []), ...(yawLo < -180 ? [360] : [])];
+  for (const h of holes) {
+    const colour = warningColour[h.verdict === 'ok' ? 'weak' : h.verdict];
+    const width = Math.min(360, h.widthDeg);
+    const pTop = h.pole === 'zenith' ? 90 : h.pole === 'nadir' ? -90 + h.heightDeg : h.pitchDeg + h.heightDeg / 2;
+    const yawLo = width >= 359 ? -180 : h.yawDeg - width / 2;
+    for (const shift of shifts(yawLo, yawLo + width)) {
+      parts.push(`<rect class="hole-mark" data-verdict="${h.verdict}" x="${x(yawLo + shift).toFixed(1)}" y="${y(pTop).toFixed(1)}" width="${(width * scale).toFixed(1)}" height="${(h.heightDeg * scale).toFixed(1)}" fill="none" stroke="${colour}" stroke-width="2.5" stroke-dasharray="6 3"/>`);
+      if (h.pole === null) {
+        const ax = x(h.yawDeg + shift), ay = y(h.pitchDeg);
+        parts.push(`<path class="aim-mark" d="M ${(ax - 7).toFixed(1)} ${ay.toFixed(1)} h 14 M ${ax.toFixed(1)} ${(ay - 7).toFixed(1)} v 14" stroke="#000000" stroke-width="2"/>`);
+      }
+    }
+  }
+  for (const l of links) {
+    const colour = warningColour[l.verdict];
+    const words = l.code === 'low-overlap' ? (l.overlap === null ? 'low overlap' : `${Math.round(100 * l.overlap)} %`) : l.code === 'no-match' ? 'no match' : 'no closure';
+    // The line stops short of the station numbers at either end.
+    const x1 = x(l.from[0]), y1 = y(l.from[1]), x2 = x(l.to[0]), y2 = y(l.to[1]);
+    const len = Math.hypot(x2 - x1, y2 - y1) || 1, cut = Math.min(10, len / 4);
+    const ux = (x2 - x1) / len, uy = (y2 - y1) / len;
+    for (const shift of shifts(Math.min(l.from[0], l.to[0]), Math.max(l.from[0], l.to[0]))) {
+      const d = shift * scale;
+      const a = `x1="${(x1 + ux * cut + d).toFixed(1)}" y1="${(y1 + uy * cut).toFixed(1)}" x2="${(x2 - ux * cut + d).toFixed(1)}" y2="${(y2 - uy * cut).toFixed(1)}"`;
+      parts.push(`<line class="link-casing" ${a} stroke="#000000" stroke-opacity="0.75" stroke-width="7"/>`);
+      parts.push(`<line class="link-mark" data-link="${esc(`${l.a}|${l.b}`)}" data-code="${l.code}" data-verdict="${l.verdict}" ${a} stroke="${colour}" stroke-width="4.5" stroke-dasharray="${linkDash[l.code]}"/>`);
+      parts.push(`<text class="link-words" x="${((x1 + x2) / 2 + d).toFixed(1)}" y="${((y1 + y2) / 2 - 9).toFixed(1)}" text-anchor="middle" font-weight="bold" fill="#000000" stroke="#ffffff" stroke-width="3" paint-order="stroke">${esc(words)}</text>`);
+    }
+  }
   parts.push('</g>');
   for (let yaw = -180; yaw <= 180; yaw += 90) parts.push(`<text x="${Math.min(W - 30, Math.max(2, x(yaw) - 12))}" y="${top + H + 14}" fill="#555555">${yaw}°</text>`);
-  const ly = top + H + 30;
-  parts.push(`<rect x="4" y="${ly - 10}" width="14" height="12" fill="#0072B2" fill-opacity="0.08" stroke="#0072B2"/><text x="22" y="${ly}">frame (station number)</text>`);
-  parts.push(`<rect x="170" y="${ly - 10}" width="14" height="12" fill="url(#hole)" stroke="#D55E00"/><text x="188" y="${ly}">${map.holes.length ? 'not covered' : 'not covered (none in the shot band)'}</text>`);
+  for (const { lx: ex, line: el, entry } of placedLegend) {
+    const ly = top + H + 30 + 18 * el;
+    parts.push(`<g class="legend-entry">${entry.swatch(ex, ly)}<text x="${ex + 28}" y="${ly}">${esc(entry.text)}</text></g>`);
+  }
   parts.push('</svg>');
   return parts.join('\n') + '\n';
 }

@@ -309,7 +309,9 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
       );
     }
     fillResults();
-    detailSlot.querySelector<HTMLElement>('.back')?.focus();
+    // The detail opens at the top of the window, its measures in sight whatever stands above it.
+    detailSlot.scrollIntoView?.({ block: 'start' });
+    detailSlot.querySelector<HTMLElement>('.back')?.focus({ preventScroll: true });
   }
 
   /** Shows a station or frame of the strip (closing the detail first): the plan's and the overview's buttons. */
