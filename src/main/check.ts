@@ -404,8 +404,12 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
       // The pair total grows as pairs are asked for (a closure pair, a station split on its content).
       pairsAsked++;
       const task = pairSlot(async () => {
+        signal?.throwIfAborted();
         const [a, b] = await Promise.all([dataOf(i), dataOf(j)]);
-        pairResults.set(key, await pool.analysePair(a, b, { retryAtFullSize, overlapBlocks }, signal));
+        const result = await pool.analysePair(a, b, { retryAtFullSize, overlapBlocks }, signal);
+        // A pair analysed on this thread cannot be stopped halfway; once cancelled, it is not reported.
+        signal?.throwIfAborted();
+        pairResults.set(key, result);
         options.onProgress?.({ phase: 'pairs', done: ++pairsDone, total: pairsAsked, file: frames[j]?.file.name });
       }).finally(() => {
         pairsInFlight.delete(key);
