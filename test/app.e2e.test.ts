@@ -292,7 +292,7 @@ describe('the app in a real browser', () => {
     expect(xml).toMatch(/^<\?xml/);
     expect(xml).toContain('<graphml xmlns="http://graphml.graphdrawing.org/xmlns"');
     expect((xml.match(/<node /g) ?? []).length).toBe(truth.frames.length);
-    await expect.poll(() => page.locator('[data-export-result]').innerText()).toMatch(/graphml/i);
+    await expect.poll(() => page.locator('[data-export-result]').innerText()).toMatch(/^Downloaded as .*\.graphml: look in your browser's downloads folder\.$/);
   }, 60_000);
 
   // The first screen of a laptop (1366x768) and of a desktop (1920x1080), light and dark: the plan

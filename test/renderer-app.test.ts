@@ -537,10 +537,18 @@ describe('export and theme', () => {
     ($('[data-export="graphml"]') as HTMLElement).click();
     expect(f.calls.at(-1)).toEqual({ name: 'exportReport', args: [7, 'graphml', { ...defaultBudget, minInliers: 50 }] });
     await tick();
-    expect(text($('[data-export-result]'))).toBe('Written: /home/me/shoot.graphml');
+    expect(text($('[data-export-result]'))).toBe('Saved to /home/me/shoot.graphml');
     expect([...document.querySelectorAll('[data-export]')].map((b) => [b.getAttribute('data-export'), text(b)])).toEqual([
       ['json', 'Export report (JSON)'], ['graphml', 'Export pair graph (GraphML)'], ['csv', 'Export pairs (CSV)'], ['dot', 'Export graph (DOT)'], ['coverage', 'Export coverage map (SVG)'],
     ]);
+  });
+
+  it('says where an export went: the full path from the desktop save dialog, the file name and the downloads folder in a browser', async () => {
+    const f = fakeApi({ shell: 'browser', exportResult: () => Promise.resolve('shoot.csv') });
+    await withResults(f);
+    ($('[data-export="csv"]') as HTMLElement).click();
+    await tick();
+    expect(text($('[data-export-result]'))).toBe("Downloaded as shoot.csv: look in your browser's downloads folder.");
   });
 
   it('shows an export\'s error or its cancelling', async () => {

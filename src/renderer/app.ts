@@ -531,7 +531,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     replaceChildren(exportSlot, renderExport(exportResult, doExport));
     try {
       const path = await api.exportReport(checkId, format, budget);
-      exportResult = path === null ? { state: 'cancelled' } : { state: 'written', path };
+      exportResult = path === null ? { state: 'cancelled' } : { state: 'written', path, shell: host?.shell ?? 'desktop' };
     } catch (e) {
       exportResult = { state: 'failed', message: messageOf(e) };
     }

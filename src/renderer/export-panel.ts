@@ -10,13 +10,15 @@ export const exportButtons: readonly { format: ExportFormat; label: string }[] =
   { format: 'coverage', label: 'Export coverage map (SVG)' },
 ];
 
-export type ExportResult = { readonly state: 'idle' } | { readonly state: 'busy'; readonly format: ExportFormat } | { readonly state: 'written'; readonly path: string } | { readonly state: 'cancelled' } | { readonly state: 'failed'; readonly message: string };
+export type ExportResult = { readonly state: 'idle' } | { readonly state: 'busy'; readonly format: ExportFormat } | { readonly state: 'written'; readonly path: string; readonly shell: 'desktop' | 'browser' } | { readonly state: 'cancelled' } | { readonly state: 'failed'; readonly message: string };
 
 export function exportResultText(r: ExportResult): string {
   switch (r.state) {
     case 'idle': return '';
     case 'busy': return 'Writing…';
-    case 'written': return `Written: ${r.path}`;
+    // The desktop window knows the full path the save dialog chose; a browser never tells a page
+    // where its downloads go, so the page names the file and where to look.
+    case 'written': return r.shell === 'desktop' ? `Saved to ${r.path}` : `Downloaded as ${r.path}: look in your browser's downloads folder.`;
     case 'cancelled': return 'Export cancelled.';
     case 'failed': return `Export failed: ${r.message}`;
   }
