@@ -10,7 +10,8 @@ import type { FrameMeasure, PairMeasure, Report, Verdict } from '../src/core/rep
 import { defaultBudget } from '../src/core/report.js';
 import { createCheckStream, provisionalPair } from '../src/main/check-stream.js';
 import { writeDemoShoot } from '../src/main/demo-writer.js';
-import { formatSummary, pairKey } from '../src/main/summary.js';
+import type { ShownPair } from '../src/main/summary.js';
+import { formatSummary, pairKey, pairRow } from '../src/main/summary.js';
 import { projectRoot, tempDir } from './helpers/cli.js';
 import { externalFixture } from './helpers/images.js';
 
@@ -86,22 +87,32 @@ describe('the command, piped and on a terminal', () => {
     report = JSON.parse(readFileSync(json, 'utf8'));
   }, 180_000);
 
-  it('prints every pair line before the final block, in the order of the report, then the reshoot plan first of the final block', () => {
+  it('prints every pair line before the final block, in the order of the report; the final block does not repeat them and ends with the plan and the verdict', () => {
     expect([0, 1]).toContain(piped.code);
-    const lines = piped.stdout.split('\n');
-    const planAt = lines.findIndex((l) => l.startsWith('Reshoot plan for '));
-    const streamed = lines.slice(0, planAt).flatMap((l) => {
+    const lines = piped.stdout.trimEnd().split('\n');
+    const finalAt = lines.findIndex((l) => l.startsWith('Seamscout check of '));
+    const streamed = lines.slice(0, finalAt).flatMap((l) => {
       const m = pairLine.exec(l);
       return m ? [`${m[1]} ${m[2]} ${m[3]}`] : [];
     });
     expect(streamed).toEqual(report.pairs.map((p) => `${p.a} ${p.b} ${p.kind}`));
     expect(lines[0]).toMatch(/^Pairs as they are judged/);
-    expect(lines[planAt - 1]).toBe('');
+    expect(lines[finalAt - 1]).toBe('');
+    // Only pairs the whole sequence judged otherwise come again, under their own heading.
+    const again = lines.slice(finalAt).filter((l) => pairLine.test(l));
+    const judgedOtherwise = lines.indexOf('Judged otherwise once the whole sequence was checked:');
+    if (again.length) expect(judgedOtherwise).toBeGreaterThan(finalAt);
+    expect(again.length).toBeLessThan(report.pairs.length);
+    // The plan and the verdict line are the last thing printed.
+    const planAt = lines.findIndex((l) => l.startsWith('Reshoot plan for '));
+    expect(planAt).toBeGreaterThan(finalAt);
+    expect(lines.at(-1)).toMatch(/^Verdict: /);
+    expect(lines.slice(planAt).filter((l) => l.startsWith('Verdict: '))).toHaveLength(1);
   });
 
   it('writes the first pair line before the check ends (time reported, not asserted)', () => {
     const first = piped.chunks.find((c) => c.text.split('\n').some((l) => pairLine.test(l)))!;
-    const final = piped.chunks.find((c) => c.text.includes('Reshoot plan for '))!;
+    const final = piped.chunks.find((c) => c.text.includes('Seamscout check of '))!;
     console.log(`check-stream: first pair line after ${Math.round(first.at - piped.startedAt)} ms, final block after ${Math.round(final.at - piped.startedAt)} ms (4 stations of 3 frames, 900 x 600)`);
     expect(first.at).toBeLessThan(final.at);
   });
@@ -134,7 +145,7 @@ describe('the command, piped and on a terminal', () => {
     // eslint-disable-next-line no-control-regex -- the escape codes are what this looks for
     const visible = (s: string): string => s.slice(s.lastIndexOf('\r') + 1).replace(/^\x1b\[K/, '');
     const pairs = segments.map((s, k) => ({ s, k })).filter(({ s }) => pairLine.test(visible(s)));
-    const beforePlan = segments.findIndex((s) => s.includes('Reshoot plan for '));
+    const beforePlan = segments.findIndex((s) => s.includes('Seamscout check of '));
     const streamed = pairs.filter(({ k }) => k < beforePlan);
     expect(streamed.length).toBe(report.pairs.length);
     for (const { k } of streamed) {
@@ -158,18 +169,35 @@ describe('on real photographs (the leuven pair)', () => {
     report = JSON.parse(readFileSync(json, 'utf8'));
   }, 120_000);
 
-  it('shows the pair once while checking and once in the final table', () => {
+  it('shows the pair once while checking and not again in the final block, whose verdict did not change', () => {
     const lines = run.stdout.split('\n');
-    const planAt = lines.findIndex((l) => l.startsWith('Reshoot plan for '));
-    expect(lines.slice(0, planAt).filter((l) => pairLine.test(l))).toHaveLength(1);
-    expect(lines.slice(planAt).filter((l) => pairLine.test(l))).toHaveLength(1);
+    const finalAt = lines.findIndex((l) => l.startsWith('Seamscout check of '));
+    expect(lines.slice(0, finalAt).filter((l) => pairLine.test(l))).toHaveLength(1);
+    expect(lines.slice(finalAt).filter((l) => pairLine.test(l))).toHaveLength(0);
+    // Its finding is explained, counted as a pair, not as a reshoot.
+    expect(lines).toContain('Findings: 1 pair flagged.');
   });
 
-  it('marks in the final table a pair whose verdict differs from the one shown while checking, and only that', () => {
+  it('lists again a pair whose verdict or kind differs from the one shown while checking, once, and only that', () => {
     const p = report.pairs[0];
     const other: Verdict = p.verdict === 'ok' ? 'reshoot' : 'ok';
-    const row = (shown: Verdict): string => formatSummary(report, new Map([[pairKey(p), shown]])).split('\n').find((l) => pairLine.test(l))!;
-    expect(row(other)).toMatch(new RegExp(`\\[shown as ${other === 'ok' ? 'ok' : 'RESHOOT'} while checking\\]$`));
-    expect(row(p.verdict)).not.toMatch(/while checking/);
+    const rows = (shown: ShownPair): string[] => formatSummary(report, new Map([[pairKey(p), shown]])).split('\n').filter((l) => pairLine.test(l));
+    expect(rows({ verdict: other, kind: p.kind })).toEqual([expect.stringMatching(new RegExp(`\\[shown as ${other === 'ok' ? 'ok' : 'RESHOOT'} while checking\\]$`))]);
+    // A row's closure pair is screened first as another pair, and a turn's closure pair may end as
+    // one between rows (--all-pairs on a set shot in rows): listed once, with its final kind.
+    const kindChanged = rows({ verdict: p.verdict, kind: 'closure' });
+    expect(kindChanged).toHaveLength(1);
+    expect(kindChanged[0]).toMatch(new RegExp(`^. ${p.a} -> ${p.b} +${p.kind} .*\\[shown as closure while checking\\]$`));
+    expect(rows({ verdict: p.verdict, kind: p.kind })).toEqual([]);
+  });
+
+  it('prints the whole pair table when no pair line was shown, and a pair never shown under its own heading', () => {
+    const p = report.pairs[0];
+    expect(formatSummary(report).split('\n').filter((l) => pairLine.test(l))).toEqual([pairRow(p, 11)]);
+    const reversed = { ...p, a: p.b, b: p.a };
+    const out = formatSummary({ ...report, pairs: [p, reversed] }, new Map([[pairKey(p), { verdict: p.verdict, kind: p.kind }]])).split('\n');
+    const at = out.indexOf('Pairs not shown while checking:');
+    expect(at).toBeGreaterThan(0);
+    expect(out.filter((l) => pairLine.test(l))).toEqual([pairRow(reversed, 11)]);
   });
 });

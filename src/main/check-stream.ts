@@ -5,9 +5,11 @@
  *
  * A streamed line judges the pair alone against the budget. The sequence may still change its
  * verdict (the refined lens, the closure of the turn, a guided retry of a failed pair, the holes of
- * the coverage), so the final summary has the last word and marks a pair whose verdict changed.
+ * the coverage) or its kind (a set shot in rows: a row's closure pair), so the final summary has
+ * the last word: it lists again only the pairs it judged otherwise.
  */
 import type { Analysis, FrameMeasure, MatchBudget, ReportPair, StationMeasure, Verdict } from '../core/report.js';
+import type { ShownPair } from './summary.js';
 import { judge } from '../core/verdicts.js';
 import type { CheckProgress, PairStreamed } from './check.js';
 import { forTerminal, pairKey, pairRow, pairTableHeader, progressLine } from './summary.js';
@@ -34,8 +36,8 @@ export interface CheckStream {
   onRunDone(e: { run: number; frames: number; pairs: number; splitAgain: boolean }): void;
   /** The check is over (or failed): the progress line is cleared; the final block follows. */
   end(verdict: Verdict | null): void;
-  /** The verdicts shown while checking, by `pairKey`, for the final table. */
-  readonly shown: ReadonlyMap<string, Verdict>;
+  /** The pairs shown while checking (verdict and kind), by `pairKey`, for the final summary. */
+  readonly shown: ReadonlyMap<string, ShownPair>;
   /** Milliseconds from the start to the first pair line, or null before it. */
   readonly firstPairMs: number | null;
 }
@@ -57,7 +59,7 @@ const clearLine = '\r\x1b[K';
 export function createCheckStream(o: CheckStreamOptions): CheckStream {
   const now = o.now ?? (() => performance.now());
   const start = now();
-  const shown = new Map<string, Verdict>();
+  const shown = new Map<string, ShownPair>();
   let firstPairMs: number | null = null;
   let bar = '';
   let lastRun: number | null = null;
@@ -79,12 +81,12 @@ export function createCheckStream(o: CheckStreamOptions): CheckStream {
     },
     onPair(e) {
       const p = provisionalPair(e, o.budget);
-      shown.set(pairKey(p), p.verdict);
+      shown.set(pairKey(p), { verdict: p.verdict, kind: p.kind });
       event('pair', { run: e.run, a: p.a, b: p.b, kind: p.kind, overlap: p.overlap, inliers: p.inliers, evDiff: p.evDiff, verdict: p.verdict, reasons: p.reasons });
       const head: string[] = [];
       if (firstPairMs === null) {
         firstPairMs = now() - start;
-        head.push('Pairs as they are judged (each on its own; the summary below has the final verdicts):', pairTableHeader(e.nameWidth));
+        head.push('Pairs as they are judged, each on its own (the end lists any the whole sequence judges otherwise):', pairTableHeader(e.nameWidth));
       } else if (lastRun !== null && e.run !== lastRun) head.push('');
       lastRun = e.run;
       lines([...head, pairRow(p, e.nameWidth)]);

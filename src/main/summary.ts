@@ -1,4 +1,4 @@
-import type { Report, ReportPair, ReportSequence, Verdict } from '../core/report.js';
+import type { PairKind, Report, ReportPair, ReportSequence, Verdict } from '../core/report.js';
 import { millimetres } from '../core/number-words.js';
 import { sequenceReport } from '../core/sequence-report.js';
 import { lensSentence } from '../core/lens-words.js';
@@ -54,17 +54,17 @@ const clock = (iso: string | null): string | null => (iso ? iso.slice(11, 16) : 
  * sequence, headed by its frames, time span, stations and verdict, each as if it were checked alone;
  * then the single shots, the files not checked, and the card's count and verdict.
  */
-function formatCard(report: Report, streamed?: ReadonlyMap<string, Verdict>): string {
+function formatCard(report: Report, streamed?: ReadonlyMap<string, ShownPair>): string {
   const seqs = report.sequences ?? [];
   const singles = report.singleShots ?? [];
-  const out: string[] = [...planBlock(report, report.folder), '', `Seamscout check of ${report.folder}`];
+  const out: string[] = [`Seamscout check of ${report.folder}`];
   out.push(`${seqs.length} sequence${seqs.length === 1 ? '' : 's'}${singles.length ? ` and ${singles.length} single shot${singles.length === 1 ? '' : 's'}` : ''} on the card`);
   for (const q of seqs) {
     const span = [clock(q.startTime), clock(q.endTime)].filter(Boolean);
     const when = span.length === 2 ? (span[0] === span[1] ? `, ${span[0]}` : `, ${span[0]} to ${span[1]}`) : '';
     out.push('', `Sequence ${q.index} of ${seqs.length}: ${q.firstFile} to ${q.lastFile}, ${q.frames.length} frames, ${q.stations.length} stations${when}, ${word[q.verdict]}`);
     if (q.splitBy.length) out.push(`  apart from the sequence before: ${apartWords(q.splitBy)}`);
-    // The card's plan above has every sequence's items already.
+    // The card's plan at the end has every sequence's items already.
     const body = formatOne(sequenceReport(report, q.index), false, streamed).trimEnd().split('\n').slice(1);
     // The heading has the counts already: what the sequence covers is left of that line.
     const rest = body[0].replace(/^\d+ frames in \d+ stations(, )?/, '');
@@ -82,6 +82,8 @@ function formatCard(report: Report, streamed?: ReadonlyMap<string, Verdict>): st
   const by = (v: string): number => seqs.filter((q) => q.verdict === v).length;
   const tally = [by('ok') ? `${by('ok')} ok` : '', by('weak') ? `${by('weak')} weak` : '', by('reshoot') ? `${by('reshoot')} to reshoot` : ''].filter(Boolean).join(', ');
   out.push('', `${seqs.length} sequence${seqs.length === 1 ? '' : 's'}${tally ? `: ${tally}` : ''}${singles.length ? `; ${singles.length} single shot${singles.length === 1 ? '' : 's'}` : ''}.`);
+  // The plan last: it is what stays on screen when the check is over.
+  out.push('', ...planBlock(report, report.folder));
   return out.map(forTerminal).join('\n') + '\n';
 }
 
@@ -104,17 +106,28 @@ function planBlock(report: Report, subject: string): string[] {
 }
 
 /**
- * The summary a photographer reads in the terminal: the reshoot plan, then the pairs in shooting
- * order and the details behind the plan. `streamed` holds the verdicts printed while the check ran
- * (by `pairKey`): a pair whose final verdict differs says what it was shown as.
+ * The summary a photographer reads in the terminal once the check is over: what the sequence
+ * covers, the pairs, the frames and the findings behind the plan, then the reshoot plan and the
+ * verdict in one line, last, so that they are what stays on screen.
+ *
+ * `streamed` holds the pairs printed while the check ran (by `pairKey`). Those lines are not
+ * printed again: only a pair the whole sequence judged otherwise (another verdict, or another kind:
+ * a row's closure pair first screened as another pair) and a pair never shown. Without it (or
+ * when none of a sequence's pairs was shown) the whole pair table is printed.
  */
-export function formatSummary(report: Report, streamed?: ReadonlyMap<string, Verdict>): string {
+export function formatSummary(report: Report, streamed?: ReadonlyMap<string, ShownPair>): string {
   if ((report.sequences?.length ?? 0) > 1 || (report.singleShots?.length ?? 0) > 0) return formatCard(report, streamed);
   return formatOne(report, true, streamed);
 }
 
-/** The key of a pair in the verdicts shown while checking. */
-export const pairKey = (p: { a: string; b: string; kind: string }): string => `${p.a}\n${p.b}\n${p.kind}`;
+/** A pair as its line showed it while the check ran. */
+export interface ShownPair {
+  readonly verdict: Verdict;
+  readonly kind: PairKind;
+}
+
+/** The key of a pair among those shown while checking: its two files, in order (its kind may change at the end). */
+export const pairKey = (p: { a: string; b: string }): string => `${p.a}\n${p.b}`;
 
 /** The heading of the pair table; `w` is the longest file name. */
 export function pairTableHeader(w: number): string {
@@ -128,9 +141,8 @@ export function pairRow(p: Pick<ReportPair, 'a' | 'b' | 'kind' | 'overlap' | 'in
   return `${mark[p.verdict]}${pad(`${p.a} -> ${p.b}`, 2 * w + 4)}  ${pad(p.kind, 9)} ${overlap}  ${String(p.inliers).padStart(7)}  ${ev}  ${word[p.verdict]}${p.reasons.length ? ` (${p.reasons.join(', ')})` : ''}`;
 }
 
-function formatOne(report: Report, withPlan = true, streamed?: ReadonlyMap<string, Verdict>): string {
+function formatOne(report: Report, withPlan = true, streamed?: ReadonlyMap<string, ShownPair>): string {
   const out: string[] = [];
-  if (withPlan) out.push(...planBlock(report, report.folder), '');
   const g = report.geometry;
   const openTurn = report.pairs.some((p) => p.kind === 'closure' && p.homography === null);
   const closes = g?.closure ? (g.closure.closes ? `, the turn closes (within ${g.closure.misclosureDeg!.toFixed(1)} deg)` : ', the turn does not meet itself') : openTurn ? ', the turn does not close' : '';
@@ -141,20 +153,18 @@ function formatOne(report: Report, withPlan = true, streamed?: ReadonlyMap<strin
   out.push(`${report.counts.frames} frames in ${report.counts.stations} stations${sweep}`);
   const lens = lensSentence(report);
   if (lens) out.push(`Lens as measured: ${lens}`);
-  out.push('');
   const w = Math.max(8, ...report.frames.map((f) => f.file.length));
-  // Bracket pairs are listed only when flagged; the rest are summed up in one line.
-  const shown = report.pairs.filter((p) => p.kind !== 'bracket' || p.verdict !== 'ok');
-  const quietBrackets = report.pairs.filter((p) => p.kind === 'bracket' && p.verdict === 'ok');
-  if (shown.length) out.push(pairTableHeader(w));
-  for (const p of shown) {
-    // A pair printed while the check ran whose verdict the whole sequence changed says so.
-    const first = streamed?.get(pairKey(p));
-    out.push(pairRow(p, w) + (first !== undefined && first !== p.verdict ? `  [shown as ${word[first]} while checking]` : ''));
-  }
-  if (quietBrackets.length) {
-    const worstShift = Math.max(...quietBrackets.map((p) => p.shiftPx ?? 0));
-    out.push(`  ${quietBrackets.length} bracket frame${quietBrackets.length === 1 ? '' : 's'} aligned with their reference (largest shift ${worstShift.toFixed(1)} px)`);
+  if (streamed && report.pairs.some((p) => streamed.has(pairKey(p)))) out.push(...pairsSinceShown(report.pairs, streamed, w));
+  else {
+    out.push('');
+    // Bracket pairs are listed only when flagged; the rest are summed up in one line.
+    const shown = report.pairs.filter((p) => p.kind !== 'bracket' || p.verdict !== 'ok');
+    const quietBrackets = report.pairs.filter((p) => p.kind === 'bracket' && p.verdict === 'ok');
+    if (shown.length) out.push(pairTableHeader(w), ...shown.map((p) => pairRow(p, w)));
+    if (quietBrackets.length) {
+      const worstShift = Math.max(...quietBrackets.map((p) => p.shiftPx ?? 0));
+      out.push(`  ${quietBrackets.length} bracket frame${quietBrackets.length === 1 ? '' : 's'} aligned with their reference (largest shift ${worstShift.toFixed(1)} px)`);
+    }
   }
   const flaggedFrames = report.frames.filter((f) => f.verdict !== 'ok');
   if (flaggedFrames.length) {
@@ -176,16 +186,41 @@ function formatOne(report: Report, withPlan = true, streamed?: ReadonlyMap<strin
   const notes = report.coverageNotes ?? [];
   if (notes.length) out.push('', 'Notes:', ...notes.map((n) => `  - ${n.text}`));
   if (report.verdict !== 'ok') {
-    const leftOut = left.length ? `, ${left.length} file${left.length === 1 ? '' : 's'} not checked` : '';
-    // Holes no pair carries are counted apart: the counts are of pairs and frames.
+    // The findings behind the plan, each with its measures. What is flagged is counted as pairs and
+    // frames, never as "to reshoot": that count is the plan's items, in the verdict line.
+    const count = (n: number, what: string): string => (n ? `${n} ${what}${n === 1 ? '' : 's'}` : '');
+    const flagged = [count(report.pairs.filter((p) => p.verdict !== 'ok').length, 'pair'), count(flaggedFrames.length, 'frame')].filter(Boolean).join(' and ');
+    // Holes no pair carries are counted apart.
     const pairAdvice = new Set(report.pairs.flatMap((p) => p.advice));
     const holes = (report.holes ?? []).filter((h) => h.verdict !== 'ok' && !pairAdvice.has(h.advice)).length;
-    const holesOut = holes ? `, ${holes} hole${holes === 1 ? '' : 's'} in the coverage` : '';
-    // The plan above says what to do; these are the findings behind it, each with its measures.
-    out.push('', `Findings: ${report.counts.reshoot} to reshoot, ${report.counts.weak} weak${holesOut}${leftOut}.`);
+    const found = [flagged ? `${flagged} flagged` : '', holes ? `${count(holes, 'hole')} in the coverage` : '', left.length ? `${count(left.length, 'file')} not checked` : ''].filter(Boolean).join(', ');
+    if (found || advice.length) out.push('', found ? `Findings: ${found}.` : 'Findings:');
     if (advice.length) out.push(...advice.map((a) => `  - ${a}`));
   }
+  if (withPlan) out.push('', ...planBlock(report, report.folder));
   return out.map(forTerminal).join('\n') + '\n';
+}
+
+/**
+ * After the lines shown while checking, only what is new about the pairs: those the whole sequence
+ * judged otherwise (with what they were shown as), and any never shown.
+ */
+function pairsSinceShown(pairs: readonly ReportPair[], streamed: ReadonlyMap<string, ShownPair>, w: number): string[] {
+  const out: string[] = [];
+  const changed = pairs.filter((p) => {
+    const s = streamed.get(pairKey(p));
+    return s !== undefined && (s.verdict !== p.verdict || s.kind !== p.kind);
+  });
+  if (changed.length) {
+    out.push('', 'Judged otherwise once the whole sequence was checked:', pairTableHeader(w));
+    for (const p of changed) {
+      const s = streamed.get(pairKey(p))!;
+      out.push(`${pairRow(p, w)}  [shown as ${[s.kind !== p.kind ? s.kind : '', s.verdict !== p.verdict ? word[s.verdict] : ''].filter(Boolean).join(', ')} while checking]`);
+    }
+  }
+  const unseen = pairs.filter((p) => !streamed.has(pairKey(p)));
+  if (unseen.length) out.push('', 'Pairs not shown while checking:', pairTableHeader(w), ...unseen.map((p) => pairRow(p, w)));
+  return out;
 }
 
 /** One line on the shots written as RAW and JPEG: which file of each was checked, and how to check the other. */
