@@ -4,7 +4,7 @@
 // The expected forms follow the cameras' own displays of the third-stop shutter and aperture
 // series (memory) and the issue's example ("20.7 mm", "1/250 s", "+1.3 EV").
 import { describe, expect, it } from 'vitest';
-import { degrees, fNumber, isoSpeed, millimetres, percent, shutterTime, signedEv } from '../src/core/number-words.js';
+import { degrees, duration, fNumber, isoSpeed, millimetres, percent, shutterTime, signedEv } from '../src/core/number-words.js';
 
 describe('number words', () => {
   it('writes focal lengths to a tenth of a millimetre, without noise or a trailing zero', () => {
@@ -67,5 +67,15 @@ describe('number words', () => {
   it('refuses what is not a number in the project\'s words', () => {
     expect(() => shutterTime(0)).toThrow('Expected a positive number for seconds but received 0');
     expect(() => millimetres(Number.NaN)).toThrow('Expected a finite number for mm but received NaN');
+  });
+});
+
+describe('duration', () => {
+  it('says a pause in the unit a person would use, days and years for frames from other trips', () => {
+    expect([duration(45.4), duration(600), duration(7500), duration(7200)]).toEqual(['45 s', '10 min', '2 h 5 min', '2 h']);
+    // 62981.4 h between two frames (two trips years apart on one card) was once written in hours.
+    expect(duration(62_981.4 * 3600)).toBe('about 7 years');
+    expect([duration(3 * 86_400), duration(47 * 3600), duration(400 * 86_400)]).toEqual(['3 days', '47 h', 'about a year']);
+    expect([duration(-1), duration(Number.NaN)]).toEqual(['an unknown time', 'an unknown time']);
   });
 });

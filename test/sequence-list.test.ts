@@ -7,7 +7,7 @@ import type { MatchBudget } from '../src/core/report.js';
 import { defaultBudget } from '../src/core/report.js';
 import { sequenceReport } from '../src/core/sequence-report.js';
 import { analysisOf, judge, rejudge } from '../src/core/verdicts.js';
-import { cardWords, duration, isCard, renderSequenceBar, renderSequenceList, splitWords, timeSpan } from '../src/renderer/sequence-list-view.js';
+import { cardWords, isCard, renderSequenceBar, renderSequenceList, splitWords, timeSpan } from '../src/renderer/sequence-list-view.js';
 import { renderSummary } from '../src/renderer/summary-view.js';
 import { aloneInFolder, cardAnalysis } from './helpers/card-analysis.js';
 
@@ -148,7 +148,6 @@ describe('times and evidence in words', () => {
     expect(timeSpan('2026-06-14T23:58:00.000', '2026-06-15T00:03:00.000')).toBe('2026-06-14 23:58 to 2026-06-15 00:03');
     expect(timeSpan(null, null)).toBe('time unknown');
     expect(timeSpan(null, '2026-06-14T19:13:40.000')).toBe('19:13');
-    expect([duration(45.4), duration(600), duration(7500), duration(7200)]).toEqual(['45 s', '10 min', '2 h 5 min', '2 h']);
     expect(splitWords({ by: 'camera', from: 'A', to: 'B' })).toBe('another camera (B)');
     expect(splitWords({ by: 'orientation', from: 'landscape', to: 'portrait' })).toBe('portrait instead of landscape');
     expect(splitWords({ by: 'focal-length', fromMm: 20, toMm: 20.666666666666668 })).toBe('focal length 20 mm to 20.7 mm');

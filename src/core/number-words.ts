@@ -75,3 +75,21 @@ export function percent(share: number): string {
   finite(share, 'share');
   return `${Math.round(100 * share) || 0} %`;
 }
+
+/**
+ * A pause as a person says it: "45 s", "12 min", "2 h 5 min", "3 days", "about 7 years". Frames
+ * from different days or years (a card used on several trips) get days or years, never thousands
+ * of hours.
+ */
+export function duration(seconds: number): string {
+  if (typeof seconds !== 'number' || !Number.isFinite(seconds) || seconds < 0) return 'an unknown time';
+  if (seconds < 90) return `${Math.round(seconds)} s`;
+  const min = Math.round(seconds / 60);
+  if (min < 90) return `${min} min`;
+  const h = Math.floor(min / 60), rest = min - 60 * h;
+  if (h < 48) return rest ? `${h} h ${rest} min` : `${h} h`;
+  const days = Math.round(seconds / 86_400);
+  if (days < 365) return `${days} days`;
+  const years = Math.round(seconds / (365.25 * 86_400));
+  return years === 1 ? 'about a year' : `about ${years} years`;
+}

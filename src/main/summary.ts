@@ -1,5 +1,5 @@
 import type { PairKind, Report, ReportPair, ReportSequence, Verdict } from '../core/report.js';
-import { millimetres } from '../core/number-words.js';
+import { duration, millimetres } from '../core/number-words.js';
 import { sequenceReport } from '../core/sequence-report.js';
 import { lensSentence } from '../core/lens-words.js';
 import { notChecked } from '../core/verdicts.js';
@@ -45,7 +45,6 @@ function apartWords(splitBy: ReportSequence['splitBy']): string {
   return words.join(', ');
 }
 
-const duration = (s: number): string => (s < 90 ? `${Math.round(s)} s` : s < 5400 ? `${Math.round(s / 60)} min` : `${(s / 3600).toFixed(1)} h`);
 /** "19:12" from a local ISO 8601 time. */
 const clock = (iso: string | null): string | null => (iso ? iso.slice(11, 16) : null);
 

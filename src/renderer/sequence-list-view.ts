@@ -1,6 +1,6 @@
 // A card of several sequences: the list the app opens on (one entry per sequence, in shooting order,
 // then the single shots), and the bar above a sequence opened from it. Pure functions of the report.
-import { millimetres } from '../core/number-words.js';
+import { duration, millimetres } from '../core/number-words.js';
 import type { Report, ReportSequence, SequenceSplit, SingleShot } from '../core/report.js';
 import { cardSequences } from '../core/sequence-report.js';
 import { button, el } from './dom.js';
@@ -37,16 +37,6 @@ export function timeSpan(start: string | null, end: string | null): string {
   if (a === null && b === null) return 'time unknown';
   if (a === null || b === null || a === b) return (a ?? b) as string;
   return `${a} to ${b}`;
-}
-
-/** A pause as a person says it: "45 s", "12 min", "2 h 5 min". */
-export function duration(seconds: number): string {
-  if (!Number.isFinite(seconds) || seconds < 0) return 'an unknown time';
-  if (seconds < 90) return `${Math.round(seconds)} s`;
-  const min = Math.round(seconds / 60);
-  if (min < 90) return `${min} min`;
-  const h = Math.floor(min / 60), rest = min - 60 * h;
-  return rest ? `${h} h ${rest} min` : `${h} h`;
 }
 
 /** What set a sequence apart from the one before, in words. */
