@@ -40,6 +40,9 @@ describe('plain messages and exit codes', () => {
     const r = await runCli(['check', one, '--threads', '0', '--no-cache']);
     expect(r.code).toBe(1);
     expect(r.stdout).toMatch(/needs at least two overlapping frames/);
+    // Counted in words a person reads ("1 frame", not "1 frames"), and the verdict, printed last, points up.
+    expect(r.stdout).toMatch(/^1 frame in 1 station$/m);
+    expect(r.stdout.trimEnd().split('\n').at(-1)).toBe('Verdict: WEAK. Nothing to reshoot; see above.');
   });
 
   it('no argument-parser or file-system text: an unknown option, a missing value, a missing frame', async () => {

@@ -4,6 +4,9 @@ import { sequenceReport } from '../core/sequence-report.js';
 import { lensSentence } from '../core/lens-words.js';
 import { notChecked } from '../core/verdicts.js';
 
+/** "1 frame", "35 frames". */
+const count = (n: number, one: string): string => `${n} ${one}${n === 1 ? '' : 's'}`;
+
 const word: Record<Verdict, string> = { ok: 'ok', weak: 'WEAK', reshoot: 'RESHOOT' };
 const mark: Record<Verdict, string> = { ok: '  ', weak: '~ ', reshoot: '! ' };
 
@@ -66,7 +69,7 @@ function formatCard(report: Report, streamed?: ReadonlyMap<string, ShownPair>): 
     // The card's plan at the end has every sequence's items already.
     const body = formatOne(sequenceReport(report, q.index), false, streamed).trimEnd().split('\n').slice(1);
     // The heading has the counts already: what the sequence covers is left of that line.
-    const rest = body[0].replace(/^\d+ frames in \d+ stations(, )?/, '');
+    const rest = body[0].replace(/^\d+ frames? in \d+ stations?(, )?/, '');
     body[0] = rest.charAt(0).toUpperCase() + rest.slice(1);
     out.push(...body.map((l) => (l ? `  ${l}` : l)));
   }
@@ -97,10 +100,10 @@ function planBlock(report: Report, subject: string): string[] {
   if (must.length) out.push(`Reshoot plan for ${subject}, in shooting order:`, ...must.map((i, k) => `  ${String(k + 1).padStart(String(must.length).length)}. ${i.text}`));
   else out.push(`Reshoot plan for ${subject}: nothing to reshoot.`);
   if (look.length) out.push(`Worth a look${must.length ? ' (optional)' : ''}:`, ...look.map((i) => `  - ${i.text}`));
-  const items = (n: number, what: string): string => `${n} ${what}${n === 1 ? '' : 's'}`;
-  const counted = [must.length ? items(must.length, 'item') + ' to reshoot' : '', look.length ? `${look.length} worth a look` : ''].filter(Boolean).join(', ');
-  // A weak card with nothing in its plan (a file left out, a break between sequences) says why below.
-  out.push(report.verdict === 'ok' ? 'Verdict: ok. Every pair and frame is within the match budget.' : `Verdict: ${word[report.verdict]}. ${counted || 'Nothing to reshoot; see below'}.`);
+  const counted = [must.length ? count(must.length, 'item') + ' to reshoot' : '', look.length ? `${look.length} worth a look` : ''].filter(Boolean).join(', ');
+  // A weak card with nothing in its plan (a file left out, a break between sequences) says why above
+  // (the plan and verdict are printed last).
+  out.push(report.verdict === 'ok' ? 'Verdict: ok. Every pair and frame is within the match budget.' : `Verdict: ${word[report.verdict]}. ${counted || 'Nothing to reshoot; see above'}.`);
   return out;
 }
 
@@ -149,7 +152,7 @@ function formatOne(report: Report, withPlan = true, streamed?: ReadonlyMap<strin
     ? `, covering ${Math.round(g.horizontalDeg)} deg of the horizon and ${Math.round(g.verticalDeg)} deg vertically${closes}`
     : report.sweepDeg === null ? '' : `, sweep about ${Math.round(report.sweepDeg)} deg`;
   out.push(`Seamscout check of ${report.folder}`);
-  out.push(`${report.counts.frames} frames in ${report.counts.stations} stations${sweep}`);
+  out.push(`${count(report.counts.frames, 'frame')} in ${count(report.counts.stations, 'station')}${sweep}`);
   const lens = lensSentence(report);
   if (lens) out.push(`Lens as measured: ${lens}`);
   const w = Math.max(8, ...report.frames.map((f) => f.file.length));
@@ -187,8 +190,8 @@ function formatOne(report: Report, withPlan = true, streamed?: ReadonlyMap<strin
   if (report.verdict !== 'ok') {
     // The findings behind the plan, each with its measures. What is flagged is counted as pairs and
     // frames, never as "to reshoot": that count is the plan's items, in the verdict line.
-    const count = (n: number, what: string): string => (n ? `${n} ${what}${n === 1 ? '' : 's'}` : '');
-    const flagged = [count(report.pairs.filter((p) => p.verdict !== 'ok').length, 'pair'), count(flaggedFrames.length, 'frame')].filter(Boolean).join(' and ');
+    const some = (n: number, what: string): string => (n ? count(n, what) : '');
+    const flagged = [some(report.pairs.filter((p) => p.verdict !== 'ok').length, 'pair'), some(flaggedFrames.length, 'frame')].filter(Boolean).join(' and ');
     // Holes no pair carries are counted apart.
     const pairAdvice = new Set(report.pairs.flatMap((p) => p.advice));
     const holes = (report.holes ?? []).filter((h) => h.verdict !== 'ok' && !pairAdvice.has(h.advice)).length;
