@@ -5,7 +5,7 @@
 // test-results/.
 import { existsSync, mkdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import type { Browser, Page } from 'playwright-core';
+import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { chromium } from 'playwright-core';
 import { build } from 'vite';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -97,6 +97,16 @@ afterAll(async () => {
   await browser?.close();
   await host?.close();
 });
+
+/** A page of the host at 1366x768 whose API is the given stand-in script (window.seamscout). */
+async function standInPage(standIn: string): Promise<{ context: BrowserContext; p: Page }> {
+  const context = await browser.newContext({ viewport: { width: 1366, height: 768 }, deviceScaleFactor: 1 });
+  const p = await context.newPage();
+  p.on('pageerror', (err) => console.error('page error:', err.message));
+  await p.addInitScript({ content: standIn });
+  await p.goto(host.url);
+  return { context, p };
+}
 
 describe('the app in a real browser', () => {
   it('loads the start screen with its icon and nothing missing, and a reload starts no check', async () => {
@@ -448,11 +458,7 @@ describe('a card of several sequences in a real browser', () => {
         onDone: (l) => { done.push(l); return () => undefined; },
       };
     })();`;
-    const context = await browser.newContext({ viewport: { width: 1366, height: 768 }, deviceScaleFactor: 1 });
-    const p = await context.newPage();
-    p.on('pageerror', (err) => console.error('page error:', err.message));
-    await p.addInitScript({ content: standIn });
-    await p.goto(host.url);
+    const { context, p } = await standInPage(standIn);
     await p.locator('[data-sequence="3"]').waitFor({ timeout: 20_000 });
     const sideways = (): Promise<number> => p.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
     expect(await p.locator('[data-sequence]').evaluateAll((n) => n.map((x) => x.getAttribute('data-verdict')))).toEqual(['reshoot', 'ok', 'weak']);
@@ -487,11 +493,7 @@ describe('the demo shoot written on first use, in a real browser', () => {
         onProgress: (l) => { progress.push(l); return () => undefined; }, onPartial: () => () => undefined, onDone: () => () => undefined,
       };
     })();`;
-    const context = await browser.newContext({ viewport: { width: 1366, height: 768 }, deviceScaleFactor: 1 });
-    const p = await context.newPage();
-    p.on('pageerror', (err) => console.error('page error:', err.message));
-    await p.addInitScript({ content: standIn });
-    await p.goto(host.url);
+    const { context, p } = await standInPage(standIn);
     const block = p.locator('[data-demo-writing]');
     await expect.poll(() => block.innerText(), { timeout: 20_000 }).toMatch(/12 of 35 frames/);
     expect(await block.locator('.phase').innerText()).toBe('Writing the demo shoot (about 27 s)');
