@@ -51,6 +51,8 @@ export default tseslint.config(
         ],
       }],
       'no-restricted-globals': ['error', 'window', 'document', 'process', 'Buffer', 'require', 'fetch', 'navigator', 'console'],
+      // A dynamic import() loads code at run time past the import rules above (and is I/O of a kind).
+      'no-restricted-syntax': ['error', { selector: 'ImportExpression', message: 'src/core loads no code at run time: use a static import.' }],
     },
   },
   {

@@ -13,7 +13,7 @@ import { correspondencesOf, estimatePairGeometry } from '../src/core/pair-geomet
 import { buildPyramid } from '../src/core/pyramid.js';
 import { createScratchPool } from '../src/core/scratch.js';
 import { refineTiePoints } from '../src/core/tie-point-refine.js';
-import { checkFeatureParams as params } from '../src/main/frame-analysis.js';
+import { checkFeatureParams as params } from '../src/core/pair-analysis.js';
 import { meanCornerError } from '../test/helpers/images.js';
 import { loadOpenCV } from '../test/helpers/opencv.js';
 import { benchPair } from './frames.js';

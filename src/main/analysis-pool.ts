@@ -5,14 +5,14 @@ import type { InputPath } from './input-file.js';
 import { byteBudget, inputBudgetBytes } from './input-file.js';
 import { decodeCost } from './decode.js';
 import runTask from './analysis-worker.js';
-import type { AnalysisLens, FrameAnalysis, LensJudgement, PairAnalysis, PairOptions } from './frame-analysis.js';
+import type { AnalysisLens, FrameAnalysis, LensJudgement, PairAnalysis, PairOptions } from '../core/pair-analysis.js';
 
 const defaultPairOptions: PairOptions = { retryAtFullSize: true, overlapBlocks: true };
 
 export interface AnalysisPool {
   analyseFrame(path: InputPath, maxSide: number, signal?: AbortSignal): Promise<FrameAnalysis>;
   analysePair(a: FrameAnalysis, b: FrameAnalysis, options?: PairOptions, signal?: AbortSignal): Promise<PairAnalysis>;
-  /** A measured pair's overlap judged again through the sequence's lens (frame-analysis.ts, judgeThroughLens). */
+  /** A measured pair's overlap judged again through the sequence's lens (core/pair-analysis.ts, judgeThroughLens). */
   judgeThroughLens(a: FrameAnalysis, b: FrameAnalysis, tiePoints: Float32Array, lens: AnalysisLens, signal?: AbortSignal): Promise<LensJudgement | null>;
   readonly threads: number;
   /** Worker threads alive right now. */

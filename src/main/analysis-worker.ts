@@ -1,7 +1,8 @@
 // The worker side of the analysis pool: one task at a time, no state kept between tasks.
-import type { AnalysisLens, FrameAnalysis, PairOptions } from './frame-analysis.js';
+import type { AnalysisLens, FrameAnalysis, PairOptions } from '../core/pair-analysis.js';
 import type { InputPath } from './input-file.js';
-import { analyseFrameFile, analysePair, judgeThroughLens } from './frame-analysis.js';
+import { analyseFrameFile, analysePair } from './frame-analysis.js';
+import { judgeThroughLens } from '../core/pair-analysis.js';
 
 export type AnalysisTask =
   | { kind: 'frame'; path: InputPath; maxSide: number }

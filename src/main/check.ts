@@ -1,7 +1,7 @@
 import { availableParallelism } from 'node:os';
 import type { FrameSample } from '../core/candidate-pairs.js';
 import { sampleFeatures, screenPairs } from '../core/candidate-pairs.js';
-import { invert, multiply, normalise, project } from '../core/homography.js';
+import { normalise } from '../core/homography.js';
 import { predictPairHomography, toAnalysisPixels } from '../core/guided-match.js';
 import { shootingOrder } from '../core/natural-order.js';
 import { overlapRegions } from '../core/overlap.js';
@@ -21,7 +21,8 @@ import type { FrameExif } from './exif.js';
 import type { FeatureCache } from './feature-cache.js';
 import { readFileHeaders } from './exif.js';
 import { sequenceLook, strayReason } from '../core/strays.js';
-import type { FrameAnalysis, PairAnalysis } from './frame-analysis.js';
+import type { FrameAnalysis, PairAnalysis } from '../core/pair-analysis.js';
+import { cornerShift, fullResolution } from '../core/pair-analysis.js';
 import type { ScannedFile } from './scan.js';
 import { byteCopies, scanFolder } from './scan.js';
 import type { ShotPreference } from './app-api.js';
@@ -150,23 +151,6 @@ async function inOrder<T, R>(items: readonly T[], limit: number, task: (item: T,
   };
   await Promise.all(Array.from({ length: Math.max(1, Math.min(limit, items.length)) }, lane));
   return out;
-}
-
-function fullResolution(pair: PairAnalysis, a: FrameSummary, b: FrameSummary): { h: Float64Array | null; scale: number } {
-  const fa = analysisToFull(a.fullWidth, a.fullHeight, a.anWidth, a.anHeight);
-  const fb = analysisToFull(b.fullWidth, b.fullHeight, b.anWidth, b.anHeight);
-  const scale = a.fullWidth / a.anWidth;
-  if (!pair.homography) return { h: null, scale };
-  return { h: normalise(multiply(multiply(fb, pair.homography), invert(fa)!)), scale };
-}
-
-function cornerShift(h: Float64Array, w: number, hh: number): number {
-  let worst = 0;
-  for (const [x, y] of [[0, 0], [w - 1, 0], [w - 1, hh - 1], [0, hh - 1]]) {
-    const [u, v] = project(h, x, y);
-    worst = Math.max(worst, Math.hypot(u - x, v - y));
-  }
-  return worst;
 }
 
 interface FrameSummary {

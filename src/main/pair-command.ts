@@ -8,7 +8,7 @@ import { judge } from '../core/verdicts.js';
 import { plainArgumentError, plainFileError } from './argument-words.js';
 import { defaultMaxSide } from './check.js';
 import { readFrameExif } from './exif.js';
-import type { FrameAnalysis } from './frame-analysis.js';
+import type { FrameAnalysis } from '../core/pair-analysis.js';
 import { analyseFrameFile, analysePair } from './frame-analysis.js';
 import { readSettingsFile, settingsBudget } from './settings.js';
 import { forTerminal } from './summary.js';
