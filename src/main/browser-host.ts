@@ -1,32 +1,21 @@
 import { randomBytes, timingSafeEqual } from 'node:crypto';
-import { readFile } from 'node:fs/promises';
 import type { IncomingMessage, Server, ServerResponse } from 'node:http';
 import { createServer } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { isIPv4 } from 'node:net';
 import { homedir } from 'node:os';
-import { extname, isAbsolute, join, normalize, relative, sep } from 'node:path';
+import { isAbsolute, join } from 'node:path';
 import type { MatchBudget } from '../core/report.js';
 import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent } from './app-api.js';
 import { expectExportFormat } from './app-api.js';
 import { AppService } from './app-service.js';
 import type { DemoWriting } from './demo-shoot.js';
 import { createFrameGate } from './frame-gate.js';
+import { buildContentSecurityPolicy, readAsset } from './page-assets.js';
 import { loadStoredBudget, loadStoredPreference, storeBudget, storedSettingsInfo, storePreference } from './settings-store.js';
 import { readRecentFolders } from './recent-folders.js';
 
-export const contentSecurityPolicy =
-  "default-src 'self'; img-src 'self' data: blob:; style-src 'self'; script-src 'self'; connect-src 'self'; object-src 'none'; base-uri 'none'; form-action 'none'; frame-ancestors 'none'";
-
-const types: Record<string, string> = {
-  '.html': 'text/html; charset=utf-8',
-  '.js': 'text/javascript; charset=utf-8',
-  '.css': 'text/css; charset=utf-8',
-  '.svg': 'image/svg+xml',
-  '.png': 'image/png',
-  '.json': 'application/json',
-  '.woff2': 'font/woff2',
-};
+const contentSecurityPolicy = buildContentSecurityPolicy();
 
 export interface BrowserHost {
   readonly url: string;
@@ -259,20 +248,11 @@ export async function startBrowserHost(options: BrowserHostOptions): Promise<Bro
     }
 
     if (req.method !== 'GET') return refuse(res, 405, 'method not allowed');
-    // Browsers ask for /favicon.ico whatever the page links: the page's own icon answers.
-    const path = url.pathname === '/' ? 'index.html' : url.pathname === '/favicon.ico' ? 'favicon.svg' : decodeURIComponent(url.pathname.slice(1));
-    const target = normalize(join(options.assets, path));
-    const rel = relative(options.assets, target);
-    if (rel.startsWith('..') || isAbsolute(rel) || rel.split(sep).some((p) => p.startsWith('.'))) return send(res, 404, 'not found');
-    let body: Buffer;
-    try {
-      body = await readFile(target);
-    } catch {
-      return send(res, 404, 'not found');
-    }
+    const asset = await readAsset(options.assets, url.pathname);
+    if (!asset) return send(res, 404, 'not found');
     const extra: Record<string, string> =
-      path === 'index.html' ? { 'Set-Cookie': `${cookieName()}=${token}; HttpOnly; SameSite=Strict; Path=/` } : {};
-    return send(res, 200, body, types[extname(target)] ?? 'application/octet-stream', extra);
+      asset.name === 'index.html' ? { 'Set-Cookie': `${cookieName()}=${token}; HttpOnly; SameSite=Strict; Path=/` } : {};
+    return send(res, 200, asset.body, asset.type, extra);
   };
 
   const onRequest = (req: IncomingMessage, res: ServerResponse): void => {

@@ -1,7 +1,6 @@
 // The desktop window (Electron main process). Loaded only by Electron: nothing in the tests or the
 // command line imports this file.
-import { readFile } from 'node:fs/promises';
-import { dirname, extname, join, normalize, relative, isAbsolute } from 'node:path';
+import { dirname, join, isAbsolute } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { app, BrowserWindow, dialog, ipcMain, protocol } from 'electron';
 import type { IpcMainInvokeEvent } from 'electron';
@@ -10,11 +9,11 @@ import { AppService } from './app-service.js';
 import { loadStoredBudget, loadStoredPreference, storeBudget, storedSettingsInfo, storePreference } from './settings-store.js';
 import { ensureDemoShoot } from './demo-shoot.js';
 import { readRecentFolders } from './recent-folders.js';
+import { readAsset } from './page-assets.js';
 import { appOrigin, appScheme, desktopContentSecurityPolicy, hardenEveryContents, isTrustedSender, windowOptions } from './window-options.js';
 
 const here = dirname(fileURLToPath(import.meta.url));
 const assets = join(here, '..', 'renderer');
-const types: Record<string, string> = { '.html': 'text/html', '.js': 'text/javascript', '.css': 'text/css', '.svg': 'image/svg+xml', '.png': 'image/png' };
 
 protocol.registerSchemesAsPrivileged([
   { scheme: appScheme, privileges: { standard: true, secure: true, supportFetchAPI: true } },
@@ -46,15 +45,9 @@ app.whenReady().then(async () => {
   protocol.handle(appScheme, async (request) => {
     const url = new URL(request.url);
     if (url.host !== 'app') return new Response('not found', { status: 404 });
-    const path = url.pathname === '/' ? 'index.html' : decodeURIComponent(url.pathname.slice(1));
-    const target = normalize(join(assets, path));
-    const rel = relative(assets, target);
-    if (rel.startsWith('..') || isAbsolute(rel)) return new Response('not found', { status: 404 });
-    try {
-      return new Response(await readFile(target), { headers: { 'Content-Type': types[extname(target)] ?? 'application/octet-stream', 'Content-Security-Policy': desktopContentSecurityPolicy } });
-    } catch {
-      return new Response('not found', { status: 404 });
-    }
+    const asset = await readAsset(assets, url.pathname);
+    if (!asset) return new Response('not found', { status: 404 });
+    return new Response(new Uint8Array(asset.body), { headers: { 'Content-Type': asset.type, 'Content-Security-Policy': desktopContentSecurityPolicy } });
   });
   protocol.handle(frameProtocol, async (request) => {
     const url = new URL(request.url);
