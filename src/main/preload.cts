@@ -5,7 +5,7 @@
 // eslint-disable-next-line @typescript-eslint/no-require-imports
 import electron = require('electron');
 import type { IpcRendererEvent } from 'electron';
-import type { SeamscoutApi, channels as Channels } from './app-api.js';
+import type { SeamscoutApi, channels as Channels } from '../common/api.js';
 
 const ch: typeof Channels = {
   hostInfo: 'seamscout:host-info',

@@ -1,5 +1,5 @@
 import type { BrowserWindowConstructorOptions } from 'electron';
-import { frameProtocol } from './app-api.js';
+import { frameProtocol } from '../common/api.js';
 import { buildContentSecurityPolicy } from './page-assets.js';
 
 /** Scheme that serves the page's own files in the desktop window (instead of file://). */
