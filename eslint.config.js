@@ -1,7 +1,9 @@
 // Lint, and the layering of the three rooms (GUIDE section 2):
 //   src/core      pure computation: imports only core files and ml-matrix; no Node, Electron or DOM.
 //   src/main      the Node side: may import core and anything from Node or the registry.
-//   src/renderer  the page: may import core; no Node module and no Electron (type-only imports aside).
+//   src/common    the contract between main and the page (API types, channel names, export formats):
+//                 imports only types from core; no Node, Electron or DOM. main and renderer import it.
+//   src/renderer  the page: may import core and common; no Node module and no Electron (type-only imports aside).
 // Every source file must belong to a layer; a file no rule classifies fails the lint. Do not relax
 // these rules to make a file pass: move the code to the layer it belongs to.
 import js from '@eslint/js';
@@ -13,6 +15,7 @@ const nodeBuiltins = [...builtinModules, ...builtinModules.map((m) => `node:${m}
 
 const layers = {
   core: ['src/core/**/*.ts'],
+  common: ['src/common/**/*.ts'],
   main: ['src/main/**/*.ts', 'src/main/**/*.cts'],
   renderer: ['src/renderer/**/*.ts'],
   tests: ['test/**/*.ts', 'bench/**/*.ts'],
@@ -47,7 +50,20 @@ export default tseslint.config(
       'no-restricted-imports': ['error', {
         patterns: [
           { regex: '^(?!\\./|\\.\\./|ml-matrix$)', message: 'src/core imports only core files and ml-matrix (no Node, Electron, DOM or I/O libraries).' },
-          { group: ['../main/**', '../renderer/**', '../../**'], message: 'src/core must not reach into src/main or src/renderer.' },
+          { group: ['../main/**', '../renderer/**', '../common/**', '../../**'], message: 'src/core must not reach into src/main, src/common or src/renderer.' },
+        ],
+      }],
+      'no-restricted-globals': ['error', 'window', 'document', 'process', 'Buffer', 'require', 'fetch', 'navigator', 'console'],
+    },
+  },
+  {
+    files: layers.common,
+    languageOptions: { globals: { ...globals.es2021 } },
+    rules: {
+      'no-restricted-imports': ['error', {
+        patterns: [
+          { regex: '^(?!\\./|\\.\\./core/)', message: 'src/common imports only common files and types from src/core (no Node, Electron, DOM, main or renderer).' },
+          { group: ['../core/**'], allowTypeImports: true, message: 'src/common imports only types from src/core.' },
         ],
       }],
       'no-restricted-globals': ['error', 'window', 'document', 'process', 'Buffer', 'require', 'fetch', 'navigator', 'console'],

@@ -6,7 +6,7 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { budgetFromTyped } from '../src/core/budget.js';
 import { defaultBudget } from '../src/core/report.js';
-import type { CheckDoneEvent, CheckProgressEvent, HostInfo } from '../src/main/app-api.js';
+import type { CheckDoneEvent, CheckProgressEvent, HostInfo } from '../src/common/api.js';
 import type { AppServiceOptions } from '../src/main/app-service.js';
 import { AppService, cannotOpen } from '../src/main/app-service.js';
 import type { BrowserHost } from '../src/main/browser-host.js';

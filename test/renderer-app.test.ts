@@ -3,7 +3,7 @@
 // re-judging without re-analysis, keyboard navigation, the detail, export, drop and theme. The
 // report is four single-frame stations judged by core's `judge` with the default budget.
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
-import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat, HostInfo, SeamscoutApi, SettingsInfo, ShotPreference } from '../src/main/app-api.js';
+import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat, HostInfo, SeamscoutApi, SettingsInfo, ShotPreference } from '../src/common/api.js';
 import type { Analysis, MatchBudget, PairMeasure, Report } from '../src/core/report.js';
 import { defaultBudget } from '../src/core/report.js';
 import { judge } from '../src/core/verdicts.js';

@@ -1,15 +1,12 @@
 import { opendir, realpath, stat } from 'node:fs/promises';
 import { isAbsolute, relative, resolve, sep } from 'node:path';
 import { budgetFromTyped, pageBudget } from '../core/budget.js';
-import { cardCoverageMapSvg } from '../core/card-coverage-map.js';
-import { reportToCsv } from '../core/exports/csv.js';
-import { reportToDot } from '../core/exports/dot.js';
-import { reportToGraphml } from '../core/exports/graphml.js';
 import type { MatchBudget, Report } from '../core/report.js';
 import { judge, rejudge } from '../core/verdicts.js';
 import type { AnalysisPool } from './analysis-pool.js';
 import { createAnalysisPool } from './analysis-pool.js';
-import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat, LatestCheck } from './app-api.js';
+import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat, LatestCheck } from '../common/api.js';
+import { exportContent } from './export-content.js';
 import { loadStoredBudget, loadStoredPreference } from './settings-store.js';
 import type { TiePointSet } from './check.js';
 import { checkCard } from './card-check.js';
@@ -56,10 +53,15 @@ export interface AppServiceOptions {
  * ("Expected a percentage from 0 to 100 for the weak below overlap but received 150").
  */
 export function expectBudget(budget: unknown): MatchBudget {
+  return budgetFromTyped(pageBudget(expectBudgetFields(budget)));
+}
+
+/** A budget's fields by name, before their values are checked: an object, not an array or a word. */
+export function expectBudgetFields(budget: unknown): Record<string, unknown> {
   if (typeof budget !== 'object' || budget === null || Array.isArray(budget)) {
     throw new TypeError(`Expected a match budget (its thresholds by name) for budget but received ${JSON.stringify(budget) ?? String(budget)}`);
   }
-  return budgetFromTyped(pageBudget(budget as Record<string, unknown>));
+  return budget as Record<string, unknown>;
 }
 
 /**
@@ -77,25 +79,6 @@ export function cannotOpen(folder: string, err: unknown): string {
     code === 'ENAMETOOLONG' ? 'the path is too long' :
     'it cannot be read';
   return `cannot open ${folder} (${why})`;
-}
-
-/** Text of an export of a report, and the file name to suggest for it. */
-export function exportContent(report: Report, format: ExportFormat): { text: string; name: string } {
-  switch (format) {
-    case 'json':
-      return { text: JSON.stringify(report, null, 2) + '\n', name: 'seamscout-report.json' };
-    case 'graphml':
-      return { text: reportToGraphml(report), name: 'seamscout-pairs.graphml' };
-    case 'csv':
-      return { text: reportToCsv(report), name: 'seamscout-pairs.csv' };
-    case 'dot':
-      return { text: reportToDot(report), name: 'seamscout-pairs.dot' };
-    case 'coverage': {
-      const svg = cardCoverageMapSvg(report);
-      if (svg === null) throw new Error('no coverage map: the frames could not be placed (no pair between stations matched, or no focal length could be had)');
-      return { text: svg, name: 'seamscout-coverage.svg' };
-    }
-  }
 }
 
 /**

@@ -1,32 +1,16 @@
 import { randomBytes, timingSafeEqual } from 'node:crypto';
-import { readFile } from 'node:fs/promises';
 import type { IncomingMessage, Server, ServerResponse } from 'node:http';
 import { createServer } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { isIPv4 } from 'node:net';
-import { homedir } from 'node:os';
-import { extname, isAbsolute, join, normalize, relative, sep } from 'node:path';
-import type { MatchBudget } from '../core/report.js';
-import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent } from './app-api.js';
-import { expectExportFormat } from './app-api.js';
+import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, HostCallName } from '../common/api.js';
+import { createHandlers } from './api-handlers.js';
 import { AppService } from './app-service.js';
 import type { DemoWriting } from './demo-shoot.js';
 import { createFrameGate } from './frame-gate.js';
-import { loadStoredBudget, loadStoredPreference, storeBudget, storedSettingsInfo, storePreference } from './settings-store.js';
-import { readRecentFolders } from './recent-folders.js';
+import { buildContentSecurityPolicy, readAsset } from './page-assets.js';
 
-export const contentSecurityPolicy =
-  "default-src 'self'; img-src 'self' data: blob:; style-src 'self'; script-src 'self'; connect-src 'self'; object-src 'none'; base-uri 'none'; form-action 'none'; frame-ancestors 'none'";
-
-const types: Record<string, string> = {
-  '.html': 'text/html; charset=utf-8',
-  '.js': 'text/javascript; charset=utf-8',
-  '.css': 'text/css; charset=utf-8',
-  '.svg': 'image/svg+xml',
-  '.png': 'image/png',
-  '.json': 'application/json',
-  '.woff2': 'font/woff2',
-};
+const contentSecurityPolicy = buildContentSecurityPolicy();
 
 export interface BrowserHost {
   readonly url: string;
@@ -149,31 +133,12 @@ export async function startBrowserHost(options: BrowserHostOptions): Promise<Bro
   const frameGate = createFrameGate(frameRenders.running, frameRenders.waiting);
   const cookieName = (): string => `seamscout-${port}`;
 
-  const api: Record<string, (args: unknown[]) => Promise<unknown> | unknown> = {
-    // A page loaded again gets the check it started, never its first target again.
-    hostInfo: () => ({ shell: 'browser', version: options.version, initialTarget: service.hasStarted ? null : options.initialTarget ?? null, latest: service.latest() }),
-    chooseFolder: () => null,
-    recentFolders: () => readRecentFolders(),
-    startCheck: ([target]) => {
-      const t = target as { folder?: unknown; demo?: unknown };
-      if (t && t.demo === true) return service.startCheck({ demo: true });
-      if (t && typeof t.folder === 'string' && isAbsolute(t.folder)) return service.startCheck({ folder: t.folder });
-      // A path typed into the page: the home folder's short form read as the shell does, anything else relative said plainly.
-      if (t && typeof t.folder === 'string' && /^~(\/|$)/.test(t.folder)) return service.startCheck({ folder: join(homedir(), t.folder.slice(1)) });
-      if (t && typeof t.folder === 'string') throw new TypeError(`Expected the folder's full path, such as /media/card/DCIM/100CAMERA, but received ${t.folder}`);
-      throw new TypeError('Expected { folder: <absolute path> } or { demo: true } for startCheck');
-    },
-    cancelCheck: ([id]) => service.cancelCheck(Number(id)),
-    loadBudget: () => loadStoredBudget(),
-    saveBudget: ([b]) => storeBudget((b ?? {}) as Record<string, unknown>),
-    settingsInfo: () => storedSettingsInfo(),
-    loadShotPreference: () => loadStoredPreference(),
-    saveShotPreference: ([p]) => storePreference(p),
-    exportContent: ([id, format, budget]) => {
-      return service.exportReport(Number(id), expectExportFormat(format), budget as MatchBudget);
-    },
-    tiePoints: ([id, a, b]) => service.tiePoints(Number(id), String(a), String(b)),
-  };
+  const api = createHandlers(service, {
+    shell: 'browser',
+    version: options.version,
+    initialTarget: options.initialTarget ?? null,
+    chooseFolder: async () => null,
+  });
 
   const send = (res: ServerResponse, status: number, body: string | Buffer, type = 'text/plain; charset=utf-8', extra: Record<string, string> = {}): void => {
     res.writeHead(status, {
@@ -222,7 +187,7 @@ export async function startBrowserHost(options: BrowserHostOptions): Promise<Bro
       }
       // State-changing calls need the header (a page of ours sets it; a form elsewhere cannot).
       if (req.method !== 'POST' || !sameSecret(typeof headerToken === 'string' ? headerToken : null, token)) return refuse(res, 403, 'API calls are POST with the token header');
-      const fn = Object.hasOwn(api, method) ? api[method] : undefined;
+      const fn = Object.hasOwn(api, method) ? (api[method as HostCallName] as (args: readonly unknown[]) => Promise<unknown>) : undefined;
       if (!fn) return refuse(res, 404, 'no such call');
       let args: unknown;
       try {
@@ -259,20 +224,11 @@ export async function startBrowserHost(options: BrowserHostOptions): Promise<Bro
     }
 
     if (req.method !== 'GET') return refuse(res, 405, 'method not allowed');
-    // Browsers ask for /favicon.ico whatever the page links: the page's own icon answers.
-    const path = url.pathname === '/' ? 'index.html' : url.pathname === '/favicon.ico' ? 'favicon.svg' : decodeURIComponent(url.pathname.slice(1));
-    const target = normalize(join(options.assets, path));
-    const rel = relative(options.assets, target);
-    if (rel.startsWith('..') || isAbsolute(rel) || rel.split(sep).some((p) => p.startsWith('.'))) return send(res, 404, 'not found');
-    let body: Buffer;
-    try {
-      body = await readFile(target);
-    } catch {
-      return send(res, 404, 'not found');
-    }
+    const asset = await readAsset(options.assets, url.pathname);
+    if (!asset) return send(res, 404, 'not found');
     const extra: Record<string, string> =
-      path === 'index.html' ? { 'Set-Cookie': `${cookieName()}=${token}; HttpOnly; SameSite=Strict; Path=/` } : {};
-    return send(res, 200, body, types[extname(target)] ?? 'application/octet-stream', extra);
+      asset.name === 'index.html' ? { 'Set-Cookie': `${cookieName()}=${token}; HttpOnly; SameSite=Strict; Path=/` } : {};
+    return send(res, 200, asset.body, asset.type, extra);
   };
 
   const onRequest = (req: IncomingMessage, res: ServerResponse): void => {

@@ -3,9 +3,7 @@ import { resolve } from 'node:path';
 import { parseArgs } from 'node:util';
 import type { NumericBudgetKey } from '../core/budget.js';
 import { budgetAsTyped, budgetFromTyped, budgetKeys, percentBudgetKeys } from '../core/budget.js';
-import { reportToCsv, tiePointsToCsv } from '../core/exports/csv.js';
-import { reportToDot } from '../core/exports/dot.js';
-import { reportToGraphml } from '../core/exports/graphml.js';
+import { tiePointsToCsv } from '../core/exports/csv.js';
 import type { MatchBudget, Report } from '../core/report.js';
 import { defaultBudget } from '../core/report.js';
 import { judge } from '../core/verdicts.js';
@@ -15,12 +13,15 @@ import { sequenceReport } from '../core/sequence-report.js';
 import { isCardLayout } from './scan.js';
 import { NoCoverageMap, coverageMapContent, coverageMapFormat } from './coverage-map-file.js';
 import { createFeatureCache } from './feature-cache.js';
+import { exportContent } from './export-content.js';
 import type { SettingsFile } from './settings.js';
 import { readSettingsFile, settingsBudget, shareOverlapNote } from './settings.js';
 import { forTerminal, formatSummary } from './summary.js';
 import { createCheckStream } from './check-stream.js';
 import { expectExportTarget, writeFileAtomic } from './write-file.js';
 import { plainArgumentError } from './argument-words.js';
+import type { ShotPreference } from '../common/api.js';
+import { isShotPreference } from '../common/api.js';
 
 export const checkUsage = `Usage: seamscout check [folder] [options]
 
@@ -139,15 +140,15 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
     return n;
   };
   let settingsNote = '';
-  let budget, size: number, threads: number | undefined, prefer: 'jpeg' | 'raw' | undefined;
+  let budget, size: number, threads: number | undefined, prefer: ShotPreference | undefined;
   try {
     size = whole('size', v.size, 64) ?? defaultMaxSide;
     threads = whole('threads', v.threads, 0);
     if (v['coverage-map']) coverageMapFormat(v['coverage-map']);
     if (v.progress !== undefined && v.progress !== 'json') throw new TypeError(`Expected json for --progress but received ${v.progress}`);
-    if (v.prefer !== undefined && v.prefer !== 'jpeg' && v.prefer !== 'raw') throw new TypeError(`Expected jpeg or raw for --prefer but received ${v.prefer}`);
+    if (v.prefer !== undefined && !isShotPreference(v.prefer)) throw new TypeError(`Expected jpeg or raw for --prefer but received ${v.prefer}`);
     const { settings, file } = await readSettingsFile(v.settings);
-    prefer = (v.prefer as 'jpeg' | 'raw' | undefined) ?? settings.prefer;
+    prefer = (v.prefer as ShotPreference | undefined) ?? settings.prefer;
     const typed = Object.fromEntries(budgetKeys.map((k) => [k, v[budgetOptions[k]]]));
     // Only a flag given says so: its absence leaves the settings file's declaration standing.
     typed.fullSphere = v['full-sphere'] ? true : undefined;
@@ -236,10 +237,10 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
   process.stdout.write(formatSummary(report, stream.shown));
 
   const outputs: [string | undefined, () => string | Promise<string | Uint8Array>][] = [
-    [v.json, () => JSON.stringify(report, null, 2) + '\n'],
-    [v.graphml, () => reportToGraphml(report)],
-    [v.csv, () => reportToCsv(report)],
-    [v.dot, () => reportToDot(report)],
+    [v.json, () => exportContent(report, 'json').text],
+    [v.graphml, () => exportContent(report, 'graphml').text],
+    [v.csv, () => exportContent(report, 'csv').text],
+    [v.dot, () => exportContent(report, 'dot').text],
     [v['tie-points'], () => tiePointsToCsv(tiePoints, report)],
   ];
   // The coverage map is of one sequence: on a card of several, one file each, numbered.

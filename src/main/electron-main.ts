@@ -1,20 +1,19 @@
 // The desktop window (Electron main process). Loaded only by Electron: nothing in the tests or the
 // command line imports this file.
-import { readFile } from 'node:fs/promises';
-import { dirname, extname, join, normalize, relative, isAbsolute } from 'node:path';
+import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { app, BrowserWindow, dialog, ipcMain, protocol } from 'electron';
 import type { IpcMainInvokeEvent } from 'electron';
-import { channels, expectExportFormat, frameProtocol } from './app-api.js';
+import type { ApiCallName } from '../common/api.js';
+import { callChannels, eventChannels, frameProtocol } from '../common/api.js';
+import { createHandlers } from './api-handlers.js';
 import { AppService } from './app-service.js';
-import { loadStoredBudget, loadStoredPreference, storeBudget, storedSettingsInfo, storePreference } from './settings-store.js';
 import { ensureDemoShoot } from './demo-shoot.js';
-import { readRecentFolders } from './recent-folders.js';
+import { readAsset } from './page-assets.js';
 import { appOrigin, appScheme, desktopContentSecurityPolicy, hardenEveryContents, isTrustedSender, windowOptions } from './window-options.js';
 
 const here = dirname(fileURLToPath(import.meta.url));
 const assets = join(here, '..', 'renderer');
-const types: Record<string, string> = { '.html': 'text/html', '.js': 'text/javascript', '.css': 'text/css', '.svg': 'image/svg+xml', '.png': 'image/png' };
 
 protocol.registerSchemesAsPrivileged([
   { scheme: appScheme, privileges: { standard: true, secure: true, supportFetchAPI: true } },
@@ -29,32 +28,19 @@ const initial = process.argv.slice(app.isPackaged ? 1 : 2).find((a) => !a.starts
 
 const service = new AppService({
   demoFolder: ensureDemoShoot,
-  onProgress: (e) => win?.webContents.send(channels.progress, e),
-  onDone: (e) => win?.webContents.send(channels.done, e),
-  onPartial: (e) => win?.webContents.send(channels.partial, e),
+  onProgress: (e) => win?.webContents.send(eventChannels.progress, e),
+  onDone: (e) => win?.webContents.send(eventChannels.done, e),
+  onPartial: (e) => win?.webContents.send(eventChannels.partial, e),
 });
-
-function handle(channel: string, fn: (...args: unknown[]) => unknown): void {
-  ipcMain.handle(channel, (event: IpcMainInvokeEvent, ...args: unknown[]) => {
-    if (!isTrustedSender(event.senderFrame?.url)) throw new Error('refused: not our page');
-    return fn(...args);
-  });
-}
 
 app.whenReady().then(async () => {
 
   protocol.handle(appScheme, async (request) => {
     const url = new URL(request.url);
     if (url.host !== 'app') return new Response('not found', { status: 404 });
-    const path = url.pathname === '/' ? 'index.html' : decodeURIComponent(url.pathname.slice(1));
-    const target = normalize(join(assets, path));
-    const rel = relative(assets, target);
-    if (rel.startsWith('..') || isAbsolute(rel)) return new Response('not found', { status: 404 });
-    try {
-      return new Response(await readFile(target), { headers: { 'Content-Type': types[extname(target)] ?? 'application/octet-stream', 'Content-Security-Policy': desktopContentSecurityPolicy } });
-    } catch {
-      return new Response('not found', { status: 404 });
-    }
+    const asset = await readAsset(assets, url.pathname);
+    if (!asset) return new Response('not found', { status: 404 });
+    return new Response(new Uint8Array(asset.body), { headers: { 'Content-Type': asset.type, 'Content-Security-Policy': desktopContentSecurityPolicy } });
   });
   protocol.handle(frameProtocol, async (request) => {
     const url = new URL(request.url);
@@ -63,34 +49,28 @@ app.whenReady().then(async () => {
     return image ? new Response(new Uint8Array(image), { headers: { 'Content-Type': 'image/jpeg' } }) : new Response('not found', { status: 404 });
   });
 
-  // A page loaded again gets the check it started, never its first target again.
-  handle(channels.hostInfo, () => ({ shell: 'desktop', version: app.getVersion(), initialTarget: service.hasStarted ? null : initial ? { folder: initial } : { demo: true }, latest: service.latest() }));
-  handle(channels.chooseFolder, async () => {
-    const r = await dialog.showOpenDialog(win!, { properties: ['openDirectory'] });
-    return r.canceled ? null : r.filePaths[0] ?? null;
+  const handlers = createHandlers(service, {
+    shell: 'desktop',
+    version: app.getVersion(),
+    initialTarget: initial ? { folder: initial } : { demo: true },
+    chooseFolder: async () => {
+      const r = await dialog.showOpenDialog(win!, { properties: ['openDirectory'] });
+      return r.canceled ? null : r.filePaths[0] ?? null;
+    },
+    saveExport: async (checkId, { text, name }) => {
+      // The save dialog asks before replacing an existing file.
+      const r = await dialog.showSaveDialog(win!, { defaultPath: name });
+      if (r.canceled || !r.filePath) return null;
+      return service.writeExport(checkId, r.filePath, text);
+    },
   });
-  handle(channels.recentFolders, () => readRecentFolders());
-  handle(channels.startCheck, (target) => {
-    const t = target as { folder?: unknown; demo?: unknown };
-    if (t?.demo === true) return service.startCheck({ demo: true });
-    if (typeof t?.folder === 'string' && isAbsolute(t.folder)) return service.startCheck({ folder: t.folder });
-    throw new TypeError('Expected { folder: <absolute path> } or { demo: true } for startCheck');
-  });
-  handle(channels.cancelCheck, (id) => service.cancelCheck(Number(id)));
-  handle(channels.loadBudget, () => loadStoredBudget());
-  handle(channels.saveBudget, (b) => storeBudget((b ?? {}) as Record<string, unknown>));
-  handle(channels.settingsInfo, () => storedSettingsInfo());
-  handle(channels.loadShotPreference, () => loadStoredPreference());
-  handle(channels.saveShotPreference, (p) => storePreference(p));
-  handle(channels.tiePoints, (id, a, b) => service.tiePoints(Number(id), String(a), String(b)));
-  handle(channels.exportReport, async (id, format, budget) => {
-    // The budget is checked (by the service) before the dialog opens.
-    const { text, name } = service.exportReport(Number(id), expectExportFormat(format), budget);
-    // The save dialog asks before replacing an existing file.
-    const r = await dialog.showSaveDialog(win!, { defaultPath: name });
-    if (r.canceled || !r.filePath) return null;
-    return service.writeExport(Number(id), r.filePath, text);
-  });
+  for (const name of Object.keys(callChannels) as ApiCallName[]) {
+    const handler = handlers[name] as (args: readonly unknown[]) => Promise<unknown>;
+    ipcMain.handle(callChannels[name], (event: IpcMainInvokeEvent, ...args: unknown[]) => {
+      if (!isTrustedSender(event.senderFrame?.url)) throw new Error('refused: not our page');
+      return handler(args);
+    });
+  }
 
   win = new BrowserWindow(windowOptions(join(here, 'preload.cjs')));
   win.once('ready-to-show', () => win?.show());

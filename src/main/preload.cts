@@ -1,29 +1,15 @@
 // The desktop bridge: a sandboxed preload exposing one small object to the page, never ipcRenderer
-// itself. Sandboxed preloads cannot load our own modules, so the channel names are repeated here,
-// checked against the contract's type.
+// itself. Sandboxed preloads cannot load our own modules, so the build bundles the contract's
+// channel names into this file (vite.preload.config.ts) instead of repeating them here.
 // A sandboxed preload is CommonJS; this is its import form.
 // eslint-disable-next-line @typescript-eslint/no-require-imports
 import electron = require('electron');
 import type { IpcRendererEvent } from 'electron';
-import type { SeamscoutApi, channels as Channels } from './app-api.js';
+import type { SeamscoutApi } from '../common/api.js';
+// eslint-disable-next-line @typescript-eslint/no-require-imports
+import contract = require('../common/api.js');
 
-const ch: typeof Channels = {
-  hostInfo: 'seamscout:host-info',
-  chooseFolder: 'seamscout:choose-folder',
-  recentFolders: 'seamscout:recent-folders',
-  startCheck: 'seamscout:start-check',
-  cancelCheck: 'seamscout:cancel-check',
-  loadBudget: 'seamscout:load-budget',
-  saveBudget: 'seamscout:save-budget',
-  settingsInfo: 'seamscout:settings-info',
-  loadShotPreference: 'seamscout:load-shot-preference',
-  saveShotPreference: 'seamscout:save-shot-preference',
-  exportReport: 'seamscout:export-report',
-  tiePoints: 'seamscout:tie-points',
-  progress: 'seamscout:on-progress',
-  done: 'seamscout:on-done',
-  partial: 'seamscout:on-partial',
-};
+const { callChannels: ch, eventChannels, frameProtocol } = contract;
 
 function listen<T>(channel: string, listener: (e: T) => void): () => void {
   const handler = (_event: IpcRendererEvent, data: T): void => listener(data);
@@ -44,10 +30,10 @@ const api: SeamscoutApi & { pathForFile(file: File): string } = {
   saveShotPreference: (p) => electron.ipcRenderer.invoke(ch.saveShotPreference, p),
   exportReport: (id, format, budget) => electron.ipcRenderer.invoke(ch.exportReport, id, format, budget),
   tiePoints: (id, a, b) => electron.ipcRenderer.invoke(ch.tiePoints, id, a, b),
-  frameUrl: (id, file, maxSide) => `seamscout-frame://frames/${id}/${encodeURIComponent(file)}?max=${Math.round(maxSide)}`,
-  onProgress: (l) => listen(ch.progress, l),
-  onDone: (l) => listen(ch.done, l),
-  onPartial: (l) => listen(ch.partial, l),
+  frameUrl: (id, file, maxSide) => `${frameProtocol}://frames/${id}/${encodeURIComponent(file)}?max=${Math.round(maxSide)}`,
+  onProgress: (l) => listen(eventChannels.progress, l),
+  onDone: (l) => listen(eventChannels.done, l),
+  onPartial: (l) => listen(eventChannels.partial, l),
   pathForFile: (file) => electron.webUtils.getPathForFile(file),
 };
 

@@ -1,6 +1,7 @@
 import { readFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import type { TypedBudget } from '../core/budget.js';
+import type { ShotPreference } from '../common/api.js';
 import { configDir } from './user-dirs.js';
 
 /**
@@ -9,7 +10,7 @@ import { configDir } from './user-dirs.js';
  */
 export interface SettingsFile {
   readonly budget?: Record<string, unknown>;
-  readonly prefer?: 'jpeg' | 'raw';
+  readonly prefer?: ShotPreference;
 }
 
 export const defaultSettingsPath = (): string => join(configDir(), 'settings.json');

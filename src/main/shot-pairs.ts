@@ -3,7 +3,7 @@ import type { RawPlusJpeg, SkippedFile } from '../core/report.js';
 import { isRawFile } from './raw-file.js';
 import type { ScannedFile } from './scan.js';
 
-import type { ShotPreference } from './app-api.js';
+import type { ShotPreference } from '../common/api.js';
 
 /**
  * One file per shot: where a RAW file and an image file share a name but for the ending (in one

@@ -1,11 +1,13 @@
 import type { BrowserWindowConstructorOptions } from 'electron';
+import { frameProtocol } from '../common/api.js';
+import { buildContentSecurityPolicy } from './page-assets.js';
 
 /** Scheme that serves the page's own files in the desktop window (instead of file://). */
 export const appScheme = 'seamscout-app';
 export const appOrigin = `${appScheme}://app`;
 
-export const desktopContentSecurityPolicy =
-  "default-src 'self'; img-src 'self' data: blob: seamscout-frame:; style-src 'self'; script-src 'self'; connect-src 'self'; object-src 'none'; base-uri 'none'; form-action 'none'; frame-ancestors 'none'";
+/** The page's policy, with frames shown from the desktop's frame scheme. */
+export const desktopContentSecurityPolicy = buildContentSecurityPolicy([`${frameProtocol}:`]);
 
 /**
  * The one window's settings, per Electron's security checklist: context isolation, the sandbox, no

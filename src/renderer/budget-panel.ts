@@ -3,7 +3,7 @@
 // onChange at once (the caller re-judges, no re-analysis); a bad one shows, beside the field, the
 // message the command gives for the same mistake (budgetFromTyped, in the panel's words), and keeps
 // the last good budget.
-import type { ShotPreference } from '../main/app-api.js';
+import type { ShotPreference } from '../common/api.js';
 import type { NumericBudgetKey, TypedBudget } from '../core/budget.js';
 import { budgetFromTyped, budgetPanelWords } from '../core/budget.js';
 import type { MatchBudget } from '../core/report.js';

@@ -1,5 +1,5 @@
 // Export buttons: the report, its pair graph and the coverage map, as the check command writes them.
-import type { ExportFormat } from '../main/app-api.js';
+import type { ExportFormat } from '../common/api.js';
 import { button, el } from './dom.js';
 
 export const exportButtons: readonly { format: ExportFormat; label: string }[] = [

@@ -1,6 +1,6 @@
 // Entry of the page. In the desktop window the preload bridge has put the API on window.seamscout;
 // served by the local browser host, the page makes its own client over HTTP.
-import type { SeamscoutApi } from '../main/app-api.js';
+import type { SeamscoutApi } from '../common/api.js';
 import { mountApp } from './app.js';
 import { createBrowserClient } from './browser-client.js';
 

@@ -1,6 +1,6 @@
 // Progress while a check runs: a bar for the current phase, counts for both phases, time left when
 // known, and Cancel. Updated in place so the Cancel button keeps focus between events.
-import type { CheckProgressEvent } from '../main/app-api.js';
+import type { CheckProgressEvent } from '../common/api.js';
 import { button, el } from './dom.js';
 import { timeLeft } from './format.js';
 

@@ -1,6 +1,6 @@
 // The start screen: open a folder (dialog, typed path in the browser shell, or drop), recent
 // folders, the demo shoot, and which file of a RAW+JPEG shot to check.
-import type { ShotPreference } from '../main/app-api.js';
+import type { ShotPreference } from '../common/api.js';
 import { button, el } from './dom.js';
 import { timeLeft } from './format.js';
 import { folderIcon } from './icons.js';
