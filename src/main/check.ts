@@ -25,7 +25,7 @@ import type { FrameAnalysis, PairAnalysis } from '../core/pair-analysis.js';
 import { cornerShift, fullResolution } from '../core/pair-analysis.js';
 import type { ScannedFile } from './scan.js';
 import { byteCopies, scanFolder } from './scan.js';
-import type { ShotPreference } from './app-api.js';
+import type { ShotPreference } from '../common/api.js';
 import { oneFilePerShot } from './shot-pairs.js';
 import { median } from '../core/median.js';
 
