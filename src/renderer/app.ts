@@ -1,21 +1,21 @@
 // The page's controller: holds the state (screen, report, budget, selection), talks to main only
 // through the SeamscoutApi object, and hands plain data to the views, which build DOM from it.
-import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat, HostInfo, LatestCheck, SeamscoutApi, ShotPreference } from '../main/app-api.js';
+import type { ExportFormat, HostInfo, LatestCheck, SeamscoutApi, ShotPreference } from '../main/app-api.js';
 import type { MatchBudget, Report } from '../core/report.js';
-import { defaultBudget } from '../core/report.js';
 import { sequenceReport } from '../core/sequence-report.js';
-import { rejudge } from '../core/verdicts.js';
 import { renderAdvice } from './advice-view.js';
 import { createBudgetPanel } from './budget-panel.js';
+import type { CheckEvent, CheckState, HostEvent, RunningCheck } from './check-state.js';
+import { checkIdOf, doneEvent, initialCheckState, reduce } from './check-state.js';
 import type { TiePointState } from './detail-view.js';
 import { renderDetail } from './detail-view.js';
 import { button, el, replaceChildren, svg } from './dom.js';
 import type { ExportResult } from './export-panel.js';
 import { renderExport } from './export-panel.js';
 import { chainPairs, findPair, pairKey } from './pairs.js';
-import type { ProgressModel, ProgressView } from './progress-view.js';
-import { createProgressView, emptyProgress, withEvent } from './progress-view.js';
-import type { DemoWriting, StartModel } from './start-view.js';
+import type { ProgressView } from './progress-view.js';
+import { createProgressView } from './progress-view.js';
+import type { StartModel } from './start-view.js';
 import { renderStart } from './start-view.js';
 import { renderCoverage } from './coverage-view.js';
 import { showFrame } from './frame-image.js';
@@ -37,23 +37,11 @@ export interface MountedApp {
   destroy(): void;
 }
 
-type Screen = 'start' | 'progress' | 'results';
-
-interface Running {
-  id: number | null;
-  model: ProgressModel;
-  readonly view: ProgressView;
-  cancelAsked: boolean;
-  /** The demo shoot being written before its check (first use): shown on the start screen. */
-  writing: DemoWriting | null;
-}
-
 /** The desktop bridge adds this beside the contract: a dropped file's path (Electron's webUtils). */
 type Bridge = SeamscoutApi & { pathForFile?: (file: File) => string };
 
 const thumbSide = 320;
 const detailSide = 1200;
-const sameBudget = (x: MatchBudget, y: MatchBudget): boolean => (Object.keys(x) as (keyof MatchBudget)[]).every((k) => x[k] === y[k]);
 const messageOf = (e: unknown): string => (e instanceof Error ? e.message : String(e));
 
 export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOptions = {}): MountedApp {
@@ -69,21 +57,16 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   const saveDelay = options.saveDelayMs ?? 400;
   const bridge = api as Bridge;
 
-  // State.
-  let screen: Screen = 'start';
+  // State: the check's life cycle (screen, running check, report, budget, message) in one value.
+  let state: CheckState = initialCheckState;
+  // The progress view of the running check, made new for each.
+  let progressView: ProgressView | null = null;
   let host: HostInfo | null = null;
   let recent: string[] = [];
   let showPathField = false;
-  let message: StartModel['message'] = null;
-  let budget: MatchBudget = defaultBudget;
   let budgetEdited = false;
   let prefer: ShotPreference = 'jpeg';
   let preferChosen = false;
-  let running: Running | null = null;
-  let early: ({ kind: 'progress'; e: CheckProgressEvent } | { kind: 'done'; e: CheckDoneEvent } | { kind: 'partial'; e: CheckPartialEvent })[] = [];
-  let checkId: number | null = null;
-  let raw: Report | null = null;
-  let report: Report | null = null;
   let selected: string | null = null;
   // A card of several sequences opens on its list; `openSeq` is the sequence shown (its index), or null for the list.
   let openSeq: number | null = null;
@@ -110,7 +93,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
 
   // The results screen's parts, built once; the parts that depend on the report are refilled.
   const panel = createBudgetPanel(
-    budget,
+    state.budget,
     (b) => {
       budgetEdited = true;
       setBudget(b);
@@ -142,7 +125,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     let img = thumbs.get(file);
     if (!img) {
       img = el('img', { loading: 'lazy', decoding: 'async', draggable: 'false', alt: file });
-      showFrame(img, 'src', api.frameUrl(checkId ?? 0, file, thumbSide));
+      showFrame(img, 'src', api.frameUrl(state.checkId ?? 0, file, thumbSide));
       thumbs.set(file, img);
     }
     return img;
@@ -151,7 +134,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     let img = fulls.get(file);
     if (!img) {
       img = svg('image');
-      showFrame(img, 'href', api.frameUrl(checkId ?? 0, file, detailSide));
+      showFrame(img, 'href', api.frameUrl(state.checkId ?? 0, file, detailSide));
       fulls.set(file, img);
     }
     return img;
@@ -159,43 +142,46 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
 
   // Rendering.
   function render(): void {
+    const { screen, running, report } = state;
     newCheck.hidden = screen !== 'results';
     if (screen === 'start' || (screen === 'progress' && running?.writing)) {
       replaceChildren(view, renderStart(startModel(), startActions));
-    } else if (screen === 'progress' && running) {
-      replaceChildren(view, running.view.element);
-      running.view.update(running.model);
+    } else if (screen === 'progress' && running && progressView) {
+      replaceChildren(view, progressView.element);
+      progressView.update(running.progress);
     } else if (screen === 'results' && report) {
       // While the check still runs, its progress (and Cancel) stays above the results so far.
       // Put in place only when not already there: moving the results out and back would drop the focus.
-      const parts = running ? [running.view.element, results] : [results];
+      const parts = running && progressView ? [progressView.element, results] : [results];
       if (view.childNodes.length !== parts.length || parts.some((n, i) => view.childNodes[i] !== n)) replaceChildren(view, ...parts);
-      running?.view.update(running.model);
+      if (running) progressView?.update(running.progress);
       fillResults();
     }
   }
 
   function startModel(): StartModel {
-    return { shell: host?.shell ?? null, recent, showPathField, canDrop: typeof bridge.pathForFile === 'function', message, hasResults: report !== null, prefer, writing: running?.writing ?? null };
+    return { shell: host?.shell ?? null, recent, showPathField, canDrop: typeof bridge.pathForFile === 'function', message: state.message, hasResults: state.report !== null, prefer, writing: state.running?.writing ?? null };
   }
 
   /** The card shows its list; a sequence opened from it, or a report of one sequence, shows the strip. */
-  const listing = (): boolean => report !== null && isCard(report) && openSeq === null;
+  const listing = (): boolean => state.report !== null && isCard(state.report) && openSeq === null;
 
   /** The report the strip, detail, coverage and advice are built from: the opened sequence alone, or the whole report. */
   function shown(): Report | null {
+    const report = state.report;
     if (!report) return null;
     return isCard(report) && openSeq !== null ? sequenceReport(report, openSeq) : report;
   }
 
   function fillResults(): void {
     const one = shown();
-    if (!report || !one) return;
+    if (!state.report || !one) return;
     if (listing()) fillList();
-    else fillSequence(report, one);
+    else fillSequence(state.report, one);
   }
 
   function fillList(): void {
+    const { report, running } = state;
     if (!report) return;
     const hadFocus = listSlot.contains(doc.activeElement) ? doc.activeElement?.getAttribute('data-sequence') ?? null : null;
     replaceChildren(summarySlot, renderSummary(report, { switchPreference: running ? undefined : switchPreference, checking: running !== null }));
@@ -221,6 +207,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     const hadFocus = stripSlot.contains(doc.activeElement) ? doc.activeElement?.getAttribute('data-pair') ?? null : null;
     const summaryFocus = focusedInSummary(summarySlot);
     const bar = isCard(card) && openSeq !== null ? renderSequenceBar(card, openSeq, backToList) : null;
+    const running = state.running;
     replaceChildren(summarySlot, bar, renderSummary(report, { switchPreference: running ? undefined : switchPreference, checking: running !== null, show }));
     // While the detail is open the strip is out of the document, so that [data-pair="a|b"] names
     // one element only (the detail); thumbnails are kept and come back without reloading.
@@ -248,7 +235,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
 
   /** Redraws an open detail (tie points arrived, lines toggled), keeping focus on the same control. */
   function refreshDetail(): void {
-    if (screen !== 'results' || !report || !detail) return;
+    if (state.screen !== 'results' || !state.report || !detail) return;
     const a = doc.activeElement;
     const focused = a && detailSlot.contains(a) ? (a.hasAttribute('data-toggle-lines') ? '[data-toggle-lines]' : '.back') : null;
     fillResults();
@@ -287,6 +274,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
 
   function openDetail(key: string): void {
     const report = shown();
+    const checkId = state.checkId;
     if (!report || checkId === null) return;
     const p = findPair(report, key);
     if (!p) return;
@@ -297,12 +285,12 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
       const id = checkId;
       api.tiePoints(id, p.a, p.b).then(
         (points) => {
-          if (checkId !== id) return;
+          if (state.checkId !== id) return;
           ties.set(key, { state: 'ready', points });
           if (detail === key) refreshDetail();
         },
         (e) => {
-          if (checkId !== id) return;
+          if (state.checkId !== id) return;
           ties.set(key, { state: 'failed', message: messageOf(e) });
           if (detail === key) refreshDetail();
         },
@@ -345,7 +333,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   }
 
   function moveInList(step: 1 | -1): void {
-    const order = (report?.sequences ?? []).map((q) => q.index);
+    const order = (state.report?.sequences ?? []).map((q) => q.index);
     if (order.length === 0) return;
     const at = listSelected !== null ? order.indexOf(listSelected) : -1;
     const next = at < 0 ? (step > 0 ? 0 : order.length - 1) : Math.max(0, Math.min(order.length - 1, at + step));
@@ -353,7 +341,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   }
 
   function openSequence(index: number): void {
-    if (!report || !(report.sequences ?? []).some((q) => q.index === index)) return;
+    if (!state.report || !(state.report.sequences ?? []).some((q) => q.index === index)) return;
     openSeq = index;
     listSelected = index;
     selected = null;
@@ -372,11 +360,8 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
 
   // Budget.
   function setBudget(b: MatchBudget): void {
-    budget = b;
-    if (raw) {
-      report = sameBudget(raw.budget, b) ? raw : rejudge(raw, b);
-      if (screen === 'results') fillResults();
-    }
+    dispatch({ type: 'budget-changed', budget: b });
+    if (state.raw && state.screen === 'results') fillResults();
   }
 
   function scheduleSave(b: MatchBudget): void {
@@ -396,114 +381,12 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     budgetStatusEl.textContent = text;
   }
 
-  // Checks.
-  async function startCheck(target: { folder: string } | { demo: true }, label: string): Promise<void> {
-    if (running) return;
-    const r: Running = { id: null, model: emptyProgress(label), view: createProgressView(cancel), cancelAsked: false, writing: null };
-    running = r;
-    early = [];
-    message = null;
-    screen = 'progress';
-    render();
-    r.view.element.querySelector<HTMLElement>('[data-cancel]')?.focus();
-    try {
-      const id = await api.startCheck(target);
-      if (running !== r) return;
-      r.id = id;
-      if (r.cancelAsked) void api.cancelCheck(id).catch(() => undefined);
-      const pending = early.filter((x) => x.e.checkId === id);
-      early = [];
-      for (const x of pending) {
-        if (x.kind === 'progress') progressed(x.e);
-        else if (x.kind === 'partial') partialArrived(x.e);
-        else finished(x.e);
-      }
-    } catch (e) {
-      if (running !== r) return;
-      running = null;
-      message = { kind: 'error', text: `The check could not start: ${messageOf(e)}` };
-      screen = 'start';
-      render();
-    }
-  }
-
-  function cancel(): void {
-    const r = running;
-    if (!r) return;
-    r.model = { ...r.model, cancelling: true };
-    r.view.update(r.model);
-    if (r.id === null) r.cancelAsked = true;
-    else void api.cancelCheck(r.id).catch(() => undefined);
-  }
-
-  function progressed(e: CheckProgressEvent): void {
-    const r = running;
-    if (!r) return;
-    if (r.id === null) {
-      early.push({ kind: 'progress', e });
-      return;
-    }
-    if (e.checkId !== r.id) return;
-    if (e.phase === 'demo') {
-      // The first event carries the estimate; it is said as it was, the time left follows the frames.
-      r.writing = { done: e.done, total: e.total, seconds: r.writing?.seconds ?? (e.secondsLeft === null ? null : Math.round(e.secondsLeft)), secondsLeft: e.secondsLeft };
-      if (screen === 'progress') render();
-      return;
-    }
-    if (r.writing) {
-      r.writing = null;
-      if (screen === 'progress') render();
-    }
-    r.model = withEvent(r.model, e);
-    if (screen === 'progress' || screen === 'results') r.view.update(r.model);
-  }
-
-  /** A page loaded again: the host's latest check, still running or with its report, instead of a new one. */
-  function resume(latest: LatestCheck): void {
-    if (latest.running) {
-      const label = latest.demo ? 'the demo shoot' : latest.folder.split(/[\\/]/).filter(Boolean).pop() ?? latest.folder;
-      running = { id: latest.checkId, model: emptyProgress(label), view: createProgressView(cancel), cancelAsked: false, writing: null };
-      screen = 'progress';
-    }
-    if (latest.report) receiveReport(latest.checkId, latest.report);
-    else render();
-  }
-
-  /** Results so far of the running check: shown at once, replaced by fuller ones as they come. */
-  function partialArrived(e: CheckPartialEvent): void {
-    const r = running;
-    if (!r) return;
-    if (r.id === null) {
-      early.push({ kind: 'partial', e });
-      return;
-    }
-    if (e.checkId !== r.id) return;
-    receiveReport(e.checkId, e.report);
-  }
-
-  function finished(e: CheckDoneEvent): void {
-    const r = running;
-    if (!r) return;
-    if (r.id === null) {
-      early.push({ kind: 'done', e });
-      return;
-    }
-    if (e.checkId !== r.id) return;
-    running = null;
-    if (e.report) {
-      receiveReport(e.checkId, e.report);
-    } else {
-      message = e.cancelled ? { kind: 'info', text: 'Check cancelled.' } : { kind: 'error', text: `The check stopped: ${e.error ?? 'unknown error'}` };
-      screen = 'start';
-      render();
-    }
-    void refreshRecent();
-  }
-
-  /** Shows a report. Called again with a fuller report of the same check, it keeps selection and detail. */
-  function receiveReport(id: number, r: Report): void {
-    if (id !== checkId) {
-      checkId = id;
+  // Checks: every change of the life cycle goes through the reducer; what follows draws and calls the host.
+  /** Applies an event and returns the state before it. A new check forgets what was shown of the old one. */
+  function dispatch(e: CheckEvent): CheckState {
+    const prev = state;
+    state = reduce(prev, e);
+    if (state.checkId !== prev.checkId) {
       selected = null;
       detail = null;
       openSeq = null;
@@ -513,29 +396,85 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
       fulls = new Map();
       exportResult = { state: 'idle' };
     }
-    raw = r;
-    report = sameBudget(r.budget, budget) ? r : rejudge(r, budget);
     // A fuller report may have found the card's sequences otherwise: an opened sequence that is gone goes back to the list.
-    if (openSeq !== null && !(isCard(report) && report.sequences?.some((q) => q.index === openSeq))) {
+    const report = state.report;
+    if (state.raw !== prev.raw && report && openSeq !== null && !(isCard(report) && report.sequences?.some((q) => q.index === openSeq))) {
       openSeq = null;
       selected = null;
       detail = null;
     }
-    screen = 'results';
+    return prev;
+  }
+
+  /**
+   * Draws what host events changed, no more: the progress view is updated in place so Cancel keeps
+   * the focus. A report received is drawn again even when it is the same, keeping the focus within.
+   */
+  function drawAfter(prev: CheckState, events: readonly HostEvent[]): void {
+    const s = state;
+    if (s === prev) return;
+    const received = events.some((e) => e.type === 'partial' || e.type === 'done');
+    if (received || s.report !== prev.report || s.screen !== prev.screen || s.message !== prev.message) render();
+    else if (s.running && s.running.writing !== prev.running?.writing && s.screen === 'progress') render();
+    else if (s.running && s.running.progress !== prev.running?.progress && s.screen !== 'start') progressView?.update(s.running.progress);
+    // A check that ended (with its report, cancelled or stopped) is now among the recent folders.
+    if (prev.running && !s.running) void refreshRecent();
+  }
+
+  const hostEvent = (e: HostEvent): void => drawAfter(dispatch(e), [e]);
+  // Read after an await: the state may have moved on meanwhile.
+  const runningNow = (): RunningCheck | null => state.running;
+
+  async function startCheck(target: { folder: string } | { demo: true }, label: string): Promise<void> {
+    if (state.running) return;
+    dispatch({ type: 'started', label });
+    const serial = state.serial;
+    const pv = createProgressView(cancel);
+    progressView = pv;
+    render();
+    pv.element.querySelector<HTMLElement>('[data-cancel]')?.focus();
+    try {
+      const id = await api.startCheck(target);
+      const r = runningNow();
+      if (r?.serial !== serial) return;
+      const asked = r.cancelAsked;
+      const prev = dispatch({ type: 'accepted', serial, checkId: id });
+      if (asked) void api.cancelCheck(id).catch(() => undefined);
+      drawAfter(prev, prev.early.filter((x) => checkIdOf(x) === id));
+    } catch (e) {
+      if (runningNow()?.serial !== serial) return;
+      dispatch({ type: 'start-failed', serial, error: messageOf(e) });
+      render();
+    }
+  }
+
+  function cancel(): void {
+    dispatch({ type: 'cancel-asked' });
+    const r = state.running;
+    if (!r) return;
+    progressView?.update(r.progress);
+    if (r.id !== null) void api.cancelCheck(r.id).catch(() => undefined);
+  }
+
+  /** A page loaded again: the host's latest check, still running or with its report, instead of a new one. */
+  function resume(latest: LatestCheck): void {
+    if (latest.running) progressView = createProgressView(cancel);
+    dispatch({ type: 'resumed', latest });
     render();
   }
 
   async function doExport(format: ExportFormat): Promise<void> {
+    const checkId = state.checkId;
     if (checkId === null || exportResult.state === 'busy') return;
     exportResult = { state: 'busy', format };
     replaceChildren(exportSlot, renderExport(exportResult, doExport));
     try {
-      const path = await api.exportReport(checkId, format, budget);
+      const path = await api.exportReport(checkId, format, state.budget);
       exportResult = path === null ? { state: 'cancelled' } : { state: 'written', path, shell: host?.shell ?? 'desktop' };
     } catch (e) {
       exportResult = { state: 'failed', message: messageOf(e) };
     }
-    if (screen === 'results') {
+    if (state.screen === 'results') {
       replaceChildren(exportSlot, renderExport(exportResult, doExport));
       exportSlot.querySelector<HTMLElement>(`[data-export="${format}"]`)?.focus();
     }
@@ -550,18 +489,19 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
       await api.saveShotPreference(p);
       return true;
     } catch (e) {
-      message = { kind: 'error', text: `The choice of RAW or JPEG could not be saved: ${messageOf(e)}` };
-      if (screen === 'start') render();
+      dispatch({ type: 'notice', message: { kind: 'error', text: `The choice of RAW or JPEG could not be saved: ${messageOf(e)}` } });
+      if (state.screen === 'start') render();
       return false;
     }
   }
 
   /** Checks the shown folder again, reading the other file of each RAW+JPEG shot. */
   async function switchPreference(): Promise<void> {
-    if (!report?.rawPlusJpeg || running) return;
+    const report = state.report;
+    if (!report?.rawPlusJpeg || state.running) return;
     const folder = report.folder;
     if (!(await setPrefer(report.rawPlusJpeg.checked === 'raw' ? 'jpeg' : 'raw'))) {
-      setBudgetStatus(message?.text ?? '');
+      setBudgetStatus(state.message?.text ?? '');
       return;
     }
     openFolder(folder);
@@ -569,8 +509,8 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
 
   // Start screen.
   function goStart(): void {
-    if (screen === 'progress') return;
-    screen = 'start';
+    if (state.screen === 'progress') return;
+    dispatch({ type: 'back-to-start' });
     render();
     view.querySelector<HTMLElement>('[data-back-to-results], [data-choose-folder]')?.focus();
   }
@@ -585,14 +525,14 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
       try {
         folder = await api.chooseFolder();
       } catch (e) {
-        message = { kind: 'error', text: `No folder dialog: ${messageOf(e)}` };
+        dispatch({ type: 'notice', message: { kind: 'error', text: `No folder dialog: ${messageOf(e)}` } });
       }
       if (folder) {
         openFolder(folder);
         return;
       }
       if ((host ?? (await api.hostInfo().catch(() => null)))?.shell === 'browser') showPathField = true;
-      if (screen === 'start') {
+      if (state.screen === 'start') {
         render();
         view.querySelector<HTMLInputElement>('input[name="folder"]')?.focus();
       }
@@ -601,8 +541,8 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     tryDemo: (): void => void startCheck({ demo: true }, 'the demo shoot'),
     setPrefer: (p: ShotPreference): void => void setPrefer(p),
     backToResults: (): void => {
-      if (!report) return;
-      screen = 'results';
+      if (!state.report) return;
+      dispatch({ type: 'back-to-results' });
       render();
     },
   };
@@ -613,12 +553,13 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     } catch {
       recent = [];
     }
-    if (screen === 'start') render();
+    if (state.screen === 'start') render();
   }
 
   // Keyboard: arrows move between the strip's pairs, Enter opens, Escape goes back.
   const onKey = (e: KeyboardEvent): void => {
-    if (e.defaultPrevented || e.altKey || e.ctrlKey || e.metaKey || screen !== 'results' || !report) return;
+    const report = state.report;
+    if (e.defaultPrevented || e.altKey || e.ctrlKey || e.metaKey || state.screen !== 'results' || !report) return;
     const t = e.target instanceof Element ? e.target : null;
     const typing = !!t && (/^(INPUT|TEXTAREA|SELECT)$/.test(t.tagName) || (t as HTMLElement).isContentEditable === true);
     if (typing) {
@@ -668,8 +609,8 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   const onDragOver = (e: DragEvent): void => {
     if (!hasFiles(e)) return;
     e.preventDefault();
-    if (e.dataTransfer) e.dataTransfer.dropEffect = screen === 'progress' ? 'none' : 'copy';
-    root.classList.toggle('is-dragging', screen !== 'progress');
+    if (e.dataTransfer) e.dataTransfer.dropEffect = state.screen === 'progress' ? 'none' : 'copy';
+    root.classList.toggle('is-dragging', state.screen !== 'progress');
   };
   const onDragLeave = (e: DragEvent): void => {
     if (e.relatedTarget === null) root.classList.remove('is-dragging');
@@ -679,7 +620,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     if (!e.dataTransfer || !hasFiles(e)) return;
     // Never let the page navigate to a dropped file.
     e.preventDefault();
-    if (screen === 'progress') return;
+    if (state.screen === 'progress') return;
     const file = e.dataTransfer.files?.[0];
     if (!file) return;
     let path: string;
@@ -692,9 +633,8 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
       openFolder(path);
       return;
     }
-    message = { kind: 'info', text: 'Dropping a folder needs the desktop app: use Open folder… or type the folder path instead.' };
     if (host?.shell === 'browser') showPathField = true;
-    screen = 'start';
+    dispatch({ type: 'back-to-start', message: { kind: 'info', text: 'Dropping a folder needs the desktop app: use Open folder… or type the folder path instead.' } });
     render();
   };
 
@@ -702,9 +642,9 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   win.addEventListener('dragover', onDragOver);
   win.addEventListener('dragleave', onDragLeave);
   win.addEventListener('drop', onDrop);
-  const offProgress = api.onProgress(progressed);
-  const offDone = api.onDone(finished);
-  const offPartial = api.onPartial(partialArrived);
+  const offProgress = api.onProgress((event) => hostEvent({ type: 'progress', event }));
+  const offDone = api.onDone((e) => hostEvent(doneEvent(e)));
+  const offPartial = api.onPartial((event) => hostEvent({ type: 'partial', event }));
 
   render();
 
@@ -737,11 +677,11 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   ]).then(() => {
     // Opened with a folder (or, by default, the demo shoot): go straight to its check.
     const first = host?.initialTarget;
-    if (screen === 'start' && host?.latest) resume(host.latest);
-    else if (screen === 'start' && first) {
+    if (state.screen === 'start' && host?.latest) resume(host.latest);
+    else if (state.screen === 'start' && first) {
       if ('demo' in first) startActions.tryDemo();
       else openFolder(first.folder);
-    } else if (screen === 'start') render();
+    } else if (state.screen === 'start') render();
   });
 
   return {
