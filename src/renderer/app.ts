@@ -5,11 +5,13 @@ import type { MatchBudget, Report } from '../core/report.js';
 import { sequenceReport } from '../core/sequence-report.js';
 import { renderAdvice } from './advice-view.js';
 import { createBudgetPanel } from './budget-panel.js';
+import { createBudgetSaving } from './budget-save.js';
 import type { CheckEvent, CheckState, HostEvent, RunningCheck } from './check-state.js';
 import { checkIdOf, doneEvent, initialCheckState, reduce } from './check-state.js';
 import type { TiePointState } from './detail-view.js';
 import { renderDetail } from './detail-view.js';
 import { button, el, replaceChildren, svg } from './dom.js';
+import { listenForDrops } from './drop.js';
 import type { ExportResult } from './export-panel.js';
 import { renderExport } from './export-panel.js';
 import { chainPairs, findPair, pairKey } from './pairs.js';
@@ -19,6 +21,7 @@ import type { StartModel } from './start-view.js';
 import { renderStart } from './start-view.js';
 import { renderCoverage } from './coverage-view.js';
 import { showFrame } from './frame-image.js';
+import { listenForKeys } from './keyboard.js';
 import { isCard, renderSequenceBar, renderSequenceList } from './sequence-list-view.js';
 import { renderStrip, revealInStrip } from './strip-view.js';
 import { focusedInSummary, renderSummary } from './summary-view.js';
@@ -54,7 +57,6 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
       return null;
     }
   })();
-  const saveDelay = options.saveDelayMs ?? 400;
   const bridge = api as Bridge;
 
   // State: the check's life cycle (screen, running check, report, budget, message) in one value.
@@ -64,7 +66,6 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   let host: HostInfo | null = null;
   let recent: string[] = [];
   let showPathField = false;
-  let budgetEdited = false;
   let prefer: ShotPreference = 'jpeg';
   let preferChosen = false;
   let selected: string | null = null;
@@ -75,9 +76,6 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   let lines = true;
   let ties = new Map<string, TiePointState>();
   let exportResult: ExportResult = { state: 'idle' };
-  let saveTimer: ReturnType<typeof setTimeout> | null = null;
-  let budgetStatus = '';
-  let settingsPath: string | null = null;
   let thumbs = new Map<string, HTMLImageElement>();
   let fulls = new Map<string, SVGImageElement>();
 
@@ -92,12 +90,12 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   );
 
   // The results screen's parts, built once; the parts that depend on the report are refilled.
+  const saving = createBudgetSaving(api, options.saveDelayMs ?? 400);
   const panel = createBudgetPanel(
     state.budget,
     (b) => {
-      budgetEdited = true;
       setBudget(b);
-      scheduleSave(b);
+      saving.edit(b);
     },
     { initial: prefer, onChange: (p) => void setPrefer(p) },
   );
@@ -109,7 +107,6 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   const detailSlot = el('div', { class: 'detail-slot' });
   const adviceSlot = el('div', { class: 'advice-slot' });
   const exportSlot = el('div', { class: 'export-slot' });
-  const budgetStatusEl = el('p', { class: 'budget-status', role: 'status', 'data-budget-status': '' });
   const wide = el('div', { class: 'results-wide' }, stripSection, coverageSlot, detailSlot);
   const results = el(
     'div',
@@ -118,7 +115,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     wide,
     // The card's list sits beside the budget, where a sequence's advice goes.
     el('div', { class: 'results-main' }, listSlot, adviceSlot),
-    el('aside', { class: 'results-side' }, panel.element, budgetStatusEl, exportSlot),
+    el('aside', { class: 'results-side' }, panel.element, saving.element, exportSlot),
   );
 
   const thumbnail = (file: string): HTMLImageElement => {
@@ -196,7 +193,6 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     replaceChildren(adviceSlot);
     adviceSlot.hidden = true;
     replaceChildren(exportSlot, renderExport(exportResult, doExport));
-    budgetStatusEl.textContent = budgetStatus;
     if (hadFocus) listSlot.querySelector<HTMLElement>(`[data-sequence="${cssEscape(hadFocus)}"]`)?.focus();
   }
 
@@ -217,7 +213,6 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     replaceChildren(adviceSlot, report.plan ? null : renderAdvice(report, openDetail));
     replaceChildren(coverageSlot, detail ? null : renderCoverage(report));
     replaceChildren(exportSlot, renderExport(exportResult, doExport));
-    budgetStatusEl.textContent = budgetStatus;
     stripSection.hidden = detail !== null;
     adviceSlot.hidden = detail !== null || !!report.plan;
     if (detail) {
@@ -364,23 +359,6 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     if (state.raw && state.screen === 'results') fillResults();
   }
 
-  function scheduleSave(b: MatchBudget): void {
-    if (saveTimer !== null) clearTimeout(saveTimer);
-    saveTimer = setTimeout(() => {
-      saveTimer = null;
-      api.saveBudget(b).then(
-        // The command reads the same file: a budget changed here changes its verdicts, so say so.
-        () => setBudgetStatus(`Saved in ${settingsPath ?? 'the settings file'}: the command (seamscout check) uses these values from now on too.`),
-        (e) => setBudgetStatus(`The budget could not be saved: ${messageOf(e)}`),
-      );
-    }, saveDelay);
-  }
-
-  function setBudgetStatus(text: string): void {
-    budgetStatus = text;
-    budgetStatusEl.textContent = text;
-  }
-
   // Checks: every change of the life cycle goes through the reducer; what follows draws and calls the host.
   /** Applies an event and returns the state before it. A new check forgets what was shown of the old one. */
   function dispatch(e: CheckEvent): CheckState {
@@ -501,7 +479,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     if (!report?.rawPlusJpeg || state.running) return;
     const folder = report.folder;
     if (!(await setPrefer(report.rawPlusJpeg.checked === 'raw' ? 'jpeg' : 'raw'))) {
-      setBudgetStatus(state.message?.text ?? '');
+      saving.say(state.message?.text ?? '');
       return;
     }
     openFolder(folder);
@@ -556,92 +534,31 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     if (state.screen === 'start') render();
   }
 
-  // Keyboard: arrows move between the strip's pairs, Enter opens, Escape goes back.
-  const onKey = (e: KeyboardEvent): void => {
-    const report = state.report;
-    if (e.defaultPrevented || e.altKey || e.ctrlKey || e.metaKey || state.screen !== 'results' || !report) return;
-    const t = e.target instanceof Element ? e.target : null;
-    const typing = !!t && (/^(INPUT|TEXTAREA|SELECT)$/.test(t.tagName) || (t as HTMLElement).isContentEditable === true);
-    if (typing) {
-      if (e.key === 'Escape') (t as HTMLElement).blur();
-      return;
-    }
-    if (listing()) {
-      if (e.key === 'ArrowDown' || e.key === 'ArrowRight' || e.key === 'ArrowUp' || e.key === 'ArrowLeft') {
-        e.preventDefault();
-        moveInList(e.key === 'ArrowDown' || e.key === 'ArrowRight' ? 1 : -1);
-      } else if (e.key === 'Enter') {
-        const onEntry = t?.closest('[data-sequence]')?.getAttribute('data-sequence') ?? null;
-        if (!onEntry && t?.closest('button, a, summary')) return;
-        const index = onEntry !== null ? Number(onEntry) : listSelected;
-        if (index !== null) {
-          e.preventDefault();
-          openSequence(index);
-        }
-      } else if (e.key === 'Escape') {
-        e.preventDefault();
-        goStart();
-      }
-      return;
-    }
-    if (e.key === 'ArrowRight' || e.key === 'ArrowLeft') {
-      e.preventDefault();
-      move(e.key === 'ArrowRight' ? 1 : -1);
-    } else if (e.key === 'Enter' && !detail) {
-      const onPair = t?.closest('[data-pair]')?.getAttribute('data-pair') ?? null;
-      // Other controls (export, budget defaults, "Show pair") act on Enter themselves.
-      if (!onPair && t?.closest('button, a, summary')) return;
-      const key = onPair ?? selected;
-      if (key) {
-        e.preventDefault();
-        openDetail(key);
-      }
-    } else if (e.key === 'Escape') {
-      e.preventDefault();
-      if (detail) closeDetail();
-      else if (openSeq !== null && isCard(report)) backToList();
-      else goStart();
-    }
-  };
+  const offKeys = listenForKeys(doc, {
+    showing: () => (state.screen !== 'results' || !state.report ? null : listing() ? 'list' : 'strip'),
+    list: { selected: () => listSelected, move: moveInList, open: openSequence },
+    strip: {
+      selected: () => selected,
+      detailOpen: () => detail !== null,
+      move,
+      open: openDetail,
+      closeDetail,
+      inCard: () => openSeq !== null && state.report !== null && isCard(state.report),
+      backToList,
+    },
+    goStart,
+  });
 
-  // Dropping a folder on the window opens it where its path can be read (the desktop app).
-  const hasFiles = (e: DragEvent): boolean => !!e.dataTransfer && Array.from(e.dataTransfer.types ?? []).includes('Files');
-  const onDragOver = (e: DragEvent): void => {
-    if (!hasFiles(e)) return;
-    e.preventDefault();
-    if (e.dataTransfer) e.dataTransfer.dropEffect = state.screen === 'progress' ? 'none' : 'copy';
-    root.classList.toggle('is-dragging', state.screen !== 'progress');
-  };
-  const onDragLeave = (e: DragEvent): void => {
-    if (e.relatedTarget === null) root.classList.remove('is-dragging');
-  };
-  const onDrop = (e: DragEvent): void => {
-    root.classList.remove('is-dragging');
-    if (!e.dataTransfer || !hasFiles(e)) return;
-    // Never let the page navigate to a dropped file.
-    e.preventDefault();
-    if (state.screen === 'progress') return;
-    const file = e.dataTransfer.files?.[0];
-    if (!file) return;
-    let path: string;
-    try {
-      path = bridge.pathForFile?.(file) ?? '';
-    } catch {
-      path = '';
-    }
-    if (path) {
-      openFolder(path);
-      return;
-    }
-    if (host?.shell === 'browser') showPathField = true;
-    dispatch({ type: 'back-to-start', message: { kind: 'info', text: 'Dropping a folder needs the desktop app: use Open folder… or type the folder path instead.' } });
-    render();
-  };
-
-  doc.addEventListener('keydown', onKey);
-  win.addEventListener('dragover', onDragOver);
-  win.addEventListener('dragleave', onDragLeave);
-  win.addEventListener('drop', onDrop);
+  const offDrops = listenForDrops(win, root, {
+    busy: () => state.screen === 'progress',
+    pathOf: (file) => bridge.pathForFile?.(file) ?? '',
+    open: openFolder,
+    refused: () => {
+      if (host?.shell === 'browser') showPathField = true;
+      dispatch({ type: 'back-to-start', message: { kind: 'info', text: 'Dropping a folder needs the desktop app: use Open folder… or type the folder path instead.' } });
+      render();
+    },
+  });
   const offProgress = api.onProgress((event) => hostEvent({ type: 'progress', event }));
   const offDone = api.onDone((e) => hostEvent(doneEvent(e)));
   const offPartial = api.onPartial((event) => hostEvent({ type: 'partial', event }));
@@ -665,15 +582,14 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     Promise.resolve()
       .then(() => api.settingsInfo())
       .then((info) => {
-        settingsPath = info.path;
-        if (info.note && !budgetStatus) setBudgetStatus(info.note);
+        saving.settingsKnown(info);
       })
       .catch(() => undefined),
     api.loadBudget().then((b) => {
-      if (budgetEdited) return;
+      if (saving.edited) return;
       panel.set(b);
       setBudget(b);
-    }, (e) => setBudgetStatus(`The stored budget could not be read (${messageOf(e)}); using the defaults.`)),
+    }, (e) => saving.say(`The stored budget could not be read (${messageOf(e)}); using the defaults.`)),
   ]).then(() => {
     // Opened with a folder (or, by default, the demo shoot): go straight to its check.
     const first = host?.initialTarget;
@@ -687,14 +603,12 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   return {
     ready,
     destroy(): void {
-      doc.removeEventListener('keydown', onKey);
-      win.removeEventListener('dragover', onDragOver);
-      win.removeEventListener('dragleave', onDragLeave);
-      win.removeEventListener('drop', onDrop);
+      offKeys();
+      offDrops();
       offProgress();
       offDone();
       offPartial();
-      if (saveTimer !== null) clearTimeout(saveTimer);
+      saving.dispose();
       replaceChildren(root);
     },
   };
