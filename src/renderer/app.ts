@@ -10,7 +10,7 @@ import type { CheckEvent, CheckState, HostEvent, RunningCheck } from './check-st
 import { checkIdOf, doneEvent, initialCheckState, reduce } from './check-state.js';
 import type { TiePointState } from './detail-view.js';
 import { renderDetail } from './detail-view.js';
-import { button, el, replaceChildren, svg } from './dom.js';
+import { button, el, replaceChildren } from './dom.js';
 import { listenForDrops } from './drop.js';
 import type { ExportResult } from './export-panel.js';
 import { renderExport } from './export-panel.js';
@@ -20,7 +20,7 @@ import { createProgressView } from './progress-view.js';
 import type { StartModel } from './start-view.js';
 import { renderStart } from './start-view.js';
 import { renderCoverage } from './coverage-view.js';
-import { showFrame } from './frame-image.js';
+import { createFrameImages } from './frame-images.js';
 import { listenForKeys } from './keyboard.js';
 import { isCard, renderSequenceBar, renderSequenceList } from './sequence-list-view.js';
 import { renderStrip, revealInStrip } from './strip-view.js';
@@ -43,8 +43,6 @@ export interface MountedApp {
 /** The desktop bridge adds this beside the contract: a dropped file's path (Electron's webUtils). */
 type Bridge = SeamscoutApi & { pathForFile?: (file: File) => string };
 
-const thumbSide = 320;
-const detailSide = 1200;
 const messageOf = (e: unknown): string => (e instanceof Error ? e.message : String(e));
 
 export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOptions = {}): MountedApp {
@@ -76,8 +74,6 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   let lines = true;
   let ties = new Map<string, TiePointState>();
   let exportResult: ExportResult = { state: 'idle' };
-  let thumbs = new Map<string, HTMLImageElement>();
-  let fulls = new Map<string, SVGImageElement>();
 
   // The frame.
   applyStoredTheme(doc, storage);
@@ -118,24 +114,8 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     el('aside', { class: 'results-side' }, panel.element, saving.element, exportSlot),
   );
 
-  const thumbnail = (file: string): HTMLImageElement => {
-    let img = thumbs.get(file);
-    if (!img) {
-      img = el('img', { loading: 'lazy', decoding: 'async', draggable: 'false', alt: file });
-      showFrame(img, 'src', api.frameUrl(state.checkId ?? 0, file, thumbSide));
-      thumbs.set(file, img);
-    }
-    return img;
-  };
-  const fullImage = (file: string): SVGImageElement => {
-    let img = fulls.get(file);
-    if (!img) {
-      img = svg('image');
-      showFrame(img, 'href', api.frameUrl(state.checkId ?? 0, file, detailSide));
-      fulls.set(file, img);
-    }
-    return img;
-  };
+  const frames = createFrameImages((file, maxSide) => api.frameUrl(state.checkId ?? 0, file, maxSide));
+  const thumbnail = frames.thumbnail;
 
   // Rendering.
   function render(): void {
@@ -220,7 +200,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
         lines = !lines;
         refreshDetail();
       };
-      replaceChildren(detailSlot, renderDetail(report, detail, { image: fullImage, tiePoints: ties.get(detail) ?? { state: 'loading' }, lines, onBack: closeDetail, onToggleLines }));
+      replaceChildren(detailSlot, renderDetail(report, detail, { image: frames.full, tiePoints: ties.get(detail) ?? { state: 'loading' }, lines, onBack: closeDetail, onToggleLines }));
     } else {
       replaceChildren(detailSlot);
     }
@@ -370,8 +350,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
       openSeq = null;
       listSelected = null;
       ties = new Map();
-      thumbs = new Map();
-      fulls = new Map();
+      frames.forget();
       exportResult = { state: 'idle' };
     }
     // A fuller report may have found the card's sequences otherwise: an opened sequence that is gone goes back to the list.
