@@ -14,6 +14,8 @@ import { button, el, replaceChildren } from './dom.js';
 import { listenForDrops } from './drop.js';
 import type { ExportResult } from './export-panel.js';
 import { renderExport } from './export-panel.js';
+import type { Navigation } from './navigation.js';
+import { afterReport, backToList as listNav, openedSequence, startNavigation, stepTo, withDetail, withoutDetail } from './navigation.js';
 import { chainPairs, findPair, pairKey } from './pairs.js';
 import type { ProgressView } from './progress-view.js';
 import { createProgressView } from './progress-view.js';
@@ -66,11 +68,8 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   let showPathField = false;
   let prefer: ShotPreference = 'jpeg';
   let preferChosen = false;
-  let selected: string | null = null;
-  // A card of several sequences opens on its list; `openSeq` is the sequence shown (its index), or null for the list.
-  let openSeq: number | null = null;
-  let listSelected: number | null = null;
-  let detail: string | null = null;
+  // Where the user is in the results: a card's opened sequence, the selected entries, the open detail.
+  let nav: Navigation = startNavigation;
   let lines = true;
   let ties = new Map<string, TiePointState>();
   let exportResult: ExportResult = { state: 'idle' };
@@ -141,13 +140,13 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   }
 
   /** The card shows its list; a sequence opened from it, or a report of one sequence, shows the strip. */
-  const listing = (): boolean => state.report !== null && isCard(state.report) && openSeq === null;
+  const listing = (): boolean => state.report !== null && isCard(state.report) && nav.openSeq === null;
 
   /** The report the strip, detail, coverage and advice are built from: the opened sequence alone, or the whole report. */
   function shown(): Report | null {
     const report = state.report;
     if (!report) return null;
-    return isCard(report) && openSeq !== null ? sequenceReport(report, openSeq) : report;
+    return isCard(report) && nav.openSeq !== null ? sequenceReport(report, nav.openSeq) : report;
   }
 
   function fillResults(): void {
@@ -162,7 +161,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     if (!report) return;
     const hadFocus = listSlot.contains(doc.activeElement) ? doc.activeElement?.getAttribute('data-sequence') ?? null : null;
     replaceChildren(summarySlot, renderSummary(report, { switchPreference: running ? undefined : switchPreference, checking: running !== null }));
-    replaceChildren(listSlot, renderSequenceList(report, { thumbnail, selected: listSelected, onOpen: openSequence, onSelect: (i) => selectSequence(i, false) }));
+    replaceChildren(listSlot, renderSequenceList(report, { thumbnail, selected: nav.listSelected, onOpen: openSequence, onSelect: (i) => selectSequence(i, false) }));
     listSlot.hidden = false;
     wide.hidden = true;
     replaceChildren(stripSlot);
@@ -182,6 +181,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     wide.hidden = false;
     const hadFocus = stripSlot.contains(doc.activeElement) ? doc.activeElement?.getAttribute('data-pair') ?? null : null;
     const summaryFocus = focusedInSummary(summarySlot);
+    const { openSeq, selected, detail } = nav;
     const bar = isCard(card) && openSeq !== null ? renderSequenceBar(card, openSeq, backToList) : null;
     const running = state.running;
     replaceChildren(summarySlot, bar, renderSummary(report, { switchPreference: running ? undefined : switchPreference, checking: running !== null, show }));
@@ -210,7 +210,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
 
   /** Redraws an open detail (tie points arrived, lines toggled), keeping focus on the same control. */
   function refreshDetail(): void {
-    if (state.screen !== 'results' || !state.report || !detail) return;
+    if (state.screen !== 'results' || !state.report || !nav.detail) return;
     const a = doc.activeElement;
     const focused = a && detailSlot.contains(a) ? (a.hasAttribute('data-toggle-lines') ? '[data-toggle-lines]' : '.back') : null;
     fillResults();
@@ -220,7 +220,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   // Selection and the detail.
   function markSelection(): void {
     for (const n of stripSlot.querySelectorAll<HTMLElement>('[data-pair]')) {
-      const on = n.getAttribute('data-pair') === selected;
+      const on = n.getAttribute('data-pair') === nav.selected;
       n.classList.toggle('is-selected', on);
       if (on) n.setAttribute('aria-current', 'true');
       else n.removeAttribute('aria-current');
@@ -228,7 +228,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   }
 
   function select(key: string, focus: boolean): void {
-    selected = key;
+    nav = { ...nav, selected: key };
     markSelection();
     if (focus) stripSlot.querySelector<HTMLElement>(`[data-pair="${cssEscape(key)}"]`)?.focus();
   }
@@ -236,14 +236,12 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   function move(step: 1 | -1): void {
     const report = shown();
     if (!report) return;
-    const chain = chainPairs(report).map(pairKey);
-    if (chain.length === 0) return;
-    const at = selected ? chain.indexOf(selected) : -1;
-    const next = at < 0 ? (step > 0 ? 0 : chain.length - 1) : Math.max(0, Math.min(chain.length - 1, at + step));
-    if (detail) {
-      if (chain[next] !== detail) openDetail(chain[next]);
+    const next = stepTo(chainPairs(report).map(pairKey), nav.selected, step);
+    if (next === undefined) return;
+    if (nav.detail) {
+      if (next !== nav.detail) openDetail(next);
     } else {
-      select(chain[next], true);
+      select(next, true);
     }
   }
 
@@ -253,8 +251,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     if (!report || checkId === null) return;
     const p = findPair(report, key);
     if (!p) return;
-    detail = key;
-    if (chainPairs(report).some((q) => pairKey(q) === key)) selected = key;
+    nav = withDetail(nav, key, chainPairs(report).some((q) => pairKey(q) === key));
     if (!ties.has(key)) {
       ties.set(key, { state: 'loading' });
       const id = checkId;
@@ -262,12 +259,12 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
         (points) => {
           if (state.checkId !== id) return;
           ties.set(key, { state: 'ready', points });
-          if (detail === key) refreshDetail();
+          if (nav.detail === key) refreshDetail();
         },
         (e) => {
           if (state.checkId !== id) return;
           ties.set(key, { state: 'failed', message: messageOf(e) });
-          if (detail === key) refreshDetail();
+          if (nav.detail === key) refreshDetail();
         },
       );
     }
@@ -279,8 +276,8 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
 
   /** Shows a station or frame of the strip (closing the detail first): the plan's and the overview's buttons. */
   function reveal(what: { station: number } | { frame: string }): void {
-    if (detail) {
-      detail = null;
+    if (nav.detail) {
+      nav = withoutDetail(nav);
       fillResults();
     }
     revealInStrip(stripSlot, what);
@@ -288,8 +285,8 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   const show = { onOpenPair: (key: string) => openDetail(key), onShowStation: (station: number) => reveal({ station }), onShowFrame: (frame: string) => reveal({ frame }) };
 
   function closeDetail(): void {
-    const key = detail;
-    detail = null;
+    const { detail: key, selected } = nav;
+    nav = withoutDetail(nav);
     fillResults();
     const target = (selected && stripSlot.querySelector<HTMLElement>(`[data-pair="${cssEscape(selected)}"]`)) || (key && stripSlot.querySelector<HTMLElement>(`[data-pair="${cssEscape(key)}"]`));
     if (target) target.focus();
@@ -297,7 +294,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
 
   // The card's list.
   function selectSequence(index: number, focus: boolean): void {
-    listSelected = index;
+    nav = { ...nav, listSelected: index };
     for (const n of listSlot.querySelectorAll<HTMLElement>('[data-sequence]')) {
       const on = Number(n.getAttribute('data-sequence')) === index;
       n.classList.toggle('is-selected', on);
@@ -308,28 +305,21 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   }
 
   function moveInList(step: 1 | -1): void {
-    const order = (state.report?.sequences ?? []).map((q) => q.index);
-    if (order.length === 0) return;
-    const at = listSelected !== null ? order.indexOf(listSelected) : -1;
-    const next = at < 0 ? (step > 0 ? 0 : order.length - 1) : Math.max(0, Math.min(order.length - 1, at + step));
-    selectSequence(order[next], true);
+    const next = stepTo((state.report?.sequences ?? []).map((q) => q.index), nav.listSelected, step);
+    if (next !== undefined) selectSequence(next, true);
   }
 
   function openSequence(index: number): void {
     if (!state.report || !(state.report.sequences ?? []).some((q) => q.index === index)) return;
-    openSeq = index;
-    listSelected = index;
-    selected = null;
-    detail = null;
+    nav = openedSequence(index);
     fillResults();
     summarySlot.querySelector<HTMLElement>('[data-back-to-list]')?.focus();
   }
 
   function backToList(): void {
-    openSeq = null;
-    selected = null;
-    detail = null;
+    nav = listNav(nav);
     fillResults();
+    const { listSelected } = nav;
     if (listSelected !== null) listSlot.querySelector<HTMLElement>(`[data-sequence="${listSelected}"]`)?.focus();
   }
 
@@ -345,21 +335,12 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     const prev = state;
     state = reduce(prev, e);
     if (state.checkId !== prev.checkId) {
-      selected = null;
-      detail = null;
-      openSeq = null;
-      listSelected = null;
+      nav = startNavigation;
       ties = new Map();
       frames.forget();
       exportResult = { state: 'idle' };
     }
-    // A fuller report may have found the card's sequences otherwise: an opened sequence that is gone goes back to the list.
-    const report = state.report;
-    if (state.raw !== prev.raw && report && openSeq !== null && !(isCard(report) && report.sequences?.some((q) => q.index === openSeq))) {
-      openSeq = null;
-      selected = null;
-      detail = null;
-    }
+    if (state.raw !== prev.raw && state.report) nav = afterReport(nav, state.report);
     return prev;
   }
 
@@ -515,14 +496,14 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
 
   const offKeys = listenForKeys(doc, {
     showing: () => (state.screen !== 'results' || !state.report ? null : listing() ? 'list' : 'strip'),
-    list: { selected: () => listSelected, move: moveInList, open: openSequence },
+    list: { selected: () => nav.listSelected, move: moveInList, open: openSequence },
     strip: {
-      selected: () => selected,
-      detailOpen: () => detail !== null,
+      selected: () => nav.selected,
+      detailOpen: () => nav.detail !== null,
       move,
       open: openDetail,
       closeDetail,
-      inCard: () => openSeq !== null && state.report !== null && isCard(state.report),
+      inCard: () => nav.openSeq !== null && state.report !== null && isCard(state.report),
       backToList,
     },
     goStart,
