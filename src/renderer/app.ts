@@ -6,6 +6,7 @@ import { sequenceReport } from '../core/sequence-report.js';
 import { renderAdvice } from './advice-view.js';
 import { createBudgetPanel } from './budget-panel.js';
 import { createBudgetSaving } from './budget-save.js';
+import { createShotPreference } from './shot-preference.js';
 import type { CheckEvent, CheckState, HostEvent, RunningCheck } from './check-state.js';
 import { checkIdOf, doneEvent, initialCheckState, reduce } from './check-state.js';
 import type { TiePointState } from './detail-view.js';
@@ -66,8 +67,6 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   let host: HostInfo | null = null;
   let recent: string[] = [];
   let showPathField = false;
-  let prefer: ShotPreference = 'jpeg';
-  let preferChosen = false;
   // Where the user is in the results: a card's opened sequence, the selected entries, the open detail.
   let nav: Navigation = startNavigation;
   let lines = true;
@@ -86,13 +85,14 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
 
   // The results screen's parts, built once; the parts that depend on the report are refilled.
   const saving = createBudgetSaving(api, options.saveDelayMs ?? 400);
+  const shots = createShotPreference(api, (p) => panel.setPrefer(p));
   const panel = createBudgetPanel(
     state.budget,
     (b) => {
       setBudget(b);
       saving.edit(b);
     },
-    { initial: prefer, onChange: (p) => void setPrefer(p) },
+    { initial: shots.current, onChange: (p) => void setPrefer(p) },
   );
   const summarySlot = el('div', { class: 'summary-slot' });
   const listSlot = el('div', { class: 'list-slot' });
@@ -136,7 +136,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   }
 
   function startModel(): StartModel {
-    return { shell: host?.shell ?? null, recent, showPathField, canDrop: typeof bridge.pathForFile === 'function', message: state.message, hasResults: state.report !== null, prefer, writing: state.running?.writing ?? null };
+    return { shell: host?.shell ?? null, recent, showPathField, canDrop: typeof bridge.pathForFile === 'function', message: state.message, hasResults: state.report !== null, prefer: shots.current, writing: state.running?.writing ?? null };
   }
 
   /** The card shows its list; a sequence opened from it, or a report of one sequence, shows the strip. */
@@ -420,17 +420,11 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
 
   // Which file of a RAW+JPEG shot to check.
   async function setPrefer(p: ShotPreference): Promise<boolean> {
-    prefer = p;
-    preferChosen = true;
-    panel.setPrefer(p);
-    try {
-      await api.saveShotPreference(p);
-      return true;
-    } catch (e) {
-      dispatch({ type: 'notice', message: { kind: 'error', text: `The choice of RAW or JPEG could not be saved: ${messageOf(e)}` } });
-      if (state.screen === 'start') render();
-      return false;
-    }
+    const error = await shots.choose(p);
+    if (error === null) return true;
+    dispatch({ type: 'notice', message: { kind: 'error', text: `The choice of RAW or JPEG could not be saved: ${error}` } });
+    if (state.screen === 'start') render();
+    return false;
   }
 
   /** Checks the shown folder again, reading the other file of each RAW+JPEG shot. */
@@ -534,9 +528,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
       recent = r;
     }, () => undefined),
     api.loadShotPreference().then((p) => {
-      if (preferChosen) return;
-      prefer = p;
-      panel.setPrefer(p);
+      shots.loaded(p);
     }, () => undefined),
     // Tolerant of a bridge without it: the path is only said when a budget is saved.
     Promise.resolve()
