@@ -13,6 +13,7 @@ import type { TiePointState } from './detail-view.js';
 import { renderDetail } from './detail-view.js';
 import { button, el, replaceChildren } from './dom.js';
 import { listenForDrops } from './drop.js';
+import { messageOf } from './format.js';
 import type { ExportResult } from './export-panel.js';
 import { renderExport } from './export-panel.js';
 import type { Navigation } from './navigation.js';
@@ -45,8 +46,6 @@ export interface MountedApp {
 
 /** The desktop bridge adds this beside the contract: a dropped file's path (Electron's webUtils). */
 type Bridge = SeamscoutApi & { pathForFile?: (file: File) => string };
-
-const messageOf = (e: unknown): string => (e instanceof Error ? e.message : String(e));
 
 export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOptions = {}): MountedApp {
   const doc = root.ownerDocument;

@@ -3,6 +3,7 @@
 import type { MatchBudget } from '../core/report.js';
 import type { SeamscoutApi, SettingsInfo } from '../main/app-api.js';
 import { el } from './dom.js';
+import { messageOf } from './format.js';
 
 export interface BudgetSaving {
   /** The status line, placed by the page under the budget panel. */
@@ -14,8 +15,6 @@ export interface BudgetSaving {
   settingsKnown(info: SettingsInfo): void;
   dispose(): void;
 }
-
-const messageOf = (e: unknown): string => (e instanceof Error ? e.message : String(e));
 
 export function createBudgetSaving(api: Pick<SeamscoutApi, 'saveBudget'>, delayMs: number): BudgetSaving {
   const element = el('p', { class: 'budget-status', role: 'status', 'data-budget-status': '' });

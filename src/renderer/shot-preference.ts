@@ -1,6 +1,7 @@
 // Which file of a RAW+JPEG shot to check: the page's choice, shown at once and saved, so the command
 // and the next start use it too. A stored choice read at start does not undo one made meanwhile.
 import type { SeamscoutApi, ShotPreference } from '../main/app-api.js';
+import { messageOf } from './format.js';
 
 export interface ShotPreferenceSaving {
   readonly current: ShotPreference;
@@ -9,8 +10,6 @@ export interface ShotPreferenceSaving {
   /** The stored choice, read at start. */
   loaded(p: ShotPreference): void;
 }
-
-const messageOf = (e: unknown): string => (e instanceof Error ? e.message : String(e));
 
 /** `show` puts a choice on screen (the budget panel's switch). */
 export function createShotPreference(api: Pick<SeamscoutApi, 'saveShotPreference'>, show: (p: ShotPreference) => void): ShotPreferenceSaving {
