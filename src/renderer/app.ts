@@ -1,24 +1,31 @@
 // The page's controller: holds the state (screen, report, budget, selection), talks to main only
 // through the SeamscoutApi object, and hands plain data to the views, which build DOM from it.
-import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat, HostInfo, LatestCheck, SeamscoutApi, ShotPreference } from '../main/app-api.js';
+import type { ExportFormat, HostInfo, LatestCheck, SeamscoutApi, ShotPreference } from '../main/app-api.js';
 import type { MatchBudget, Report } from '../core/report.js';
-import { defaultBudget } from '../core/report.js';
 import { sequenceReport } from '../core/sequence-report.js';
-import { rejudge } from '../core/verdicts.js';
 import { renderAdvice } from './advice-view.js';
 import { createBudgetPanel } from './budget-panel.js';
+import { createBudgetSaving } from './budget-save.js';
+import { createShotPreference } from './shot-preference.js';
+import type { CheckEvent, CheckState, HostEvent, RunningCheck } from './check-state.js';
+import { checkIdOf, doneEvent, initialCheckState, reduce } from './check-state.js';
 import type { TiePointState } from './detail-view.js';
 import { renderDetail } from './detail-view.js';
-import { button, el, replaceChildren, svg } from './dom.js';
+import { button, el, replaceChildren } from './dom.js';
+import { listenForDrops } from './drop.js';
+import { messageOf } from './format.js';
 import type { ExportResult } from './export-panel.js';
 import { renderExport } from './export-panel.js';
+import type { Navigation } from './navigation.js';
+import { afterReport, backToList as listNav, openedSequence, startNavigation, stepTo, withDetail, withoutDetail } from './navigation.js';
 import { chainPairs, findPair, pairKey } from './pairs.js';
-import type { ProgressModel, ProgressView } from './progress-view.js';
-import { createProgressView, emptyProgress, withEvent } from './progress-view.js';
-import type { DemoWriting, StartModel } from './start-view.js';
+import type { ProgressView } from './progress-view.js';
+import { createProgressView } from './progress-view.js';
+import type { StartModel } from './start-view.js';
 import { renderStart } from './start-view.js';
 import { renderCoverage } from './coverage-view.js';
-import { showFrame } from './frame-image.js';
+import { createFrameImages } from './frame-images.js';
+import { listenForKeys } from './keyboard.js';
 import { isCard, renderSequenceBar, renderSequenceList } from './sequence-list-view.js';
 import { renderStrip, revealInStrip } from './strip-view.js';
 import { focusedInSummary, renderSummary } from './summary-view.js';
@@ -37,24 +44,8 @@ export interface MountedApp {
   destroy(): void;
 }
 
-type Screen = 'start' | 'progress' | 'results';
-
-interface Running {
-  id: number | null;
-  model: ProgressModel;
-  readonly view: ProgressView;
-  cancelAsked: boolean;
-  /** The demo shoot being written before its check (first use): shown on the start screen. */
-  writing: DemoWriting | null;
-}
-
 /** The desktop bridge adds this beside the contract: a dropped file's path (Electron's webUtils). */
 type Bridge = SeamscoutApi & { pathForFile?: (file: File) => string };
-
-const thumbSide = 320;
-const detailSide = 1200;
-const sameBudget = (x: MatchBudget, y: MatchBudget): boolean => (Object.keys(x) as (keyof MatchBudget)[]).every((k) => x[k] === y[k]);
-const messageOf = (e: unknown): string => (e instanceof Error ? e.message : String(e));
 
 export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOptions = {}): MountedApp {
   const doc = root.ownerDocument;
@@ -66,37 +57,20 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
       return null;
     }
   })();
-  const saveDelay = options.saveDelayMs ?? 400;
   const bridge = api as Bridge;
 
-  // State.
-  let screen: Screen = 'start';
+  // State: the check's life cycle (screen, running check, report, budget, message) in one value.
+  let state: CheckState = initialCheckState;
+  // The progress view of the running check, made new for each.
+  let progressView: ProgressView | null = null;
   let host: HostInfo | null = null;
   let recent: string[] = [];
   let showPathField = false;
-  let message: StartModel['message'] = null;
-  let budget: MatchBudget = defaultBudget;
-  let budgetEdited = false;
-  let prefer: ShotPreference = 'jpeg';
-  let preferChosen = false;
-  let running: Running | null = null;
-  let early: ({ kind: 'progress'; e: CheckProgressEvent } | { kind: 'done'; e: CheckDoneEvent } | { kind: 'partial'; e: CheckPartialEvent })[] = [];
-  let checkId: number | null = null;
-  let raw: Report | null = null;
-  let report: Report | null = null;
-  let selected: string | null = null;
-  // A card of several sequences opens on its list; `openSeq` is the sequence shown (its index), or null for the list.
-  let openSeq: number | null = null;
-  let listSelected: number | null = null;
-  let detail: string | null = null;
+  // Where the user is in the results: a card's opened sequence, the selected entries, the open detail.
+  let nav: Navigation = startNavigation;
   let lines = true;
   let ties = new Map<string, TiePointState>();
   let exportResult: ExportResult = { state: 'idle' };
-  let saveTimer: ReturnType<typeof setTimeout> | null = null;
-  let budgetStatus = '';
-  let settingsPath: string | null = null;
-  let thumbs = new Map<string, HTMLImageElement>();
-  let fulls = new Map<string, SVGImageElement>();
 
   // The frame.
   applyStoredTheme(doc, storage);
@@ -109,14 +83,15 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   );
 
   // The results screen's parts, built once; the parts that depend on the report are refilled.
+  const saving = createBudgetSaving(api, options.saveDelayMs ?? 400);
+  const shots = createShotPreference(api, (p) => panel.setPrefer(p));
   const panel = createBudgetPanel(
-    budget,
+    state.budget,
     (b) => {
-      budgetEdited = true;
       setBudget(b);
-      scheduleSave(b);
+      saving.edit(b);
     },
-    { initial: prefer, onChange: (p) => void setPrefer(p) },
+    { initial: shots.current, onChange: (p) => void setPrefer(p) },
   );
   const summarySlot = el('div', { class: 'summary-slot' });
   const listSlot = el('div', { class: 'list-slot' });
@@ -126,7 +101,6 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   const detailSlot = el('div', { class: 'detail-slot' });
   const adviceSlot = el('div', { class: 'advice-slot' });
   const exportSlot = el('div', { class: 'export-slot' });
-  const budgetStatusEl = el('p', { class: 'budget-status', role: 'status', 'data-budget-status': '' });
   const wide = el('div', { class: 'results-wide' }, stripSection, coverageSlot, detailSlot);
   const results = el(
     'div',
@@ -135,71 +109,58 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     wide,
     // The card's list sits beside the budget, where a sequence's advice goes.
     el('div', { class: 'results-main' }, listSlot, adviceSlot),
-    el('aside', { class: 'results-side' }, panel.element, budgetStatusEl, exportSlot),
+    el('aside', { class: 'results-side' }, panel.element, saving.element, exportSlot),
   );
 
-  const thumbnail = (file: string): HTMLImageElement => {
-    let img = thumbs.get(file);
-    if (!img) {
-      img = el('img', { loading: 'lazy', decoding: 'async', draggable: 'false', alt: file });
-      showFrame(img, 'src', api.frameUrl(checkId ?? 0, file, thumbSide));
-      thumbs.set(file, img);
-    }
-    return img;
-  };
-  const fullImage = (file: string): SVGImageElement => {
-    let img = fulls.get(file);
-    if (!img) {
-      img = svg('image');
-      showFrame(img, 'href', api.frameUrl(checkId ?? 0, file, detailSide));
-      fulls.set(file, img);
-    }
-    return img;
-  };
+  const frames = createFrameImages((file, maxSide) => api.frameUrl(state.checkId ?? 0, file, maxSide));
+  const thumbnail = frames.thumbnail;
 
   // Rendering.
   function render(): void {
+    const { screen, running, report } = state;
     newCheck.hidden = screen !== 'results';
     if (screen === 'start' || (screen === 'progress' && running?.writing)) {
       replaceChildren(view, renderStart(startModel(), startActions));
-    } else if (screen === 'progress' && running) {
-      replaceChildren(view, running.view.element);
-      running.view.update(running.model);
+    } else if (screen === 'progress' && running && progressView) {
+      replaceChildren(view, progressView.element);
+      progressView.update(running.progress);
     } else if (screen === 'results' && report) {
       // While the check still runs, its progress (and Cancel) stays above the results so far.
       // Put in place only when not already there: moving the results out and back would drop the focus.
-      const parts = running ? [running.view.element, results] : [results];
+      const parts = running && progressView ? [progressView.element, results] : [results];
       if (view.childNodes.length !== parts.length || parts.some((n, i) => view.childNodes[i] !== n)) replaceChildren(view, ...parts);
-      running?.view.update(running.model);
+      if (running) progressView?.update(running.progress);
       fillResults();
     }
   }
 
   function startModel(): StartModel {
-    return { shell: host?.shell ?? null, recent, showPathField, canDrop: typeof bridge.pathForFile === 'function', message, hasResults: report !== null, prefer, writing: running?.writing ?? null };
+    return { shell: host?.shell ?? null, recent, showPathField, canDrop: typeof bridge.pathForFile === 'function', message: state.message, hasResults: state.report !== null, prefer: shots.current, writing: state.running?.writing ?? null };
   }
 
   /** The card shows its list; a sequence opened from it, or a report of one sequence, shows the strip. */
-  const listing = (): boolean => report !== null && isCard(report) && openSeq === null;
+  const listing = (): boolean => state.report !== null && isCard(state.report) && nav.openSeq === null;
 
   /** The report the strip, detail, coverage and advice are built from: the opened sequence alone, or the whole report. */
   function shown(): Report | null {
+    const report = state.report;
     if (!report) return null;
-    return isCard(report) && openSeq !== null ? sequenceReport(report, openSeq) : report;
+    return isCard(report) && nav.openSeq !== null ? sequenceReport(report, nav.openSeq) : report;
   }
 
   function fillResults(): void {
     const one = shown();
-    if (!report || !one) return;
+    if (!state.report || !one) return;
     if (listing()) fillList();
-    else fillSequence(report, one);
+    else fillSequence(state.report, one);
   }
 
   function fillList(): void {
+    const { report, running } = state;
     if (!report) return;
     const hadFocus = listSlot.contains(doc.activeElement) ? doc.activeElement?.getAttribute('data-sequence') ?? null : null;
     replaceChildren(summarySlot, renderSummary(report, { switchPreference: running ? undefined : switchPreference, checking: running !== null }));
-    replaceChildren(listSlot, renderSequenceList(report, { thumbnail, selected: listSelected, onOpen: openSequence, onSelect: (i) => selectSequence(i, false) }));
+    replaceChildren(listSlot, renderSequenceList(report, { thumbnail, selected: nav.listSelected, onOpen: openSequence, onSelect: (i) => selectSequence(i, false) }));
     listSlot.hidden = false;
     wide.hidden = true;
     replaceChildren(stripSlot);
@@ -210,7 +171,6 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     replaceChildren(adviceSlot);
     adviceSlot.hidden = true;
     replaceChildren(exportSlot, renderExport(exportResult, doExport));
-    budgetStatusEl.textContent = budgetStatus;
     if (hadFocus) listSlot.querySelector<HTMLElement>(`[data-sequence="${cssEscape(hadFocus)}"]`)?.focus();
   }
 
@@ -220,7 +180,9 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     wide.hidden = false;
     const hadFocus = stripSlot.contains(doc.activeElement) ? doc.activeElement?.getAttribute('data-pair') ?? null : null;
     const summaryFocus = focusedInSummary(summarySlot);
+    const { openSeq, selected, detail } = nav;
     const bar = isCard(card) && openSeq !== null ? renderSequenceBar(card, openSeq, backToList) : null;
+    const running = state.running;
     replaceChildren(summarySlot, bar, renderSummary(report, { switchPreference: running ? undefined : switchPreference, checking: running !== null, show }));
     // While the detail is open the strip is out of the document, so that [data-pair="a|b"] names
     // one element only (the detail); thumbnails are kept and come back without reloading.
@@ -230,7 +192,6 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     replaceChildren(adviceSlot, report.plan ? null : renderAdvice(report, openDetail));
     replaceChildren(coverageSlot, detail ? null : renderCoverage(report));
     replaceChildren(exportSlot, renderExport(exportResult, doExport));
-    budgetStatusEl.textContent = budgetStatus;
     stripSection.hidden = detail !== null;
     adviceSlot.hidden = detail !== null || !!report.plan;
     if (detail) {
@@ -238,7 +199,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
         lines = !lines;
         refreshDetail();
       };
-      replaceChildren(detailSlot, renderDetail(report, detail, { image: fullImage, tiePoints: ties.get(detail) ?? { state: 'loading' }, lines, onBack: closeDetail, onToggleLines }));
+      replaceChildren(detailSlot, renderDetail(report, detail, { image: frames.full, tiePoints: ties.get(detail) ?? { state: 'loading' }, lines, onBack: closeDetail, onToggleLines }));
     } else {
       replaceChildren(detailSlot);
     }
@@ -248,7 +209,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
 
   /** Redraws an open detail (tie points arrived, lines toggled), keeping focus on the same control. */
   function refreshDetail(): void {
-    if (screen !== 'results' || !report || !detail) return;
+    if (state.screen !== 'results' || !state.report || !nav.detail) return;
     const a = doc.activeElement;
     const focused = a && detailSlot.contains(a) ? (a.hasAttribute('data-toggle-lines') ? '[data-toggle-lines]' : '.back') : null;
     fillResults();
@@ -258,7 +219,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   // Selection and the detail.
   function markSelection(): void {
     for (const n of stripSlot.querySelectorAll<HTMLElement>('[data-pair]')) {
-      const on = n.getAttribute('data-pair') === selected;
+      const on = n.getAttribute('data-pair') === nav.selected;
       n.classList.toggle('is-selected', on);
       if (on) n.setAttribute('aria-current', 'true');
       else n.removeAttribute('aria-current');
@@ -266,7 +227,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   }
 
   function select(key: string, focus: boolean): void {
-    selected = key;
+    nav = { ...nav, selected: key };
     markSelection();
     if (focus) stripSlot.querySelector<HTMLElement>(`[data-pair="${cssEscape(key)}"]`)?.focus();
   }
@@ -274,37 +235,35 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   function move(step: 1 | -1): void {
     const report = shown();
     if (!report) return;
-    const chain = chainPairs(report).map(pairKey);
-    if (chain.length === 0) return;
-    const at = selected ? chain.indexOf(selected) : -1;
-    const next = at < 0 ? (step > 0 ? 0 : chain.length - 1) : Math.max(0, Math.min(chain.length - 1, at + step));
-    if (detail) {
-      if (chain[next] !== detail) openDetail(chain[next]);
+    const next = stepTo(chainPairs(report).map(pairKey), nav.selected, step);
+    if (next === undefined) return;
+    if (nav.detail) {
+      if (next !== nav.detail) openDetail(next);
     } else {
-      select(chain[next], true);
+      select(next, true);
     }
   }
 
   function openDetail(key: string): void {
     const report = shown();
+    const checkId = state.checkId;
     if (!report || checkId === null) return;
     const p = findPair(report, key);
     if (!p) return;
-    detail = key;
-    if (chainPairs(report).some((q) => pairKey(q) === key)) selected = key;
+    nav = withDetail(nav, key, chainPairs(report).some((q) => pairKey(q) === key));
     if (!ties.has(key)) {
       ties.set(key, { state: 'loading' });
       const id = checkId;
       api.tiePoints(id, p.a, p.b).then(
         (points) => {
-          if (checkId !== id) return;
+          if (state.checkId !== id) return;
           ties.set(key, { state: 'ready', points });
-          if (detail === key) refreshDetail();
+          if (nav.detail === key) refreshDetail();
         },
         (e) => {
-          if (checkId !== id) return;
+          if (state.checkId !== id) return;
           ties.set(key, { state: 'failed', message: messageOf(e) });
-          if (detail === key) refreshDetail();
+          if (nav.detail === key) refreshDetail();
         },
       );
     }
@@ -316,8 +275,8 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
 
   /** Shows a station or frame of the strip (closing the detail first): the plan's and the overview's buttons. */
   function reveal(what: { station: number } | { frame: string }): void {
-    if (detail) {
-      detail = null;
+    if (nav.detail) {
+      nav = withoutDetail(nav);
       fillResults();
     }
     revealInStrip(stripSlot, what);
@@ -325,8 +284,8 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   const show = { onOpenPair: (key: string) => openDetail(key), onShowStation: (station: number) => reveal({ station }), onShowFrame: (frame: string) => reveal({ frame }) };
 
   function closeDetail(): void {
-    const key = detail;
-    detail = null;
+    const { detail: key, selected } = nav;
+    nav = withoutDetail(nav);
     fillResults();
     const target = (selected && stripSlot.querySelector<HTMLElement>(`[data-pair="${cssEscape(selected)}"]`)) || (key && stripSlot.querySelector<HTMLElement>(`[data-pair="${cssEscape(key)}"]`));
     if (target) target.focus();
@@ -334,7 +293,7 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
 
   // The card's list.
   function selectSequence(index: number, focus: boolean): void {
-    listSelected = index;
+    nav = { ...nav, listSelected: index };
     for (const n of listSlot.querySelectorAll<HTMLElement>('[data-sequence]')) {
       const on = Number(n.getAttribute('data-sequence')) === index;
       n.classList.toggle('is-selected', on);
@@ -345,197 +304,114 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
   }
 
   function moveInList(step: 1 | -1): void {
-    const order = (report?.sequences ?? []).map((q) => q.index);
-    if (order.length === 0) return;
-    const at = listSelected !== null ? order.indexOf(listSelected) : -1;
-    const next = at < 0 ? (step > 0 ? 0 : order.length - 1) : Math.max(0, Math.min(order.length - 1, at + step));
-    selectSequence(order[next], true);
+    const next = stepTo((state.report?.sequences ?? []).map((q) => q.index), nav.listSelected, step);
+    if (next !== undefined) selectSequence(next, true);
   }
 
   function openSequence(index: number): void {
-    if (!report || !(report.sequences ?? []).some((q) => q.index === index)) return;
-    openSeq = index;
-    listSelected = index;
-    selected = null;
-    detail = null;
+    if (!state.report || !(state.report.sequences ?? []).some((q) => q.index === index)) return;
+    nav = openedSequence(index);
     fillResults();
     summarySlot.querySelector<HTMLElement>('[data-back-to-list]')?.focus();
   }
 
   function backToList(): void {
-    openSeq = null;
-    selected = null;
-    detail = null;
+    nav = listNav(nav);
     fillResults();
+    const { listSelected } = nav;
     if (listSelected !== null) listSlot.querySelector<HTMLElement>(`[data-sequence="${listSelected}"]`)?.focus();
   }
 
   // Budget.
   function setBudget(b: MatchBudget): void {
-    budget = b;
-    if (raw) {
-      report = sameBudget(raw.budget, b) ? raw : rejudge(raw, b);
-      if (screen === 'results') fillResults();
+    dispatch({ type: 'budget-changed', budget: b });
+    if (state.raw && state.screen === 'results') fillResults();
+  }
+
+  // Checks: every change of the life cycle goes through the reducer; what follows draws and calls the host.
+  /** Applies an event and returns the state before it. A new check forgets what was shown of the old one. */
+  function dispatch(e: CheckEvent): CheckState {
+    const prev = state;
+    state = reduce(prev, e);
+    if (state.checkId !== prev.checkId) {
+      nav = startNavigation;
+      ties = new Map();
+      frames.forget();
+      exportResult = { state: 'idle' };
     }
+    if (state.raw !== prev.raw && state.report) nav = afterReport(nav, state.report);
+    return prev;
   }
 
-  function scheduleSave(b: MatchBudget): void {
-    if (saveTimer !== null) clearTimeout(saveTimer);
-    saveTimer = setTimeout(() => {
-      saveTimer = null;
-      api.saveBudget(b).then(
-        // The command reads the same file: a budget changed here changes its verdicts, so say so.
-        () => setBudgetStatus(`Saved in ${settingsPath ?? 'the settings file'}: the command (seamscout check) uses these values from now on too.`),
-        (e) => setBudgetStatus(`The budget could not be saved: ${messageOf(e)}`),
-      );
-    }, saveDelay);
+  /**
+   * Draws what host events changed, no more: the progress view is updated in place so Cancel keeps
+   * the focus. A report received is drawn again even when it is the same, keeping the focus within.
+   */
+  function drawAfter(prev: CheckState, events: readonly HostEvent[]): void {
+    const s = state;
+    if (s === prev) return;
+    const received = events.some((e) => e.type === 'partial' || e.type === 'done');
+    if (received || s.report !== prev.report || s.screen !== prev.screen || s.message !== prev.message) render();
+    else if (s.running && s.running.writing !== prev.running?.writing && s.screen === 'progress') render();
+    else if (s.running && s.running.progress !== prev.running?.progress && s.screen !== 'start') progressView?.update(s.running.progress);
+    // A check that ended (with its report, cancelled or stopped) is now among the recent folders.
+    if (prev.running && !s.running) void refreshRecent();
   }
 
-  function setBudgetStatus(text: string): void {
-    budgetStatus = text;
-    budgetStatusEl.textContent = text;
-  }
+  const hostEvent = (e: HostEvent): void => drawAfter(dispatch(e), [e]);
+  // Read after an await: the state may have moved on meanwhile.
+  const runningNow = (): RunningCheck | null => state.running;
 
-  // Checks.
   async function startCheck(target: { folder: string } | { demo: true }, label: string): Promise<void> {
-    if (running) return;
-    const r: Running = { id: null, model: emptyProgress(label), view: createProgressView(cancel), cancelAsked: false, writing: null };
-    running = r;
-    early = [];
-    message = null;
-    screen = 'progress';
+    if (state.running) return;
+    dispatch({ type: 'started', label });
+    const serial = state.serial;
+    const pv = createProgressView(cancel);
+    progressView = pv;
     render();
-    r.view.element.querySelector<HTMLElement>('[data-cancel]')?.focus();
+    pv.element.querySelector<HTMLElement>('[data-cancel]')?.focus();
     try {
       const id = await api.startCheck(target);
-      if (running !== r) return;
-      r.id = id;
-      if (r.cancelAsked) void api.cancelCheck(id).catch(() => undefined);
-      const pending = early.filter((x) => x.e.checkId === id);
-      early = [];
-      for (const x of pending) {
-        if (x.kind === 'progress') progressed(x.e);
-        else if (x.kind === 'partial') partialArrived(x.e);
-        else finished(x.e);
-      }
+      const r = runningNow();
+      if (r?.serial !== serial) return;
+      const asked = r.cancelAsked;
+      const prev = dispatch({ type: 'accepted', serial, checkId: id });
+      if (asked) void api.cancelCheck(id).catch(() => undefined);
+      drawAfter(prev, prev.early.filter((x) => checkIdOf(x) === id));
     } catch (e) {
-      if (running !== r) return;
-      running = null;
-      message = { kind: 'error', text: `The check could not start: ${messageOf(e)}` };
-      screen = 'start';
+      if (runningNow()?.serial !== serial) return;
+      dispatch({ type: 'start-failed', serial, error: messageOf(e) });
       render();
     }
   }
 
   function cancel(): void {
-    const r = running;
+    dispatch({ type: 'cancel-asked' });
+    const r = state.running;
     if (!r) return;
-    r.model = { ...r.model, cancelling: true };
-    r.view.update(r.model);
-    if (r.id === null) r.cancelAsked = true;
-    else void api.cancelCheck(r.id).catch(() => undefined);
-  }
-
-  function progressed(e: CheckProgressEvent): void {
-    const r = running;
-    if (!r) return;
-    if (r.id === null) {
-      early.push({ kind: 'progress', e });
-      return;
-    }
-    if (e.checkId !== r.id) return;
-    if (e.phase === 'demo') {
-      // The first event carries the estimate; it is said as it was, the time left follows the frames.
-      r.writing = { done: e.done, total: e.total, seconds: r.writing?.seconds ?? (e.secondsLeft === null ? null : Math.round(e.secondsLeft)), secondsLeft: e.secondsLeft };
-      if (screen === 'progress') render();
-      return;
-    }
-    if (r.writing) {
-      r.writing = null;
-      if (screen === 'progress') render();
-    }
-    r.model = withEvent(r.model, e);
-    if (screen === 'progress' || screen === 'results') r.view.update(r.model);
+    progressView?.update(r.progress);
+    if (r.id !== null) void api.cancelCheck(r.id).catch(() => undefined);
   }
 
   /** A page loaded again: the host's latest check, still running or with its report, instead of a new one. */
   function resume(latest: LatestCheck): void {
-    if (latest.running) {
-      const label = latest.demo ? 'the demo shoot' : latest.folder.split(/[\\/]/).filter(Boolean).pop() ?? latest.folder;
-      running = { id: latest.checkId, model: emptyProgress(label), view: createProgressView(cancel), cancelAsked: false, writing: null };
-      screen = 'progress';
-    }
-    if (latest.report) receiveReport(latest.checkId, latest.report);
-    else render();
-  }
-
-  /** Results so far of the running check: shown at once, replaced by fuller ones as they come. */
-  function partialArrived(e: CheckPartialEvent): void {
-    const r = running;
-    if (!r) return;
-    if (r.id === null) {
-      early.push({ kind: 'partial', e });
-      return;
-    }
-    if (e.checkId !== r.id) return;
-    receiveReport(e.checkId, e.report);
-  }
-
-  function finished(e: CheckDoneEvent): void {
-    const r = running;
-    if (!r) return;
-    if (r.id === null) {
-      early.push({ kind: 'done', e });
-      return;
-    }
-    if (e.checkId !== r.id) return;
-    running = null;
-    if (e.report) {
-      receiveReport(e.checkId, e.report);
-    } else {
-      message = e.cancelled ? { kind: 'info', text: 'Check cancelled.' } : { kind: 'error', text: `The check stopped: ${e.error ?? 'unknown error'}` };
-      screen = 'start';
-      render();
-    }
-    void refreshRecent();
-  }
-
-  /** Shows a report. Called again with a fuller report of the same check, it keeps selection and detail. */
-  function receiveReport(id: number, r: Report): void {
-    if (id !== checkId) {
-      checkId = id;
-      selected = null;
-      detail = null;
-      openSeq = null;
-      listSelected = null;
-      ties = new Map();
-      thumbs = new Map();
-      fulls = new Map();
-      exportResult = { state: 'idle' };
-    }
-    raw = r;
-    report = sameBudget(r.budget, budget) ? r : rejudge(r, budget);
-    // A fuller report may have found the card's sequences otherwise: an opened sequence that is gone goes back to the list.
-    if (openSeq !== null && !(isCard(report) && report.sequences?.some((q) => q.index === openSeq))) {
-      openSeq = null;
-      selected = null;
-      detail = null;
-    }
-    screen = 'results';
+    if (latest.running) progressView = createProgressView(cancel);
+    dispatch({ type: 'resumed', latest });
     render();
   }
 
   async function doExport(format: ExportFormat): Promise<void> {
+    const checkId = state.checkId;
     if (checkId === null || exportResult.state === 'busy') return;
     exportResult = { state: 'busy', format };
     replaceChildren(exportSlot, renderExport(exportResult, doExport));
     try {
-      const path = await api.exportReport(checkId, format, budget);
+      const path = await api.exportReport(checkId, format, state.budget);
       exportResult = path === null ? { state: 'cancelled' } : { state: 'written', path, shell: host?.shell ?? 'desktop' };
     } catch (e) {
       exportResult = { state: 'failed', message: messageOf(e) };
     }
-    if (screen === 'results') {
+    if (state.screen === 'results') {
       replaceChildren(exportSlot, renderExport(exportResult, doExport));
       exportSlot.querySelector<HTMLElement>(`[data-export="${format}"]`)?.focus();
     }
@@ -543,25 +419,20 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
 
   // Which file of a RAW+JPEG shot to check.
   async function setPrefer(p: ShotPreference): Promise<boolean> {
-    prefer = p;
-    preferChosen = true;
-    panel.setPrefer(p);
-    try {
-      await api.saveShotPreference(p);
-      return true;
-    } catch (e) {
-      message = { kind: 'error', text: `The choice of RAW or JPEG could not be saved: ${messageOf(e)}` };
-      if (screen === 'start') render();
-      return false;
-    }
+    const error = await shots.choose(p);
+    if (error === null) return true;
+    dispatch({ type: 'notice', message: { kind: 'error', text: `The choice of RAW or JPEG could not be saved: ${error}` } });
+    if (state.screen === 'start') render();
+    return false;
   }
 
   /** Checks the shown folder again, reading the other file of each RAW+JPEG shot. */
   async function switchPreference(): Promise<void> {
-    if (!report?.rawPlusJpeg || running) return;
+    const report = state.report;
+    if (!report?.rawPlusJpeg || state.running) return;
     const folder = report.folder;
     if (!(await setPrefer(report.rawPlusJpeg.checked === 'raw' ? 'jpeg' : 'raw'))) {
-      setBudgetStatus(message?.text ?? '');
+      saving.say(state.message?.text ?? '');
       return;
     }
     openFolder(folder);
@@ -569,8 +440,8 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
 
   // Start screen.
   function goStart(): void {
-    if (screen === 'progress') return;
-    screen = 'start';
+    if (state.screen === 'progress') return;
+    dispatch({ type: 'back-to-start' });
     render();
     view.querySelector<HTMLElement>('[data-back-to-results], [data-choose-folder]')?.focus();
   }
@@ -585,14 +456,14 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
       try {
         folder = await api.chooseFolder();
       } catch (e) {
-        message = { kind: 'error', text: `No folder dialog: ${messageOf(e)}` };
+        dispatch({ type: 'notice', message: { kind: 'error', text: `No folder dialog: ${messageOf(e)}` } });
       }
       if (folder) {
         openFolder(folder);
         return;
       }
       if ((host ?? (await api.hostInfo().catch(() => null)))?.shell === 'browser') showPathField = true;
-      if (screen === 'start') {
+      if (state.screen === 'start') {
         render();
         view.querySelector<HTMLInputElement>('input[name="folder"]')?.focus();
       }
@@ -601,8 +472,8 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     tryDemo: (): void => void startCheck({ demo: true }, 'the demo shoot'),
     setPrefer: (p: ShotPreference): void => void setPrefer(p),
     backToResults: (): void => {
-      if (!report) return;
-      screen = 'results';
+      if (!state.report) return;
+      dispatch({ type: 'back-to-results' });
       render();
     },
   };
@@ -613,98 +484,37 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     } catch {
       recent = [];
     }
-    if (screen === 'start') render();
+    if (state.screen === 'start') render();
   }
 
-  // Keyboard: arrows move between the strip's pairs, Enter opens, Escape goes back.
-  const onKey = (e: KeyboardEvent): void => {
-    if (e.defaultPrevented || e.altKey || e.ctrlKey || e.metaKey || screen !== 'results' || !report) return;
-    const t = e.target instanceof Element ? e.target : null;
-    const typing = !!t && (/^(INPUT|TEXTAREA|SELECT)$/.test(t.tagName) || (t as HTMLElement).isContentEditable === true);
-    if (typing) {
-      if (e.key === 'Escape') (t as HTMLElement).blur();
-      return;
-    }
-    if (listing()) {
-      if (e.key === 'ArrowDown' || e.key === 'ArrowRight' || e.key === 'ArrowUp' || e.key === 'ArrowLeft') {
-        e.preventDefault();
-        moveInList(e.key === 'ArrowDown' || e.key === 'ArrowRight' ? 1 : -1);
-      } else if (e.key === 'Enter') {
-        const onEntry = t?.closest('[data-sequence]')?.getAttribute('data-sequence') ?? null;
-        if (!onEntry && t?.closest('button, a, summary')) return;
-        const index = onEntry !== null ? Number(onEntry) : listSelected;
-        if (index !== null) {
-          e.preventDefault();
-          openSequence(index);
-        }
-      } else if (e.key === 'Escape') {
-        e.preventDefault();
-        goStart();
-      }
-      return;
-    }
-    if (e.key === 'ArrowRight' || e.key === 'ArrowLeft') {
-      e.preventDefault();
-      move(e.key === 'ArrowRight' ? 1 : -1);
-    } else if (e.key === 'Enter' && !detail) {
-      const onPair = t?.closest('[data-pair]')?.getAttribute('data-pair') ?? null;
-      // Other controls (export, budget defaults, "Show pair") act on Enter themselves.
-      if (!onPair && t?.closest('button, a, summary')) return;
-      const key = onPair ?? selected;
-      if (key) {
-        e.preventDefault();
-        openDetail(key);
-      }
-    } else if (e.key === 'Escape') {
-      e.preventDefault();
-      if (detail) closeDetail();
-      else if (openSeq !== null && isCard(report)) backToList();
-      else goStart();
-    }
-  };
+  const offKeys = listenForKeys(doc, {
+    showing: () => (state.screen !== 'results' || !state.report ? null : listing() ? 'list' : 'strip'),
+    list: { selected: () => nav.listSelected, move: moveInList, open: openSequence },
+    strip: {
+      selected: () => nav.selected,
+      detailOpen: () => nav.detail !== null,
+      move,
+      open: openDetail,
+      closeDetail,
+      inCard: () => nav.openSeq !== null && state.report !== null && isCard(state.report),
+      backToList,
+    },
+    goStart,
+  });
 
-  // Dropping a folder on the window opens it where its path can be read (the desktop app).
-  const hasFiles = (e: DragEvent): boolean => !!e.dataTransfer && Array.from(e.dataTransfer.types ?? []).includes('Files');
-  const onDragOver = (e: DragEvent): void => {
-    if (!hasFiles(e)) return;
-    e.preventDefault();
-    if (e.dataTransfer) e.dataTransfer.dropEffect = screen === 'progress' ? 'none' : 'copy';
-    root.classList.toggle('is-dragging', screen !== 'progress');
-  };
-  const onDragLeave = (e: DragEvent): void => {
-    if (e.relatedTarget === null) root.classList.remove('is-dragging');
-  };
-  const onDrop = (e: DragEvent): void => {
-    root.classList.remove('is-dragging');
-    if (!e.dataTransfer || !hasFiles(e)) return;
-    // Never let the page navigate to a dropped file.
-    e.preventDefault();
-    if (screen === 'progress') return;
-    const file = e.dataTransfer.files?.[0];
-    if (!file) return;
-    let path: string;
-    try {
-      path = bridge.pathForFile?.(file) ?? '';
-    } catch {
-      path = '';
-    }
-    if (path) {
-      openFolder(path);
-      return;
-    }
-    message = { kind: 'info', text: 'Dropping a folder needs the desktop app: use Open folder… or type the folder path instead.' };
-    if (host?.shell === 'browser') showPathField = true;
-    screen = 'start';
-    render();
-  };
-
-  doc.addEventListener('keydown', onKey);
-  win.addEventListener('dragover', onDragOver);
-  win.addEventListener('dragleave', onDragLeave);
-  win.addEventListener('drop', onDrop);
-  const offProgress = api.onProgress(progressed);
-  const offDone = api.onDone(finished);
-  const offPartial = api.onPartial(partialArrived);
+  const offDrops = listenForDrops(win, root, {
+    busy: () => state.screen === 'progress',
+    pathOf: (file) => bridge.pathForFile?.(file) ?? '',
+    open: openFolder,
+    refused: () => {
+      if (host?.shell === 'browser') showPathField = true;
+      dispatch({ type: 'back-to-start', message: { kind: 'info', text: 'Dropping a folder needs the desktop app: use Open folder… or type the folder path instead.' } });
+      render();
+    },
+  });
+  const offProgress = api.onProgress((event) => hostEvent({ type: 'progress', event }));
+  const offDone = api.onDone((e) => hostEvent(doneEvent(e)));
+  const offPartial = api.onPartial((event) => hostEvent({ type: 'partial', event }));
 
   render();
 
@@ -717,44 +527,39 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
       recent = r;
     }, () => undefined),
     api.loadShotPreference().then((p) => {
-      if (preferChosen) return;
-      prefer = p;
-      panel.setPrefer(p);
+      shots.loaded(p);
     }, () => undefined),
     // Tolerant of a bridge without it: the path is only said when a budget is saved.
     Promise.resolve()
       .then(() => api.settingsInfo())
       .then((info) => {
-        settingsPath = info.path;
-        if (info.note && !budgetStatus) setBudgetStatus(info.note);
+        saving.settingsKnown(info);
       })
       .catch(() => undefined),
     api.loadBudget().then((b) => {
-      if (budgetEdited) return;
+      if (saving.edited) return;
       panel.set(b);
       setBudget(b);
-    }, (e) => setBudgetStatus(`The stored budget could not be read (${messageOf(e)}); using the defaults.`)),
+    }, (e) => saving.say(`The stored budget could not be read (${messageOf(e)}); using the defaults.`)),
   ]).then(() => {
     // Opened with a folder (or, by default, the demo shoot): go straight to its check.
     const first = host?.initialTarget;
-    if (screen === 'start' && host?.latest) resume(host.latest);
-    else if (screen === 'start' && first) {
+    if (state.screen === 'start' && host?.latest) resume(host.latest);
+    else if (state.screen === 'start' && first) {
       if ('demo' in first) startActions.tryDemo();
       else openFolder(first.folder);
-    } else if (screen === 'start') render();
+    } else if (state.screen === 'start') render();
   });
 
   return {
     ready,
     destroy(): void {
-      doc.removeEventListener('keydown', onKey);
-      win.removeEventListener('dragover', onDragOver);
-      win.removeEventListener('dragleave', onDragLeave);
-      win.removeEventListener('drop', onDrop);
+      offKeys();
+      offDrops();
       offProgress();
       offDone();
       offPartial();
-      if (saveTimer !== null) clearTimeout(saveTimer);
+      saving.dispose();
       replaceChildren(root);
     },
   };

@@ -66,3 +66,6 @@ export const flagMeaning: Record<FlagCode, string> = {
 export const verdictWords: Record<Verdict, string> = { ok: 'ok', weak: 'weak', reshoot: 'reshoot' };
 
 export const kindWords: Record<PairKind, string> = { neighbour: 'neighbour pair', closure: 'closure pair', bracket: 'bracket pair', other: 'other pair' };
+
+/** What went wrong, as said to the user: an Error's message, or whatever was thrown as text. */
+export const messageOf = (e: unknown): string => (e instanceof Error ? e.message : String(e));
