@@ -1,6 +1,6 @@
 // The page's controller: holds the state (screen, report, budget, selection), talks to main only
 // through the SeamscoutApi object, and hands plain data to the views, which build DOM from it.
-import type { ExportFormat, HostInfo, LatestCheck, SeamscoutApi, ShotPreference } from '../main/app-api.js';
+import type { ExportFormat, HostInfo, LatestCheck, SeamscoutApi, ShotPreference } from '../common/api.js';
 import type { MatchBudget, Report } from '../core/report.js';
 import { sequenceReport } from '../core/sequence-report.js';
 import { renderAdvice } from './advice-view.js';

@@ -1,7 +1,7 @@
 // The check's life cycle on the page as a pure state machine: events in (the user's and the host's),
 // state out. No DOM and no API calls here, so every transition is testable on plain data; the page
 // (app.ts) dispatches events, makes the calls and draws from the state.
-import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, LatestCheck } from '../main/app-api.js';
+import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, LatestCheck } from '../common/api.js';
 import type { MatchBudget, Report } from '../core/report.js';
 import { defaultBudget } from '../core/report.js';
 import { rejudge } from '../core/verdicts.js';

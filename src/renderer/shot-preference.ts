@@ -1,6 +1,6 @@
 // Which file of a RAW+JPEG shot to check: the page's choice, shown at once and saved, so the command
 // and the next start use it too. A stored choice read at start does not undo one made meanwhile.
-import type { SeamscoutApi, ShotPreference } from '../main/app-api.js';
+import type { SeamscoutApi, ShotPreference } from '../common/api.js';
 import { messageOf } from './format.js';
 
 export interface ShotPreferenceSaving {
