@@ -27,6 +27,7 @@ import type { ScannedFile } from './scan.js';
 import { byteCopies, scanFolder } from './scan.js';
 import type { ShotPreference } from '../common/api.js';
 import { oneFilePerShot } from './shot-pairs.js';
+import { FrameGate, inOrder, slots } from './concurrency.js';
 import { median } from '../core/median.js';
 
 export interface CheckProgress {
@@ -138,21 +139,6 @@ export function skipOf(file: string, err: unknown, size?: number): SkippedFile {
   return { file, code: 'unreadable', reason: `cannot be read: ${message.split('\n')[0]}` };
 }
 
-/** Runs `task` over items with at most `limit` in flight, keeping results in input order. */
-async function inOrder<T, R>(items: readonly T[], limit: number, task: (item: T, i: number) => Promise<R>, signal?: AbortSignal): Promise<R[]> {
-  const out = new Array<R>(items.length);
-  let next = 0;
-  const lane = async (): Promise<void> => {
-    while (next < items.length) {
-      signal?.throwIfAborted();
-      const i = next++;
-      out[i] = await task(items[i], i);
-    }
-  };
-  await Promise.all(Array.from({ length: Math.max(1, Math.min(limit, items.length)) }, lane));
-  return out;
-}
-
 interface FrameSummary {
   readonly fullWidth: number;
   readonly fullHeight: number;
@@ -184,22 +170,6 @@ interface Station {
   readonly reference: number;
   readonly offsets: (number | null)[];
   readonly groupedBy: StationGroup['groupedBy'];
-}
-
-/** A counting semaphore for work in flight. */
-function slots(n: number): <T>(task: () => Promise<T>) => Promise<T> {
-  let free = n;
-  const waiting: (() => void)[] = [];
-  return async (task) => {
-    while (free <= 0) await new Promise<void>((r) => waiting.push(r));
-    free--;
-    try {
-      return await task();
-    } finally {
-      free++;
-      waiting.shift()?.();
-    }
-  };
 }
 
 /** Frames smaller than this on their long side are no frames of a panorama (a thumbnail, a 1x1 placeholder). Our own. */
@@ -330,8 +300,7 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
     const pairTasks: Promise<void>[] = [];
     const pairSlot = slots(Math.max(2, pool.threads));
     let framesDone = 0, pairsDone = 0, pairsAsked = 0;
-    let held = 0, peakHeld = 0;
-    const roomWaiters: (() => void)[] = [];
+    const gate = new FrameGate(maxHeld);
     let partialHook: (() => void) | null = null;
     let finalised = 0;
     const keepAll = !byExif || (options.allPairs ?? false);
@@ -346,8 +315,7 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
       // waits for the closure pair.
       if (k === st.reference && (s === 0 || finalised <= s + 1)) return;
       f.data = null;
-      held--;
-      roomWaiters.shift()?.();
+      gate.release();
     };
 
     // A pair asked for after its frames were let go (the closure pair of a row, known only once the
@@ -364,8 +332,7 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
           const data = (await options.cache?.get(o.scanned, maxSide)) ?? (await pool.analyseFrame(o.scanned.path, maxSide, signal));
           if (!f.data) {
             f.data = data;
-            held++;
-            peakHeld = Math.max(peakHeld, held);
+            gate.take();
           }
           return f.data;
         })().finally(() => reloads.delete(k));
@@ -520,17 +487,16 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
     const seenPixels = new Map<string, number>();
     const leaveOut = (k: number, skip: SkippedFile): void => {
       const f = frames[k];
-      if (f?.data) held--;
+      if (f?.data) gate.drop();
       if (f) f.data = null;
       frames[k] = null;
       decodeSkips.push({ k, skip });
     };
     const loadFrame = async (k: number): Promise<void> => {
       const o = ordered[k];
-      while (held >= maxHeld) await new Promise<void>((r) => roomWaiters.push(r));
+      await gate.room();
       signal?.throwIfAborted();
-      held++;
-      peakHeld = Math.max(peakHeld, held);
+      gate.take();
       try {
         let data = (await options.cache?.get(o.scanned, maxSide)) ?? null;
         if (!data) {
@@ -555,12 +521,12 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
           seenPixels.set(data.fingerprint, k);
         }
       } catch (err) {
-        held--;
+        gate.drop();
         if (signal?.aborted) throw err;
         decodeSkips.push({ k, skip: skipOf(o.file, err, o.scanned.size) });
         frames[k] = null;
       } finally {
-        roomWaiters.shift()?.();
+        gate.wake();
         options.onProgress?.({ phase: 'frames', done: ++framesDone, total: n, file: o.file });
       }
       finaliseReady();
@@ -862,7 +828,7 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
         evOffsets: st.offsets,
         groupedBy: st.groupedBy,
       }));
-      return { analysis: { folder, frames: frameMeasures, stations: stationMeasures, pairs, skipped: [...skipped, ...[...decodeSkips].sort((p, q) => p.k - q.k).map((d) => d.skip)], rawPlusJpeg: card.rawPlusJpeg, sweepDeg: geometry?.horizontalDeg ?? null, geometry }, tiePoints, peakFramesHeld: peakHeld };
+      return { analysis: { folder, frames: frameMeasures, stations: stationMeasures, pairs, skipped: [...skipped, ...[...decodeSkips].sort((p, q) => p.k - q.k).map((d) => d.skip)], rawPlusJpeg: card.rawPlusJpeg, sweepDeg: geometry?.horizontalDeg ?? null, geometry }, tiePoints, peakFramesHeld: gate.peak };
     }
   } finally {
     if (!options.pool) await pool.destroy();
