@@ -28,6 +28,7 @@ import { byteCopies, scanFolder } from './scan.js';
 import type { ShotPreference } from '../common/api.js';
 import { oneFilePerShot } from './shot-pairs.js';
 import { FrameGate, inOrder, slots } from './concurrency.js';
+import { kindInRows, keepClosure, mayHaveClosed, otherReferencePairs, sameViewOtherExposure, showsAnotherView, tryRowClosure, tryTurnClosure } from '../core/check-plan.js';
 import { median } from '../core/median.js';
 
 export interface CheckProgress {
@@ -91,18 +92,6 @@ export interface CheckResult {
  * decoding can shrink on load by 1/4 (GUIDE section 10); accurate to well under a pixel there.
  */
 export const defaultMaxSide = 1500;
-
-/** Frames covering this much of the horizon may have been meant as a full turn: the closure pair is tried (common practice). */
-const nearFullTurnDeg = 300;
-/** Frames covering this much were a full turn for certain: a closure pair without a model is reported. */
-const closingTurnDeg = 330;
-
-
-/**
- * A bracket frame sees its reference's view, moved at most by a hand-held wobble; a frame of a
- * station overlapping its would-be reference by less than this shows another view (common practice).
- */
-const bracketMinOverlap = 0.8;
 
 /** Frames in flight when the analysis runs in the calling thread. */
 const inThreadLanes = 6;
@@ -444,7 +433,7 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
       await checkMembers(members, reference);
       const apart = members.filter((m) => {
         const r = m === reference ? undefined : pairResults.get(`${reference}:${m}`);
-        return r !== undefined && r.homography !== null && r.overlap !== null && r.overlap < bracketMinOverlap;
+        return r !== undefined && showsAnotherView(r);
       });
       for (const m of apart) pairResults.delete(`${reference}:${m}`);
       const kept = members.filter((m) => !apart.includes(m));
@@ -555,8 +544,7 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
       const links = consecutive.map(([i, j]) => {
         const p = pairResults.get(`${i}:${j}`)!;
         const { h } = fullResolution(p, frames[i]!.summary, frames[j]!.summary);
-        const w = frames[i]!.summary.fullWidth;
-        return h !== null && cornerShift(h, w, frames[i]!.summary.fullHeight) < 0.05 * w && p.evDiff !== null && Math.abs(p.evDiff) > 0.3;
+        return sameViewOtherExposure(h, frames[i]!.summary.fullWidth, frames[i]!.summary.fullHeight, p.evDiff);
       });
       const groups = groupStations(loadedIdx.map((k) => ({ settings: frames[k]!.exif.settings, captureMs: frames[k]!.exif.captureMs })), links);
       for (const g of groups) finalise(g.members.map((m) => loadedIdx[m]), loadedIdx[g.reference], g.offsets, g.groupedBy);
@@ -566,23 +554,19 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
 
     // The geometry from the neighbour chain; it says whether the frames may have come round.
     const before = geometryOf(planned.filter((p) => p.kind === 'neighbour'), null);
-    if (stations.length >= 3 && (before === null || before.horizontalDeg >= nearFullTurnDeg)) {
+    if (tryTurnClosure(stations.length, before?.horizontalDeg ?? null)) {
       // The closure pair, when the frames cover most of a turn (or the geometry is unknown); kept
       // when it matched or the turn should close.
       const closure: PlannedPair = { i: stations[stations.length - 1].reference, j: stations[0].reference, kind: 'closure' };
       await analysePair(closure.i, closure.j);
       const r = pairResults.get(`${closure.i}:${closure.j}`)!;
-      if (r.homography || (before !== null && before.horizontalDeg >= closingTurnDeg)) keep(closure);
+      if (keepClosure(r.homography !== null, before?.horizontalDeg ?? null)) keep(closure);
     }
     if (options.allPairs || shotInRows()) {
       // Every other pair of reference frames, screened cheaply on a sample of keypoints first (the
       // samples were kept when the frames were decoded: the frames themselves may be let go).
       const refs = stations.map((s) => s.reference);
-      const known = new Set(planned.map((p) => `${p.i}:${p.j}`));
-      const others: [number, number][] = [];
-      for (let x = 0; x < refs.length; x++)
-        for (let y = x + 2; y < refs.length; y++) if (!known.has(`${refs[x]}:${refs[y]}`) && !known.has(`${refs[y]}:${refs[x]}`)) others.push([refs[x], refs[y]]);
-      const chosen = screenPairs(samples, others);
+      const chosen = screenPairs(samples, otherReferencePairs(refs, planned));
       for (const [i, j] of chosen) keep({ i, j, kind: 'other' });
       // Without --all-pairs the frames were let go: a few pairs at a time, so that a frame decoded
       // again is let go once its pairs are done instead of waiting for every pair asked for.
@@ -668,7 +652,7 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
       });
       const turned = turns.reduce((t, x) => t + x, 0) + failed.length * (turns.length ? median(turns) : 0) + lensFieldOfViewDeg(sizes[0].width, chain.focalPx, chain.distortion ?? { k1: 0, k2: 0 });
       const closure = { i: stations[stations.length - 1].reference, j: stations[0].reference };
-      if (turned >= nearFullTurnDeg && !pairResults.has(`${closure.i}:${closure.j}`)) {
+      if (mayHaveClosed(turned) && !pairResults.has(`${closure.i}:${closure.j}`)) {
         pairResults.set(`${closure.i}:${closure.j}`, await pool.analysePair(await transientData(closure.i), await transientData(closure.j), undefined, signal));
       }
       const links = [...planned.filter((p) => p.kind !== 'bracket'), { ...closure, kind: 'closure' as const }].flatMap((p) => {
@@ -701,21 +685,20 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
       const rowOf = new Int32Array(stations.length).fill(-1);
       g.rows.forEach((r, k) => r.stations.forEach((s) => (rowOf[s] = k)));
       for (const p of planned) {
-        const a = rowOf[stationOf[p.i]], b = rowOf[stationOf[p.j]];
-        if ((p.kind === 'neighbour' || p.kind === 'closure') && a !== b) p.kind = 'other';
+        p.kind = kindInRows(p.kind, rowOf[stationOf[p.i]], rowOf[stationOf[p.j]]);
       }
       const hfov = (s: number): number => lensFieldOfViewDeg(frames[stations[s].reference]!.summary.fullWidth, g.focalPx, g.distortion ?? { k1: 0, k2: 0 });
       const yawOf = new Map(g.poses.map((p) => [p.station, p.yawDeg]));
       for (const r of g.rows) {
         if (r.stations.length < 3) continue;
         const covered = circleCoverage(r.stations.map((s) => yawOf.get(s)!), r.stations.map(hfov)).coveredDeg;
-        if (covered < nearFullTurnDeg) continue;
+        if (!tryRowClosure(r.stations.length, covered)) continue;
         const i = stations[r.stations[r.stations.length - 1]].reference, j = stations[r.stations[0]].reference;
         const known = planned.find((p) => (p.i === i && p.j === j) || (p.i === j && p.j === i));
         if (known) known.kind = 'closure';
         else {
           await analysePair(i, j);
-          if (pairResults.get(`${i}:${j}`)!.homography || covered >= closingTurnDeg) keep({ i, j, kind: 'closure' });
+          if (keepClosure(pairResults.get(`${i}:${j}`)!.homography !== null, covered)) keep({ i, j, kind: 'closure' });
         }
       }
       return geometryOf(planned.filter((p) => p.kind !== 'bracket'), null);
