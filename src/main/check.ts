@@ -5,7 +5,7 @@ import { normalise } from '../core/homography.js';
 import { predictPairHomography, toAnalysisPixels } from '../core/guided-match.js';
 import { shootingOrder } from '../core/natural-order.js';
 import { overlapRegions } from '../core/overlap.js';
-import type { Analysis, FrameMeasure, PairKind, PairMeasure, SequenceGeometry, SkippedFile, StationMeasure } from '../core/report.js';
+import type { Analysis, FrameMeasure, PairKind, PairMeasure, SequenceGeometry, SkippedFile } from '../core/report.js';
 import { analysisToFull } from '../core/resolution.js';
 import type { StationGroup } from '../core/stations.js';
 import { groupStations } from '../core/stations.js';
@@ -28,6 +28,8 @@ import { byteCopies, scanFolder } from './scan.js';
 import type { ShotPreference } from '../common/api.js';
 import { oneFilePerShot } from './shot-pairs.js';
 import { FrameGate, inOrder, slots } from './concurrency.js';
+import type { FrameSummary, PlannedStation } from '../core/check-report.js';
+import { frameMeasure, pairMeasure, skipsInOrder, stationMeasures } from '../core/check-report.js';
 import { kindInRows, keepClosure, mayHaveClosed, otherReferencePairs, sameViewOtherExposure, showsAnotherView, tryRowClosure, tryTurnClosure } from '../core/check-plan.js';
 import { median } from '../core/median.js';
 
@@ -128,16 +130,6 @@ export function skipOf(file: string, err: unknown, size?: number): SkippedFile {
   return { file, code: 'unreadable', reason: `cannot be read: ${message.split('\n')[0]}` };
 }
 
-interface FrameSummary {
-  readonly fullWidth: number;
-  readonly fullHeight: number;
-  readonly anWidth: number;
-  readonly anHeight: number;
-  readonly keypoints: number;
-  readonly sharpness: number;
-  readonly fingerprint: string;
-}
-
 /** A decoded frame: what the report needs of it, and its analysis while pairs still need it. */
 interface Frame {
   readonly file: ScannedFile;
@@ -154,12 +146,7 @@ interface PlannedPair {
   kind: PairKind;
 }
 
-interface Station {
-  readonly members: number[];
-  readonly reference: number;
-  readonly offsets: (number | null)[];
-  readonly groupedBy: StationGroup['groupedBy'];
-}
+type Station = PlannedStation;
 
 /** Frames smaller than this on their long side are no frames of a panorama (a thumbnail, a 1x1 placeholder). Our own. */
 const minSequenceSide = 256;
@@ -755,41 +742,14 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
       const { scale } = fullResolution(r, sa, sb);
       const full = fullPair(i, j);
       const h = full?.h ?? null;
-      const pair: PairMeasure = {
-        a: name(i),
-        b: name(j),
-        kind,
-        matches: r.matches,
-        inliers: r.inliers,
-        matchesInOverlap: r.matchesInOverlap,
-        overlap: r.overlap,
-        homography: h ? Array.from(h) : null,
-        evDiff: r.evDiff,
-        rmsError: r.rmsError === null ? null : r.rmsError * scale,
-        shiftPx: full && kind === 'bracket' ? (bracketShift(full.points, sa.fullWidth, sa.fullHeight, focalOf(i, geometry) ?? NaN) ?? cornerShift(full.h, sa.fullWidth, sa.fullHeight)) : null,
-        moved: r.moved?.map((m) => ({ x: m.x * scale, y: m.y * scale, width: m.width * scale, height: m.height * scale })) ?? null,
-        misfit: r.misfit,
-        parallax: r.parallax,
-        ...(r.homography === null && predictedOverlaps.has(`${i}:${j}`) ? { predictedOverlap: predictedOverlaps.get(`${i}:${j}`) } : {}),
-        sharpnessRatio: r.sharpness?.ratio ?? null,
-        sharpnessByDirection: r.sharpness ? { horizontal: r.sharpness.byDirection[0], vertical: r.sharpness.byDirection[2], fallingDiagonal: r.sharpness.byDirection[1], risingDiagonal: r.sharpness.byDirection[3] } : null,
-        sharpnessBlocks: r.sharpness?.blocks ?? null,
-      };
+      const shiftPx = full && kind === 'bracket' ? (bracketShift(full.points, sa.fullWidth, sa.fullHeight, focalOf(i, geometry) ?? NaN) ?? cornerShift(full.h, sa.fullWidth, sa.fullHeight)) : null;
+      const pair = pairMeasure(name(i), name(j), kind, r, { homography: h, scale, shiftPx, predictedOverlap: predictedOverlaps.get(`${i}:${j}`) });
       return { pair, tiePoints: full ? { a: name(i), b: name(j), points: full.points } : null };
     }
 
     function frameMeasureOf(k: number): FrameMeasure {
       const f = frames[k]!;
-      return {
-        file: f.file.name,
-        width: f.summary.fullWidth,
-        height: f.summary.fullHeight,
-        captureTime: f.exif.captureTime,
-        settings: f.exif.settings,
-        sharpness: f.summary.sharpness,
-        keypoints: f.summary.keypoints,
-        fingerprint: f.summary.fingerprint,
-      };
+      return frameMeasure(f.file.name, f.summary, f.exif);
     }
 
     /** The measurements so far: frames of finalised stations, the stations, the pairs measured yet. */
@@ -804,14 +764,7 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
       });
       const inStations = stations.flatMap((s) => s.members).sort((p, q) => p - q);
       const frameMeasures: FrameMeasure[] = inStations.map(frameMeasureOf);
-      const stationMeasures: StationMeasure[] = stations.map((st, s) => ({
-        index: s,
-        frames: st.members.map(name),
-        reference: name(st.reference),
-        evOffsets: st.offsets,
-        groupedBy: st.groupedBy,
-      }));
-      return { analysis: { folder, frames: frameMeasures, stations: stationMeasures, pairs, skipped: [...skipped, ...[...decodeSkips].sort((p, q) => p.k - q.k).map((d) => d.skip)], rawPlusJpeg: card.rawPlusJpeg, sweepDeg: geometry?.horizontalDeg ?? null, geometry }, tiePoints, peakFramesHeld: gate.peak };
+      return { analysis: { folder, frames: frameMeasures, stations: stationMeasures(stations, name), pairs, skipped: skipsInOrder(skipped, decodeSkips), rawPlusJpeg: card.rawPlusJpeg, sweepDeg: geometry?.horizontalDeg ?? null, geometry }, tiePoints, peakFramesHeld: gate.peak };
     }
   } finally {
     if (!options.pool) await pool.destroy();
