@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { frameMeasure, pairMeasure, skipsInOrder, stationMeasures } from '../src/core/check-report.js';
+import { frameMeasure, pairMeasure, skipsInOrder, stationMeasures, tiePointsAtFullResolution } from '../src/core/check-report.js';
 import type { PairAnalysis } from '../src/core/pair-analysis.js';
 
 const matched: PairAnalysis = {
@@ -61,5 +61,15 @@ describe('skipsInOrder', () => {
     expect(skipsInOrder(['x', 'y'], decode)).toEqual(['x', 'y', 'b', 'c', 'e']);
     // The list given is left as it was.
     expect(decode.map((d) => d.k)).toEqual([5, 1, 3]);
+  });
+});
+
+describe('tiePointsAtFullResolution', () => {
+  it('maps each frame by its own scale with pixel centres at integers (x_full = (x_an + 0.5) * s - 0.5, resolution.ts)', () => {
+    const a = { fullWidth: 6000, fullHeight: 4000, anWidth: 1500, anHeight: 1000, keypoints: 0, sharpness: 0, fingerprint: '' };
+    const b = { ...a, fullWidth: 3000, fullHeight: 2000 };
+    const full = tiePointsAtFullResolution(Float32Array.of(0, 0, 0, 0, 10, 20, 30, 40), a, b);
+    // a: scale 4, offset 1.5; b: scale 2, offset 0.5.
+    expect(Array.from(full)).toEqual([1.5, 1.5, 0.5, 0.5, 41.5, 81.5, 60.5, 80.5]);
   });
 });

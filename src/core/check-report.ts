@@ -3,6 +3,7 @@
  * from analyses already mapped to full resolution. Pure: the check in src/main gathers the inputs.
  */
 import type { PairAnalysis } from './pair-analysis.js';
+import { analysisToFull } from './resolution.js';
 import type { FrameMeasure, FrameSettings, PairKind, PairMeasure, StationMeasure } from './report.js';
 
 /** What the report keeps of a decoded frame. */
@@ -87,4 +88,18 @@ export function stationMeasures(stations: readonly PlannedStation[], name: (k: n
 /** Skips found while decoding, in shooting order (k) whichever decode finished first, after the skips found before decoding. */
 export function skipsInOrder<S>(before: readonly S[], decodeSkips: readonly { readonly k: number; readonly skip: S }[]): S[] {
   return [...before, ...[...decodeSkips].sort((p, q) => p.k - q.k).map((d) => d.skip)];
+}
+
+/** Tie points xa, ya, xb, yb from analysis pixels of each frame to its full-resolution pixels (pixel centres at integers). */
+export function tiePointsAtFullResolution(tiePoints: Float32Array, a: FrameSummary, b: FrameSummary): Float64Array {
+  const fa = analysisToFull(a.fullWidth, a.fullHeight, a.anWidth, a.anHeight);
+  const fb = analysisToFull(b.fullWidth, b.fullHeight, b.anWidth, b.anHeight);
+  const points = new Float64Array(tiePoints.length);
+  for (let k = 0; k < tiePoints.length; k += 4) {
+    points[k] = fa[0] * tiePoints[k] + fa[2];
+    points[k + 1] = fa[4] * tiePoints[k + 1] + fa[5];
+    points[k + 2] = fb[0] * tiePoints[k + 2] + fb[2];
+    points[k + 3] = fb[4] * tiePoints[k + 3] + fb[5];
+  }
+  return points;
 }

@@ -29,7 +29,7 @@ import type { ShotPreference } from '../common/api.js';
 import { oneFilePerShot } from './shot-pairs.js';
 import { FrameGate, inOrder, slots } from './concurrency.js';
 import type { FrameSummary, PlannedStation } from '../core/check-report.js';
-import { frameMeasure, pairMeasure, skipsInOrder, stationMeasures } from '../core/check-report.js';
+import { frameMeasure, pairMeasure, skipsInOrder, stationMeasures, tiePointsAtFullResolution } from '../core/check-report.js';
 import { kindInRows, keepClosure, mayHaveClosed, otherReferencePairs, sameViewOtherExposure, showsAnotherView, tryRowClosure, tryTurnClosure } from '../core/check-plan.js';
 import { median } from '../core/median.js';
 
@@ -698,16 +698,7 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
       const sa = frames[i]!.summary, sb = frames[j]!.summary;
       const { h, scale } = fullResolution(r, sa, sb);
       if (!h) return null;
-      const fa = analysisToFull(sa.fullWidth, sa.fullHeight, sa.anWidth, sa.anHeight);
-      const fb = analysisToFull(sb.fullWidth, sb.fullHeight, sb.anWidth, sb.anHeight);
-      const points = new Float64Array(r.tiePoints.length);
-      for (let k = 0; k < r.tiePoints.length; k += 4) {
-        points[k] = fa[0] * r.tiePoints[k] + fa[2];
-        points[k + 1] = fa[4] * r.tiePoints[k + 1] + fa[5];
-        points[k + 2] = fb[0] * r.tiePoints[k + 2] + fb[2];
-        points[k + 3] = fb[4] * r.tiePoints[k + 3] + fb[5];
-      }
-      return { h, scale, points };
+      return { h, scale, points: tiePointsAtFullResolution(r.tiePoints, sa, sb) };
     }
 
     /** Station rotations, coverage and closure from the given matched pairs (frames' indices). */
