@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import {
-  bracketMinEvDiff, bracketMinOverlap, closingTurnDeg, keepClosure, kindInRows, mayHaveClosed, nearFullTurnDeg, otherReferencePairs,
-  sameViewMaxShiftFraction, sameViewOtherExposure, showsAnotherView, tryRowClosure, tryTurnClosure,
+  bracketMinEvDiff, bracketMinOverlap, closingTurnDeg, estimatedTurnDeg, keepClosure, kindInRows, mayHaveClosed, nearFullTurnDeg, otherReferencePairs,
+  sameViewMaxShiftFraction, sameViewOtherExposure, sequenceExifFocal, showsAnotherView, tryRowClosure, tryTurnClosure,
 } from '../src/core/check-plan.js';
 
 /** A pure translation by (tx, ty) as a row-major 3x3 homography. */
@@ -97,5 +97,27 @@ describe('the pair plan: further pairs of reference frames', () => {
   it('has no candidates for two stations or fewer', () => {
     expect(otherReferencePairs([4, 8], [])).toEqual([]);
     expect(otherReferencePairs([], [])).toEqual([]);
+  });
+});
+
+describe('the turn estimate for a chain with gaps', () => {
+  it('adds the median measured turn for each failed pair and one frame width', () => {
+    // Measured 30, 40, 35 (median 35), two pairs failed, a frame 50 deg wide: 105 + 70 + 50.
+    expect(estimatedTurnDeg([30, 40, 35], 2, 50)).toBe(225);
+  });
+
+  it('adds nothing for failed pairs when no turn was measured', () => {
+    expect(estimatedTurnDeg([], 3, 60)).toBe(60);
+  });
+});
+
+describe('one EXIF focal length for the set', () => {
+  it('takes the median 35 mm equivalent, in pixels of the long side over the 36 mm frame width', () => {
+    expect(sequenceExifFocal([24, 35, 35], 6000, 4000)).toEqual({ exifFocal35mm: 35, exifFocalPx: (35 / 36) * 6000 });
+    expect(sequenceExifFocal([50], 2000, 3000).exifFocalPx).toBeCloseTo((50 / 36) * 3000, 9);
+  });
+
+  it('gives none when any station lacks it', () => {
+    expect(sequenceExifFocal([35, null, 35], 6000, 4000)).toEqual({ exifFocal35mm: null, exifFocalPx: null });
   });
 });

@@ -5,6 +5,8 @@
  */
 import type { PairKind } from './report.js';
 import { cornerShift } from './pair-analysis.js';
+import { median } from './median.js';
+import { focalPxFrom35mm } from './sweep.js';
 
 /** Frames covering this much of the horizon may have been meant as a full turn: the closure pair is tried (common practice). */
 export const nearFullTurnDeg = 300;
@@ -75,4 +77,19 @@ export function otherReferencePairs(references: readonly number[], planned: read
       if (!known.has(`${a}:${b}`) && !known.has(`${b}:${a}`)) others.push([a, b]);
     }
   return others;
+}
+
+/**
+ * How far the camera turned over a chain with gaps: the turns measured, the typical (median) turn
+ * for each pair that failed, and one frame's field of view for the frame at the end.
+ */
+export function estimatedTurnDeg(turnsDeg: readonly number[], failedPairs: number, frameFovDeg: number): number {
+  return turnsDeg.reduce((t, x) => t + x, 0) + failedPairs * (turnsDeg.length ? median(turnsDeg) : 0) + frameFovDeg;
+}
+
+/** One focal length for the set from EXIF: the median 35 mm equivalent, only where every station's reference has one; in pixels of a width x height frame. */
+export function sequenceExifFocal(focal35PerStation: readonly (number | null)[], width: number, height: number): { exifFocal35mm: number | null; exifFocalPx: number | null } {
+  const exifFocal35mm = focal35PerStation.every((f) => f) ? median(focal35PerStation as number[]) : null;
+  const exifFocalPx = exifFocal35mm !== null ? focalPxFrom35mm(exifFocal35mm, width, height) : null;
+  return { exifFocal35mm, exifFocalPx };
 }

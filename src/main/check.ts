@@ -30,8 +30,7 @@ import { oneFilePerShot } from './shot-pairs.js';
 import { FrameGate, inOrder, slots } from './concurrency.js';
 import type { FrameSummary, PlannedStation } from '../core/check-report.js';
 import { frameMeasure, pairMeasure, skipsInOrder, stationMeasures, tiePointsAtFullResolution } from '../core/check-report.js';
-import { kindInRows, keepClosure, mayHaveClosed, otherReferencePairs, sameViewOtherExposure, showsAnotherView, tryRowClosure, tryTurnClosure } from '../core/check-plan.js';
-import { median } from '../core/median.js';
+import { estimatedTurnDeg, sequenceExifFocal, kindInRows, keepClosure, mayHaveClosed, otherReferencePairs, sameViewOtherExposure, showsAnotherView, tryRowClosure, tryTurnClosure } from '../core/check-plan.js';
 
 export interface CheckProgress {
   readonly phase: 'frames' | 'pairs';
@@ -637,7 +636,7 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
         const r = m && relativeRotation(m.h, chain.focalPx, sizes[stationOf[p.i]], sizes[stationOf[p.j]]);
         return r ? [rotationAngleOf(r)] : [];
       });
-      const turned = turns.reduce((t, x) => t + x, 0) + failed.length * (turns.length ? median(turns) : 0) + lensFieldOfViewDeg(sizes[0].width, chain.focalPx, chain.distortion ?? { k1: 0, k2: 0 });
+      const turned = estimatedTurnDeg(turns, failed.length, lensFieldOfViewDeg(sizes[0].width, chain.focalPx, chain.distortion ?? { k1: 0, k2: 0 }));
       const closure = { i: stations[stations.length - 1].reference, j: stations[0].reference };
       if (mayHaveClosed(turned) && !pairResults.has(`${closure.i}:${closure.j}`)) {
         pairResults.set(`${closure.i}:${closure.j}`, await pool.analysePair(await transientData(closure.i), await transientData(closure.j), undefined, signal));
@@ -713,8 +712,7 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
       const sizes = stations.map((st) => ({ width: frames[st.reference]!.summary.fullWidth, height: frames[st.reference]!.summary.fullHeight }));
       // One focal length for the set: the EXIF 35 mm equivalents, where every station has one.
       const f35 = stations.map((st) => frames[st.reference]!.exif.settings.focalLength35);
-      const exifFocal35mm = f35.every((f) => f) ? median(f35 as number[]) : null;
-      const exifFocalPx = exifFocal35mm !== null ? focalPxFrom35mm(exifFocal35mm, sizes[0].width, sizes[0].height) : null;
+      const { exifFocal35mm, exifFocalPx } = sequenceExifFocal(f35, sizes[0].width, sizes[0].height);
       return sequenceGeometry({ sizes, exifFocalPx, exifFocal35mm, links, closure: closure ? link(closure) : null });
     }
 
