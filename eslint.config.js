@@ -4,6 +4,8 @@
 //   src/common    the contract between main and the page (API types, channel names, export formats):
 //                 imports only types from core; no Node, Electron or DOM. main and renderer import it.
 //   src/renderer  the page: may import core and common; no Node module and no Electron (type-only imports aside).
+//   tools         code the tests and the bench both use (fixture paths, frame making, file writers,
+//                 the OpenCV loader); ships nowhere. tools and bench never import from test/.
 // Every source file must belong to a layer; a file no rule classifies fails the lint. Do not relax
 // these rules to make a file pass: move the code to the layer it belongs to.
 import js from '@eslint/js';
@@ -18,14 +20,14 @@ const layers = {
   common: ['src/common/**/*.ts'],
   main: ['src/main/**/*.ts', 'src/main/**/*.cts'],
   renderer: ['src/renderer/**/*.ts'],
-  tests: ['test/**/*.ts', 'bench/**/*.ts'],
+  tests: ['test/**/*.ts', 'bench/**/*.ts', 'tools/**/*.ts'],
   tooling: ['*.config.js', '*.config.ts', 'bin/**/*.js', '.ci/**/*.js', 'scripts/**/*.ts'],
 };
 
 const layering = {
   rules: {
     unclassified: {
-      meta: { type: 'problem', messages: { none: 'This file belongs to no layer (see eslint.config.js): move it into src/core, src/main, src/renderer, test or bench.' } },
+      meta: { type: 'problem', messages: { none: 'This file belongs to no layer (see eslint.config.js): move it into src/core, src/main, src/renderer, test, bench or tools.' } },
       create(context) {
         return { Program(node) { context.report({ node, messageId: 'none' }); } };
       },
@@ -92,6 +94,12 @@ export default tseslint.config(
   {
     files: [...layers.tests, ...layers.tooling],
     languageOptions: { globals: { ...globals.node } },
+  },
+  {
+    files: ['bench/**/*.ts', 'tools/**/*.ts'],
+    rules: {
+      'no-restricted-imports': ['error', { patterns: [{ group: ['../test/**', '../../test/**'], message: 'bench/ and tools/ do not import test code: move what both use to tools/.' }] }],
+    },
   },
   {
     files: ['**/*.ts', '**/*.cts', '**/*.js'],

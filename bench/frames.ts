@@ -6,7 +6,8 @@ import { invert, multiply } from '../src/core/homography.js';
 import type { GrayImage } from '../src/core/image.js';
 import { createRandom } from '../src/core/random.js';
 import { warpBilinear } from '../src/core/warp.js';
-import { externalFixture, toCameraFrame } from '../test/helpers/images.js';
+import { toCameraFrame } from '../tools/images.js';
+import { externalFixture } from '../tools/paths.js';
 
 export async function benchPair(): Promise<{ a: GrayImage; b: GrayImage; truth: Float64Array; label: string }> {
   const { data, info } = await sharp(externalFixture('leuvenA.jpg')).resize(2100, 1574, { kernel: 'lanczos3' }).greyscale().raw().toBuffer({ resolveWithObject: true });

@@ -1,8 +1,8 @@
 // Reading RAW frames through their embedded previews, beside reading the same picture as a JPEG
 // file (RAW issue: speed of preview extraction in the benchmark). Builds, once, DNG-shaped files
-// (test/helpers/tiff-writer.ts) around the 24 frames of the short sweep, each with 30 MB of stand-in
+// (tools/tiff-writer.ts) around the 24 frames of the short sweep, each with 30 MB of stand-in
 // sensor data before the preview as a RAW file has, and CR3 and RAF files
-// (test/helpers/raw-containers.ts) with their 30 MB after it, as those formats store it; decodes
+// (tools/raw-containers.ts) with their 30 MB after it, as those formats store it; decodes
 // all four sets to the analysis size on one thread, side by side in one run.
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
@@ -10,8 +10,8 @@ import sharp from 'sharp';
 import { defaultMaxSide } from '../src/main/check.js';
 import { decodeForAnalysis } from '../src/main/decode.js';
 import { readRawPreview } from '../src/main/raw-file.js';
-import { cr3Around, rafAround } from '../test/helpers/raw-containers.js';
-import { writeTiff } from '../test/helpers/tiff-writer.js';
+import { cr3Around, rafAround } from '../tools/raw-containers.js';
+import { writeTiff } from '../tools/tiff-writer.js';
 import { benchCache, shortSweep } from './sequences.js';
 import { framesOf } from './whole-check.js';
 

@@ -14,8 +14,8 @@ import { buildPyramid } from '../src/core/pyramid.js';
 import { createScratchPool } from '../src/core/scratch.js';
 import { refineTiePoints } from '../src/core/tie-point-refine.js';
 import { checkFeatureParams as params } from '../src/core/pair-analysis.js';
-import { meanCornerError } from '../test/helpers/images.js';
-import { loadOpenCV } from '../test/helpers/opencv.js';
+import { meanCornerError } from '../tools/images.js';
+import { loadOpenCV } from '../tools/opencv.js';
 import { benchPair } from './frames.js';
 import { cvDetect, cvFree, cvHomography, cvMatch } from './opencv-pipeline.js';
 

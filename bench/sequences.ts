@@ -5,7 +5,7 @@
 import { existsSync, mkdirSync, readdirSync, symlinkSync } from 'node:fs';
 import { join } from 'node:path';
 import { writeDemoShoot } from '../src/main/demo-writer.js';
-import { projectRoot } from '../test/helpers/cli.js';
+import { projectRoot } from '../tools/paths.js';
 
 export const benchCache = join(projectRoot, '.bench-cache');
 

@@ -8,7 +8,7 @@ import { join } from 'node:path';
 import sharp from 'sharp';
 import type { GrayImage } from '../src/core/image.js';
 import { decodeForAnalysis } from '../src/main/decode.js';
-import { projectRoot } from '../test/helpers/cli.js';
+import { projectRoot } from '../tools/paths.js';
 import { benchCache } from './sequences.js';
 
 export const framesOf = (folder: string): string[] => readdirSync(folder).filter((f) => f.endsWith('.JPG')).sort();

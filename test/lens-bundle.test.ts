@@ -19,7 +19,8 @@ import { createRandom } from '../src/core/random.js';
 import type { Analysis, FrameSettings } from '../src/core/report.js';
 import { defaultBudget } from '../src/core/report.js';
 import type { FrameSize, RotationLink } from '../src/core/rotations.js';
-import { chainRotations, mul3, relativeRotation, rotationAngleOf, rotationOfVector, transpose3 } from '../src/core/rotations.js';
+import { chainRotations, relativeRotation, rotationAngleOf, rotationOfVector } from '../src/core/rotations.js';
+import { multiply, transpose } from '../src/core/matrix3.js';
 import { sequenceGeometry, solveSequence } from '../src/core/sequence-geometry.js';
 import { judge } from '../src/core/verdicts.js';
 
@@ -34,7 +35,7 @@ function turn(stations: number, seed: number): Pose[] {
 }
 
 /** Station rotations as the sequence sees them: R_s = C_s C_0^T (station 0's camera is the world). */
-const truthRotations = (poses: Pose[]): Float64Array[] => poses.map((p) => mul3(worldToCamera(p), transpose3(worldToCamera(poses[0]))));
+const truthRotations = (poses: Pose[]): Float64Array[] => poses.map((p) => multiply(worldToCamera(p), transpose(worldToCamera(poses[0]))));
 
 /**
  * Tie points between stations i and j: a grid of directions seen by i, projected through the lens
@@ -43,7 +44,7 @@ const truthRotations = (poses: Pose[]): Float64Array[] => poses.map((p) => mul3(
  */
 function link(rots: Float64Array[], i: number, j: number, d: RadialDistortion, noise: number, seed: number, fi = fTrue, fj = fTrue): RotationLink | null {
   const rnd = createRandom(seed);
-  const rel = mul3(rots[j], transpose3(rots[i]));
+  const rel = multiply(rots[j], transpose(rots[i]));
   const pts: number[] = [];
   const project = (x: number, y: number, z: number, f: number): [number, number] | null => {
     if (z <= 0) return null;
@@ -77,7 +78,7 @@ function neighbours(rots: Float64Array[], d: RadialDistortion, noise: number, fo
   return rots.slice(1).map((_, k) => link(rots, k, k + 1, d, noise, 100 + k, focal(k), focal(k + 1))!);
 }
 
-const angleBetween = (a: Float64Array, b: Float64Array): number => rotationAngleOf(mul3(a, transpose3(b)));
+const angleBetween = (a: Float64Array, b: Float64Array): number => rotationAngleOf(multiply(a, transpose(b)));
 
 describe("Brown's radial model", () => {
   it('undistorts what it distorts, and refuses a lens that folds back', () => {
@@ -141,7 +142,7 @@ describe('the bundle adjustment with a lens term', () => {
     // The pinhole chain from the EXIF focal length, as before: the closure pair disagrees with it by far more.
     const chained = chainRotations(12, links, exifOff, sizes);
     const measured = linkRotation(closure, sizes, exifOff, { k1: 0, k2: 0 })!;
-    const pinholeMiss = angleBetween(measured, mul3(chained[0]!, transpose3(chained[11]!)));
+    const pinholeMiss = angleBetween(measured, multiply(chained[0]!, transpose(chained[11]!)));
     console.log(`k1 -0.08, k2 0.01, EXIF 3 % off: misclosure ${g.closure!.misclosureDeg!.toFixed(3)} deg refined, ${pinholeMiss.toFixed(1)} deg pinhole chain; f ${g.focalPx.toFixed(1)} px (truth ${fTrue.toFixed(1)}), k1 ${g.distortion!.k1.toFixed(4)}, rms ${g.rmsPx.toFixed(2)} px`);
     expect(pinholeMiss).toBeGreaterThan(2);
   });
@@ -168,7 +169,7 @@ describe('the bundle adjustment with a lens term', () => {
     // match or a camera that moved. A focal length 0.8 or 2.7 % shorter would close the turn.
     const d = { k1: -0.08, k2: 0 };
     for (const bend of [3, 10]) {
-      const moved = rots.map((r, s) => (s === 0 ? mul3(rotationOfVector(0, (bend * Math.PI) / 180, 0), r) : r));
+      const moved = rots.map((r, s) => (s === 0 ? multiply(rotationOfVector(0, (bend * Math.PI) / 180, 0), r) : r));
       const g = sequenceGeometry({ sizes, exifFocalPx: exifOff, links: neighbours(rots, d, 0.3), closure: link(moved, 11, 0, d, 0.3, 999) })!;
       expect(g.closure!.closes, `${bend} degrees`).toBe(false);
       expect(Math.abs(g.closure!.misclosureDeg! - bend), `${bend} degrees`).toBeLessThan(0.5);
@@ -235,7 +236,7 @@ describe('a full turn at 28 mm through k1 = -0.15 (the photo-wall corpus geometr
    */
   function wallLink(rots: Float64Array[], i: number, j: number, d: RadialDistortion, noise: number, seed: number): RotationLink {
     const rnd = createRandom(seed);
-    const rel = mul3(rots[j], transpose3(rots[i]));
+    const rel = multiply(rots[j], transpose(rots[i]));
     const pts: number[] = [];
     const kept: number[] = [];
     const top = 60 + rnd.next() * (h - 620);

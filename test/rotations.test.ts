@@ -8,7 +8,8 @@ import { cameraModel, focalLengthPx, rotationHomography } from '../src/core/came
 import { project } from '../src/core/homography.js';
 import { createRandom } from '../src/core/random.js';
 import type { RotationLink } from '../src/core/rotations.js';
-import { chainRotations, focalFromHomography, mul3, rotationAngleOf, stationPoses, transpose3 } from '../src/core/rotations.js';
+import { chainRotations, focalFromHomography, rotationAngleOf, stationPoses } from '../src/core/rotations.js';
+import { multiply, transpose } from '../src/core/matrix3.js';
 import { bundleAdjust } from '../src/core/lens-bundle.js';
 
 const camera = cameraModel(3000, 2000, 35);
@@ -68,13 +69,13 @@ describe('camera rotations from pair homographies', () => {
     const closure = link(poses, 11, 0, 0.3, 99);
     const r = chainRotations(12, links, f, sizes);
     const measured = chainRotations(2, [{ ...closure, i: 0, j: 1 }], f, [size, size])[1]!;
-    const predicted = mul3(r[0]!, transpose3(r[11]!));
-    expect(rotationAngleOf(mul3(measured, transpose3(predicted)))).toBeLessThan(0.05);
+    const predicted = multiply(r[0]!, transpose(r[11]!));
+    expect(rotationAngleOf(multiply(measured, transpose(predicted)))).toBeLessThan(0.05);
     // One neighbour homography a degree off in yaw: the chain misses by that degree.
     const bent = poses.map((p, k) => (k >= 6 ? { ...p, yawDeg: p.yawDeg + 1 } : p));
     const off = links.map((l, k) => (k === 5 ? { ...l, homography: rotationHomography(camera, poses[5], camera, bent[6]) } : l));
     const r2 = chainRotations(12, off, f, sizes);
-    expect(rotationAngleOf(mul3(measured, transpose3(mul3(r2[0]!, transpose3(r2[11]!)))))).toBeGreaterThan(0.9);
+    expect(rotationAngleOf(multiply(measured, transpose(multiply(r2[0]!, transpose(r2[11]!)))))).toBeGreaterThan(0.9);
   });
 
   it('leaves stations no matched pair reaches without a rotation', () => {

@@ -7,7 +7,8 @@
  * sky) would swing the far corners instead. The turn is the least-squares rotation between the tie
  * points' rays (Kabsch; Umeyama, IEEE PAMI 1991): the orthogonal polar factor of sum(r_b r_a^T).
  */
-import { mul3, nearestRotation } from './rotations.js';
+import { nearestRotation } from './rotations.js';
+import { multiply } from './matrix3.js';
 
 export function bracketShift(points: ArrayLike<number>, width: number, height: number, focalPx: number): number | null {
   const n = Math.floor(points.length / 4);
@@ -26,7 +27,7 @@ export function bracketShift(points: ArrayLike<number>, width: number, height: n
   const rot = nearestRotation(m);
   let worst = 0;
   for (const [x, y] of [[0, 0], [width - 1, 0], [width - 1, height - 1], [0, height - 1]]) {
-    const d = mul3(rot, Float64Array.of((x - cx) / focalPx, 0, 0, (y - cy) / focalPx, 0, 0, 1, 0, 0));
+    const d = multiply(rot, Float64Array.of((x - cx) / focalPx, 0, 0, (y - cy) / focalPx, 0, 0, 1, 0, 0));
     if (!(d[6] > 0)) return null;
     const u = (focalPx * d[0]) / d[6] + cx, v = (focalPx * d[3]) / d[6] + cy;
     worst = Math.max(worst, Math.hypot(u - x, v - y));

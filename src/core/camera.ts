@@ -1,5 +1,6 @@
 import type { Homography } from './homography.js';
 import { invert, multiply } from './homography.js';
+import { normalise, transpose } from './matrix3.js';
 
 /**
  * A pinhole camera rotating about its centre (the demo shoot's virtual camera).
@@ -98,10 +99,6 @@ export function worldToCamera(p: Pose): Float64Array {
   );
 }
 
-function transpose3(m: ArrayLike<number>): Float64Array {
-  return Float64Array.of(m[0], m[3], m[6], m[1], m[4], m[7], m[2], m[5], m[8]);
-}
-
 /**
  * The homography from full-resolution pixels of frame a to those of frame b for a camera rotating
  * about its centre: H_ab = K_b R_b R_a^-1 K_a^-1 (Hartley & Zisserman, Multiple View Geometry, 2nd
@@ -113,10 +110,7 @@ function transpose3(m: ArrayLike<number>): Float64Array {
 export function rotationHomography(ca: CameraModel, pa: Pose, cb: CameraModel, pb: Pose): Homography {
   const kaInv = invert(intrinsics(ca));
   if (!kaInv) throw new TypeError(`Expected an invertible camera for ca but received ${JSON.stringify(ca)}`);
-  const h = multiply(multiply(intrinsics(cb), multiply(worldToCamera(pb), transpose3(worldToCamera(pa)))), kaInv);
-  const s = Math.abs(h[8]) > 1e-12 ? Math.abs(h[8]) : Math.hypot(...h);
-  for (let i = 0; i < 9; i++) h[i] /= s;
-  return h;
+  return normalise(multiply(multiply(intrinsics(cb), multiply(worldToCamera(pb), transpose(worldToCamera(pa)))), kaInv));
 }
 
 /** The world direction (not normalised) seen by pixel (x, y) of a camera at pose p. */

@@ -41,6 +41,8 @@ export function exposureDifference(a: GrayImage, b: GrayImage, h: ArrayLike<numb
       const u = (h[0] * x + h[1] * y + h[2]) / w;
       const v = (h[3] * x + h[4] * y + h[5]) / w;
       if (!(u >= 0 && v >= 0 && u < wb - 1 && v < hb - 1)) continue;
+      // Not the shared sampler (bilinear.ts): the clip test needs each of the four neighbours, and the
+      // neighbours are interpolated after their sRGB decode, so the loop reads them itself.
       const x0 = u | 0, y0 = v | 0;
       const tx = u - x0, ty = v - y0;
       const o = y0 * wb + x0;

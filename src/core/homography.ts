@@ -1,5 +1,6 @@
 import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
 import { solveAugmented } from './linear-solve.js';
+import { identity, invert, multiply, normalise, project } from './matrix3.js';
 
 /** A 3x3 homography, row-major, mapping (x, y, 1) of frame a to frame b up to scale. */
 export type Homography = Float64Array;
@@ -15,47 +16,8 @@ export interface Correspondences {
   readonly weight?: Float64Array;
 }
 
-export function identity(): Homography {
-  return Float64Array.of(1, 0, 0, 0, 1, 0, 0, 0, 1);
-}
-
-export function multiply(p: ArrayLike<number>, q: ArrayLike<number>): Homography {
-  const r = new Float64Array(9);
-  for (let i = 0; i < 3; i++)
-    for (let j = 0; j < 3; j++) r[i * 3 + j] = p[i * 3] * q[j] + p[i * 3 + 1] * q[3 + j] + p[i * 3 + 2] * q[6 + j];
-  return r;
-}
-
-export function invert(h: ArrayLike<number>): Homography | null {
-  const [a, b, c, d, e, f, g, k, l] = Array.from(h);
-  const A = e * l - f * k, B = -(d * l - f * g), C = d * k - e * g;
-  const det = a * A + b * B + c * C;
-  if (!Number.isFinite(det) || Math.abs(det) < 1e-300) return null;
-  const inv = Float64Array.of(
-    A, -(b * l - c * k), b * f - c * e,
-    B, a * l - c * g, -(a * f - c * d),
-    C, -(a * k - b * g), a * e - b * d,
-  );
-  for (let i = 0; i < 9; i++) inv[i] /= det;
-  return inv;
-}
-
-/**
- * Scales h so that |h[8]| = 1 (when h[8] is not near zero), for comparison and reporting. The sign
- * is kept: it says on which side of the camera the data lie (see orientPositive).
- */
-export function normalise(h: ArrayLike<number>): Homography {
-  const out = Float64Array.from(h);
-  const s = Math.abs(out[8]) > 1e-12 ? Math.abs(out[8]) : Math.hypot(...out);
-  for (let i = 0; i < 9; i++) out[i] /= s;
-  return out;
-}
-
-/** Maps (x, y) through h; returns [x', y', w] with w the homogeneous scale before division. */
-export function project(h: ArrayLike<number>, x: number, y: number): [number, number, number] {
-  const w = h[6] * x + h[7] * y + h[8];
-  return [(h[0] * x + h[1] * y + h[2]) / w, (h[3] * x + h[4] * y + h[5]) / w, w];
-}
+// The 3x3 operations live in matrix3.ts; homography code and its callers use them under these names.
+export { identity, invert, multiply, normalise, project };
 
 /** The similarity T of Hartley's normalisation: centroid to the origin, mean distance sqrt(2). */
 export function normalisingTransform(xs: Float64Array, ys: Float64Array, idx: ArrayLike<number> | null, count: number): Homography {

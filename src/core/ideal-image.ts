@@ -4,6 +4,7 @@
  * Two such frames of a camera turning about its centre are related by one homography exactly, so
  * what still does not line up between them is parallax or movement, not the lens.
  */
+import { sampleBilinear } from './bilinear.js';
 import type { FloatImage, GrayImage } from './image.js';
 import type { RadialDistortion } from './lens.js';
 import { distortionFactor, undistortRadius } from './lens.js';
@@ -40,14 +41,7 @@ export function idealImage(img: GrayImage, focalPx: number, d: RadialDistortion)
       }
       const g = distortionFactor(r2, d.k1, d.k2);
       const u = cx + focalPx * xu * g, v = cy + focalPx * yu * g;
-      if (!(u >= 0 && v >= 0 && u <= w - 1 && v <= h - 1)) {
-        out[o] = NaN;
-        continue;
-      }
-      const x0 = Math.min(u | 0, w - 2), y0 = Math.min(v | 0, h - 2);
-      const tx = u - x0, ty = v - y0, q = y0 * w + x0;
-      const top = s[q] + tx * (s[q + 1] - s[q]);
-      out[o] = top + ty * (s[q + w] + tx * (s[q + w + 1] - s[q + w]) - top);
+      out[o] = sampleBilinear(s, w, h, u, v);
     }
   }
   return { width: w, height: h, data: out };

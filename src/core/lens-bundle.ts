@@ -18,7 +18,8 @@ import { Matrix, SingularValueDecomposition } from 'ml-matrix';
 import type { RadialDistortion } from './lens.js';
 import { monotonicUpTo, undistortRadius } from './lens.js';
 import type { FrameSize, Rotation, RotationLink } from './rotations.js';
-import { mul3, nearestRotation, rotationOfVector, transpose3 } from './rotations.js';
+import { nearestRotation, rotationOfVector } from './rotations.js';
+import { multiply, transpose } from './matrix3.js';
 
 export interface BundleOptions {
   /** Refine the focal length (else it stays at f0). */
@@ -181,7 +182,7 @@ export function bundleAdjust(initial: readonly (Rotation | null)[], links: reado
   const project = (li: number, ri: Rotation, rj: Rotation, lf: number, a1: number, a2: number, ideal: Float64Array, out: Float64Array): void => {
     const l = used[li], f = Math.exp(lf), pts = samples[li];
     const b = sizes[l.j];
-    const rel = mul3(rj, transpose3(ri));
+    const rel = multiply(rj, transpose(ri));
     const cxb = (b.width - 1) / 2, cyb = (b.height - 1) / 2;
     for (let k = 0, p = 0; p < pts.length; k += 2, p += 4) {
       const u = ideal[k], v = ideal[k + 1];
@@ -245,7 +246,7 @@ export function bundleAdjust(initial: readonly (Rotation | null)[], links: reado
         for (let axis = 0; axis < 3; axis++) {
           const w = [0, 0, 0];
           w[axis] = eps;
-          const moved = mul3(rotationOfVector(w[0], w[1], w[2]), rotations[s]!);
+          const moved = multiply(rotationOfVector(w[0], w[1], w[2]), rotations[s]!);
           project(li, which === 'i' ? moved : ri, which === 'j' ? moved : rj, logF, k1, k2, ideal, probe);
           column(index[s] + axis);
         }
@@ -299,7 +300,7 @@ export function bundleAdjust(initial: readonly (Rotation | null)[], links: reado
         lambda *= 10;
         continue;
       }
-      const next = rotations.map((r, s) => (r && index[s] >= 0 ? mul3(rotationOfVector(delta[index[s]], delta[index[s] + 1], delta[index[s] + 2]), r) : r));
+      const next = rotations.map((r, s) => (r && index[s] >= 0 ? multiply(rotationOfVector(delta[index[s]], delta[index[s] + 1], delta[index[s] + 2]), r) : r));
       const nextF = focalIndex >= 0 ? logF + delta[focalIndex] : logF;
       const nextK1 = k1Index >= 0 ? k1 + delta[k1Index] : k1;
       const nextK2 = k2Index >= 0 ? k2 + delta[k2Index] : k2;

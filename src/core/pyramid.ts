@@ -57,7 +57,11 @@ export function halve(src: FloatImage | GrayImage, out: Float32Array): FloatImag
   return { width: w, height: h, data: out.subarray(0, w * h) };
 }
 
-/** Bilinear resampling with pixel centres aligned (x_src = (x + 0.5) * sw / dw - 0.5). */
+/**
+ * Bilinear resampling with pixel centres aligned (x_src = (x + 0.5) * sw / dw - 0.5). Not the shared
+ * sampler (bilinear.ts) on purpose: every output pixel of a pyramid level needs a value, so positions
+ * up to half a pixel outside the outer centres are clamped to the edge instead of giving NaN.
+ */
 export function resampleBilinear(src: FloatImage, dst: FloatImage): void {
   const { width: sw, height: sh, data: s } = src;
   const { width: dw, height: dh, data: d } = dst;

@@ -13,6 +13,7 @@
  */
 import { Matrix, SingularValueDecomposition } from 'ml-matrix';
 import type { Homography } from './homography.js';
+import { determinant, multiply, transpose } from './matrix3.js';
 
 /** A 3x3 rotation matrix, row-major. */
 export type Rotation = Float64Array;
@@ -31,20 +32,6 @@ export interface RotationLink {
 export interface FrameSize {
   readonly width: number;
   readonly height: number;
-}
-
-export function mul3(a: ArrayLike<number>, b: ArrayLike<number>): Float64Array {
-  const o = new Float64Array(9);
-  for (let r = 0; r < 3; r++) for (let c = 0; c < 3; c++) o[3 * r + c] = a[3 * r] * b[c] + a[3 * r + 1] * b[3 + c] + a[3 * r + 2] * b[6 + c];
-  return o;
-}
-
-export function transpose3(a: ArrayLike<number>): Float64Array {
-  return Float64Array.of(a[0], a[3], a[6], a[1], a[4], a[7], a[2], a[5], a[8]);
-}
-
-function det3(m: ArrayLike<number>): number {
-  return m[0] * (m[4] * m[8] - m[5] * m[7]) - m[1] * (m[3] * m[8] - m[5] * m[6]) + m[2] * (m[3] * m[7] - m[4] * m[6]);
 }
 
 /** Rotation by the vector w (axis times angle in radians), Rodrigues' formula. */
@@ -70,7 +57,7 @@ export function rotationAngleOf(r: ArrayLike<number>): number {
 export function nearestRotation(m: ArrayLike<number>): Rotation {
   const svd = new SingularValueDecomposition(new Matrix([[m[0], m[1], m[2]], [m[3], m[4], m[5]], [m[6], m[7], m[8]]]));
   const u = svd.leftSingularVectors, v = svd.rightSingularVectors;
-  const flip = det3(u.mmul(v.transpose()).to1DArray()) < 0 ? -1 : 1;
+  const flip = determinant(u.mmul(v.transpose()).to1DArray()) < 0 ? -1 : 1;
   const d = Matrix.diag([1, 1, flip]);
   return Float64Array.from(u.mmul(d).mmul(v.transpose()).to1DArray());
 }
@@ -88,12 +75,12 @@ function intrinsicsInverse(f: number, size: FrameSize): Float64Array {
  * Returns it with its distance from the nearest rotation (Frobenius norm of M M^T - I).
  */
 function rotationPart(h: ArrayLike<number>, f: number, a: FrameSize, b: FrameSize): { m: Float64Array; error: number } | null {
-  const m = mul3(mul3(intrinsicsInverse(f, b), h), intrinsics(f, a));
-  const d = det3(m);
+  const m = multiply(multiply(intrinsicsInverse(f, b), h), intrinsics(f, a));
+  const d = determinant(m);
   if (!(Math.abs(d) > 1e-300)) return null;
   const s = Math.cbrt(d);
   for (let k = 0; k < 9; k++) m[k] /= s;
-  const mmt = mul3(m, transpose3(m));
+  const mmt = multiply(m, transpose(m));
   let e = 0;
   for (let k = 0; k < 9; k++) e += (mmt[k] - (k % 4 === 0 ? 1 : 0)) ** 2;
   return { m, error: Math.sqrt(e) };
@@ -223,10 +210,10 @@ export function chainTree(stations: number, links: readonly RotationLink[], f: n
       tree.push(l);
       // R_j = R_ij R_i, and R_i = R_ij^T R_j.
       if (forward) {
-        out[l.j] = mul3(rel, out[s]!);
+        out[l.j] = multiply(rel, out[s]!);
         queue.push(l.j);
       } else {
-        out[l.i] = mul3(transpose3(rel), out[s]!);
+        out[l.i] = multiply(transpose(rel), out[s]!);
         queue.push(l.i);
       }
     }
@@ -300,5 +287,5 @@ export function stationPoses(rotations: readonly (Rotation | null)[]): (StationP
 
 /** The homography of a station pair from rotations and focal length (for tests and the coverage map). */
 export function homographyOfRotations(ri: Rotation, rj: Rotation, f: number, a: FrameSize, b: FrameSize): Homography {
-  return mul3(mul3(intrinsics(f, b), mul3(rj, transpose3(ri))), intrinsicsInverse(f, a));
+  return multiply(multiply(intrinsics(f, b), multiply(rj, transpose(ri))), intrinsicsInverse(f, a));
 }

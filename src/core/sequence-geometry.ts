@@ -10,7 +10,8 @@ import type { BundleResult } from './lens-bundle.js';
 import { bundleAdjust, linkRotation } from './lens-bundle.js';
 import type { SequenceGeometry } from './report.js';
 import type { FrameSize, Rotation, RotationLink } from './rotations.js';
-import { chainTree, focalFromHomography, mul3, rotationAngleOf, stationPoses, transpose3 } from './rotations.js';
+import { chainTree, focalFromHomography, rotationAngleOf, stationPoses } from './rotations.js';
+import { multiply, transpose } from './matrix3.js';
 import { median } from './median.js';
 
 export interface GeometryInput {
@@ -127,7 +128,7 @@ export function solveSequence(input: GeometryInput): SequenceSolution | null {
     const chain = bundleAdjust(lens.rotations, input.links, lens.focalPx, input.sizes, { refineFocal: false, distortionTerms: 0, distortion: lens.distortion, maxIterations: bundleIterations });
     const measured = linkRotation(c, input.sizes, lens.focalPx, lens.distortion);
     if (!measured || !chain.rotations[c.i] || !chain.rotations[c.j]) return null;
-    return { deg: rotationAngleOf(mul3(measured, transpose3(mul3(chain.rotations[c.j]!, transpose3(chain.rotations[c.i]!))))), rmsPx: chain.rmsPx };
+    return { deg: rotationAngleOf(multiply(measured, transpose(multiply(chain.rotations[c.j]!, transpose(chain.rotations[c.i]!))))), rmsPx: chain.rmsPx };
   };
   const underClosed = chainMiss(closed);
   const absorbedDeg = 360 * Math.abs(Math.log(closed.focalPx / first.fit.focalPx));

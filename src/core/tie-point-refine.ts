@@ -1,3 +1,4 @@
+import { sampleBilinear } from './bilinear.js';
 import type { GrayImage } from './image.js';
 import { project } from './homography.js';
 
@@ -17,17 +18,6 @@ export interface RefinedPoints {
   readonly by: Float64Array;
   /** Correlation of each point's best position, or -1 where it could not be refined. */
   readonly score: Float64Array;
-}
-
-function bilinear(img: GrayImage, x: number, y: number): number {
-  const { width: w, height: h, data } = img;
-  if (!(x >= 0 && y >= 0 && x < w - 1 && y < h - 1)) return NaN;
-  const x0 = x | 0, y0 = y | 0;
-  const tx = x - x0, ty = y - y0;
-  const o = y0 * w + x0;
-  const top = data[o] + tx * (data[o + 1] - data[o]);
-  const bottom = data[o + w] + tx * (data[o + w + 1] - data[o + w]);
-  return top + ty * (bottom - top);
 }
 
 /**
@@ -65,7 +55,9 @@ export function refineTiePoints(a: GrayImage, b: GrayImage, h: ArrayLike<number>
     let ok = true, mean = 0;
     for (let v = -r, k = 0; v <= r && ok; v++)
       for (let u = -r; u <= r; u++, k++) {
-        const val = bilinear(a, ax[i] + i00 * u + i01 * v, ay[i] + i10 * u + i11 * v);
+        const sx = ax[i] + i00 * u + i01 * v, sy = ay[i] + i10 * u + i11 * v;
+        // Kept from before the shared sampler: a patch reaching the last column or row is refused.
+        const val = sx < a.width - 1 && sy < a.height - 1 ? sampleBilinear(a.data, a.width, a.height, sx, sy) : NaN;
         if (Number.isNaN(val)) {
           ok = false;
           break;

@@ -1,3 +1,4 @@
+import { sampleBilinear } from './bilinear.js';
 import type { FloatImage, GrayImage } from './image.js';
 
 /**
@@ -13,16 +14,7 @@ export function warpBilinear(src: GrayImage | FloatImage, srcFromDst: ArrayLike<
       const w = h[6] * x + h[7] * y + h[8];
       const u = (h[0] * x + h[1] * y + h[2]) / w;
       const v = (h[3] * x + h[4] * y + h[5]) / w;
-      if (!(w > 0 && u >= 0 && v >= 0 && u <= sw - 1 && v <= sh - 1)) {
-        out[y * width + x] = NaN;
-        continue;
-      }
-      const x0 = Math.min(u | 0, sw - 2), y0 = Math.min(v | 0, sh - 2);
-      const tx = u - x0, ty = v - y0;
-      const o = y0 * sw + x0;
-      const top = s[o] + tx * (s[o + 1] - s[o]);
-      const bottom = s[o + sw] + tx * (s[o + sw + 1] - s[o + sw]);
-      out[y * width + x] = top + ty * (bottom - top);
+      out[y * width + x] = w > 0 ? sampleBilinear(s, sw, sh, u, v) : NaN;
     }
   }
   return { width, height, data: out };

@@ -1,13 +1,10 @@
 import { spawn } from 'node:child_process';
-import { chmodSync, mkdtempSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { chmodSync } from 'node:fs';
 import { join } from 'node:path';
-import { fileURLToPath } from 'node:url';
+import { projectRoot, tempDir } from '../../tools/paths.js';
 
-export const projectRoot = fileURLToPath(new URL('../..', import.meta.url));
-
-/** A fresh temporary folder. */
-export const tempDir = (prefix = 'seamscout-test-'): string => mkdtempSync(join(tmpdir(), prefix));
+// Shared with bench/, so kept in tools/; the tests keep importing them from here.
+export { projectRoot, tempDir };
 
 /**
  * Runs the command line as a user would (node with tsx on the sources), with its cache and settings
