@@ -1,3 +1,5 @@
+import { FileProblem } from './file-problem.js';
+
 /**
  * The JPEG previews embedded in TIFF-based camera RAW files (DNG and the TIFF-like formats of most
  * makers): where each lies in the file and how large it is, and the sensor's size, from the
@@ -60,19 +62,19 @@ export const bytesSource = (b: Uint8Array): ByteSource => ({ length: b.length, b
 /** Bytes per value of each TIFF field type (1 BYTE ... 13 IFD); 0 for unknown types. */
 const typeSize = [0, 1, 1, 2, 4, 8, 1, 1, 2, 4, 8, 4, 8, 4];
 
-/** Reads a file's TIFF structure; throws on what is not TIFF-shaped at all. */
+/** Reads a file's TIFF structure; throws on what is not TIFF-shaped at all (a file without a TIFF mark holds no preview we read). */
 export function rawLayout(input: Uint8Array | ByteSource): RawLayout {
   const bytes = input instanceof Uint8Array ? bytesSource(input) : input;
   const b = (o: number): number => bytes.byte(o);
   if (bytes.length < 8) throw new RangeError(`Expected a TIFF-based file of 8 bytes or more but received ${bytes.length}`);
   const order = String.fromCharCode(b(0), b(1));
-  if (order !== 'II' && order !== 'MM') throw new RangeError(`Expected a TIFF byte order mark (II or MM) but received ${JSON.stringify(order)}`);
+  if (order !== 'II' && order !== 'MM') throw new FileProblem('no-preview', `Expected a TIFF byte order mark (II or MM) but received ${JSON.stringify(order)}`);
   const little = order === 'II';
   const u16 = (o: number): number => (little ? b(o) | (b(o + 1) << 8) : (b(o) << 8) | b(o + 1));
   const u32 = (o: number): number => (little ? (b(o) | (b(o + 1) << 8) | (b(o + 2) << 16)) + b(o + 3) * 2 ** 24 : b(o) * 2 ** 24 + ((b(o + 1) << 16) | (b(o + 2) << 8) | b(o + 3)));
   // 42 in TIFF; makers' variants keep the layout with another mark (0x4f52 'RO', 0x55 'U').
   const magic = u16(2);
-  if (magic !== 42 && magic !== 0x4f52 && magic !== 0x5352 && magic !== 0x55) throw new RangeError(`Expected the TIFF mark 42 but received ${magic}`);
+  if (magic !== 42 && magic !== 0x4f52 && magic !== 0x5352 && magic !== 0x55) throw new FileProblem('no-preview', `Expected the TIFF mark 42 but received ${magic}`);
 
   const previews: EmbeddedJpeg[] = [];
   let sensor: { w: number; h: number; area: number } | null = null;

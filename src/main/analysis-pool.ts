@@ -4,7 +4,8 @@ import type { AnalysisTask } from './analysis-worker.js';
 import type { InputPath } from './input-file.js';
 import { byteBudget, inputBudgetBytes } from './input-file.js';
 import { decodeCost } from './decode.js';
-import runTask from './analysis-worker.js';
+import { runTaskHere as runTask } from './analysis-worker.js';
+import { errorFromCrossing } from './crossing-error.js';
 import type { AnalysisLens, FrameAnalysis, LensJudgement, PairAnalysis, PairOptions } from '../core/pair-analysis.js';
 
 const defaultPairOptions: PairOptions = { retryAtFullSize: true, overlapBlocks: true };
@@ -52,7 +53,11 @@ export function createAnalysisPool(threads = availableParallelism(), options: An
     execArgv: fromSource ? ['--import', 'tsx'] : process.execArgv,
   });
   // An aborted task ends its worker thread (piscina replaces it), so a cancel does not wait for it.
-  const run = <T>(task: AnalysisTask, signal?: AbortSignal): Promise<T> => pool.run(task, { signal }) as Promise<T>;
+  // A task's error crosses back as a record (analysis-worker.ts) and is rebuilt here, typed as it was thrown.
+  const run = <T>(task: AnalysisTask, signal?: AbortSignal): Promise<T> =>
+    (pool.run(task, { signal }) as Promise<T>).catch((err: unknown) => {
+      throw errorFromCrossing(err);
+    });
   // Each worker counts what its own decode holds; across the workers, this budget holds a decode
   // back until its bytes fit beside those of the decodes already sent (input-file.ts).
   const decodes = byteBudget(inputBudgetBytes);

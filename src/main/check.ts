@@ -27,6 +27,7 @@ import type { ScannedFile } from './scan.js';
 import { byteCopies, scanFolder } from './scan.js';
 import type { ShotPreference } from '../common/api.js';
 import { oneFilePerShot } from './shot-pairs.js';
+import { skipOf } from './skip-reasons.js';
 import { FrameGate, inOrder, slots } from './concurrency.js';
 import type { FrameSummary, PlannedStation } from '../core/check-report.js';
 import { frameMeasure, pairMeasure, skipsInOrder, stationMeasures, tiePointsAtFullResolution } from '../core/check-report.js';
@@ -104,29 +105,6 @@ const inThreadLanes = 6;
  */
 export function commandLineThreads(cores = availableParallelism()): number {
   return cores <= 2 ? 0 : cores;
-}
-
-/** A plain reason for a file that could not be analysed, from what the decoder or the system said. */
-export function skipOf(file: string, err: unknown, size?: number): SkippedFile {
-  const message = err instanceof Error ? err.message : String(err);
-  const code = (err as NodeJS.ErrnoException)?.code;
-  if (size === 0) return { file, code: 'unreadable', reason: 'empty file (0 bytes): copy it from the card again' };
-  if (code === 'ENOENT') return { file, code: 'unreadable', reason: 'the file went away during the check' };
-  // Codes first; the same by the message for an error that crossed from a worker thread without its code.
-  if (code === 'EACCES' || code === 'EPERM' || /^(EACCES|EPERM):/.test(message)) return { file, code: 'unreadable', reason: 'no permission to read it' };
-  // The medium failed (a bad sector, a card pulled, a failing reader), or the file ended before its size.
-  if (code === 'EIO' || code === 'ENXIO' || code === 'ENODEV' || code === 'ESHORTREAD' || /^(EIO|ENXIO|ENODEV):|its size promised/.test(message)) return { file, code: 'unreadable', reason: 'read error: copy it from the card again' };
-  if (code === 'ENOTREGULAR' || /is not a regular file/.test(message)) return { file, code: 'unreadable', reason: 'it is not a regular file (a pipe, a device or a socket): not read' };
-  if (code === 'EISDIR') return { file, code: 'unreadable', reason: 'it is a folder, not a picture' };
-  if (code === 'EFBIG') return { file, code: 'too-large', reason: 'too large to read safely (over the size read at most)' };
-  if (/pixel limit/i.test(message)) return { file, code: 'too-large', reason: 'too large to decode safely (over the pixel limit)' };
-  if (/no usable preview: the (\.\w+) container/i.test(message)) return { file, code: 'no-preview', reason: `RAW ${/(\.\w+) container/.exec(message)![1]} files are not read yet: shoot RAW+JPEG, or check exported JPEGs` };
-  if (/no usable preview|TIFF byte order|TIFF mark/i.test(message)) return { file, code: 'no-preview', reason: 'holds no embedded preview Seamscout can read: shoot RAW+JPEG, or check exported JPEGs' };
-  if (/timeout/i.test(message)) return { file, code: 'unreadable', reason: 'decoding took too long' };
-  if (/corrupt JPEG data|inconsistent progression/i.test(message)) return { file, code: 'unreadable', reason: 'damaged (part of the picture is garbled): copy it from the card again' };
-  if (/premature end|truncated|unexpected end|corrupt|invalid|cut short/i.test(message)) return { file, code: 'unreadable', reason: 'damaged or cut short: copy it from the card again' };
-  if (/unsupported image format|bad seek|not a known file format|improper image header|input buffer/i.test(message)) return { file, code: 'not-an-image', reason: 'not an image Seamscout can read' };
-  return { file, code: 'unreadable', reason: `cannot be read: ${message.split('\n')[0]}` };
 }
 
 /** A decoded frame: what the report needs of it, and its analysis while pairs still need it. */

@@ -7,6 +7,8 @@ import { jpegDemand, tooShortForItsSize } from '../core/jpeg-demand.js';
 import type { InputPath } from './input-file.js';
 import { inputBudget, readInputHead, readInputRest } from './input-file.js';
 import { tooShortError } from './exif.js';
+import { FileProblem } from '../core/file-problem.js';
+import { decoderProblem } from './decoder-words.js';
 
 // libvips' operation cache keeps a finished decode's loader alive, and with it what the decoder
 // allocated (a progressive JPEG's coefficients: 432 MB for 12000 x 12000), which the cache does
@@ -46,9 +48,14 @@ async function withFrame<T>(path: InputPath, work: (f: { source: Sharp; upright:
   function run(data: Buffer): Promise<T> {
     const demand = jpegDemand(data);
     if (demand && tooShortForItsSize(demand)) throw tooShortError(demand, data.length);
-    const attempt = (failOn: 'warning' | 'error'): Promise<T> => {
+    // The decoder's failures come as the file problem its words name (decoder-words.ts).
+    const attempt = async (failOn: 'warning' | 'error'): Promise<T> => {
       const source = sharp(data, { limitInputPixels: pixelLimit, failOn });
-      return work({ source, upright: raw && raw.orientation !== null ? orient(source, raw.orientation) : source.autoOrient(), raw });
+      try {
+        return await work({ source, upright: raw && raw.orientation !== null ? orient(source, raw.orientation) : source.autoOrient(), raw });
+      } catch (err) {
+        throw decoderProblem(err) ?? err;
+      }
     };
     return demand ? strictThenLenient(attempt, endsWhole(data, demand.scanStart)) : lenient(attempt);
   }
@@ -90,8 +97,8 @@ async function strictThenLenient<T>(attempt: (failOn: 'warning' | 'error') => Pr
       return await attempt('warning');
     } catch (err) {
       message = err instanceof Error ? err.message : String(err);
-      if (/pixel limit|timeout/i.test(message)) throw err;
-      if (!whole) throw new Error('Premature end of JPEG file: the file stops before its picture does', { cause: err });
+      if (err instanceof FileProblem && (err.kind === 'over-pixel-limit' || err.kind === 'decode-timeout')) throw err;
+      if (!whole) throw new FileProblem('cut-short', 'Premature end of JPEG file: the file stops before its picture does', { cause: err });
       if (/^\s*unknown error\s*$/i.test(message)) continue;
       const kind = garbledData(message) ? 'garbled' : 'harmless';
       if (kind === last) {
@@ -101,7 +108,7 @@ async function strictThenLenient<T>(attempt: (failOn: 'warning' | 'error') => Pr
       last = kind;
     }
   }
-  if (last === 'garbled') throw new Error('Corrupt JPEG data: the picture is garbled part way (libjpeg said so once, then its words were lost)');
+  if (last === 'garbled') throw new FileProblem('garbled', 'Corrupt JPEG data: the picture is garbled part way (libjpeg said so once, then its words were lost)');
   return lenient(attempt);
 }
 

@@ -6,10 +6,11 @@ import { extensionOf, inputBudget, readInputHead, readInputRest } from './input-
 import { isRawFile, readRawExifBlocks } from './raw-file.js';
 import type { JpegDemand } from '../core/jpeg-demand.js';
 import { jpegDemand, tooShortForItsSize } from '../core/jpeg-demand.js';
+import { FileProblem } from '../core/file-problem.js';
 
 /** The error for a JPEG stream too short for the size its header claims (core/jpeg-demand.ts). */
-export function tooShortError(d: JpegDemand, streamBytes: number): Error {
-  return new Error(`damaged or cut short: ${streamBytes - d.scanStart} bytes of JPEG data for ${d.width} x ${d.height} pixels, which need ${d.minEntropyBytes} at least`);
+export function tooShortError(d: JpegDemand, streamBytes: number): FileProblem {
+  return new FileProblem('cut-short', `damaged or cut short: ${streamBytes - d.scanStart} bytes of JPEG data for ${d.width} x ${d.height} pixels, which need ${d.minEntropyBytes} at least`);
 }
 
 export interface FrameExif {

@@ -2,6 +2,7 @@ import { closeSync, constants, fstatSync, openSync, readSync } from 'node:fs';
 import type { FileHandle } from 'node:fs/promises';
 import { open } from 'node:fs/promises';
 import { extname, join, sep } from 'node:path';
+import { FileProblem } from '../core/file-problem.js';
 
 /**
  * A path to an input file: a string, or the exact bytes of a name that is not valid UTF-8 (written
@@ -79,10 +80,6 @@ export const maxInputBytes = 768 * 1024 * 1024;
  */
 export const inputBudgetBytes = 320 * 1024 * 1024;
 
-function failure(message: string, code: string): Error {
-  return Object.assign(new Error(message), { code });
-}
-
 /** A path as the file system calls take it (bytes that crossed from a worker thread arrive as a plain Uint8Array). */
 const fsPath = (p: InputPath): string | Buffer => (typeof p === 'string' || Buffer.isBuffer(p) ? p : Buffer.from(p.buffer, p.byteOffset, p.byteLength));
 
@@ -91,8 +88,8 @@ const openFlags = constants.O_RDONLY | constants.O_NONBLOCK;
 
 /** Throws unless the open file is a regular file: a pipe waits for ever, a device reads for ever. */
 function mustBeRegular(st: { isFile(): boolean; isDirectory(): boolean }, path: InputPath): void {
-  if (st.isDirectory()) throw failure(`${pathText(path)} is a folder, not a picture`, 'EISDIR');
-  if (!st.isFile()) throw failure(`${pathText(path)} is not a regular file (a pipe, a device or a socket): not read`, 'ENOTREGULAR');
+  if (st.isDirectory()) throw new FileProblem('folder', `${pathText(path)} is a folder, not a picture`);
+  if (!st.isFile()) throw new FileProblem('not-regular', `${pathText(path)} is not a regular file (a pipe, a device or a socket): not read`);
 }
 
 /** Opens an input file for reading, refusing anything but a regular file; the caller closes it. */
@@ -130,7 +127,7 @@ export function readExactSync(fd: number, offset: number, length: number): Buffe
   const out = Buffer.alloc(length);
   for (let at = 0; at < length; ) {
     const n = readSync(fd, out, at, length - at, offset + at);
-    if (n === 0) throw failure(`the file ended ${offset + at} bytes in, before the ${offset + length} its size promised`, 'ESHORTREAD');
+    if (n === 0) throw new FileProblem('short-read', `the file ended ${offset + at} bytes in, before the ${offset + length} its size promised`);
     at += n;
   }
   return out;
@@ -148,7 +145,7 @@ export async function readInput(path: InputPath, options: { limit?: number; head
   const { handle, size } = await openInput(path);
   try {
     const want = Math.min(size, options.head ?? size);
-    if (want > limit) throw failure(`${pathText(path)} is ${size} bytes, over the ${limit} bytes read at most`, 'EFBIG');
+    if (want > limit) throw new FileProblem('over-read-limit', `${pathText(path)} is ${size} bytes, over the ${limit} bytes read at most`);
     const out = Buffer.alloc(want);
     await readInto(handle, out, 0);
     return out;
@@ -161,7 +158,7 @@ export async function readInput(path: InputPath, options: { limit?: number; head
 async function readInto(handle: FileHandle, out: Buffer, from: number): Promise<void> {
   for (let at = from; at < out.length; ) {
     const { bytesRead } = await handle.read(out, at, Math.min(out.length - at, 4 << 20), at);
-    if (bytesRead === 0) throw failure(`the file ended ${at} bytes in, before the ${out.length} its size promised`, 'ESHORTREAD');
+    if (bytesRead === 0) throw new FileProblem('short-read', `the file ended ${at} bytes in, before the ${out.length} its size promised`);
     at += bytesRead;
   }
 }
@@ -188,7 +185,7 @@ export async function readInputRest(path: InputPath, head: Buffer, size: number)
   const { handle, size: now } = await openInput(path);
   try {
     if (now !== size) return await readInput(path);
-    if (size > maxInputBytes) throw failure(`${pathText(path)} is ${size} bytes, over the ${maxInputBytes} bytes read at most`, 'EFBIG');
+    if (size > maxInputBytes) throw new FileProblem('over-read-limit', `${pathText(path)} is ${size} bytes, over the ${maxInputBytes} bytes read at most`);
     const out = Buffer.alloc(size);
     head.copy(out);
     await readInto(handle, out, head.length);

@@ -5,6 +5,7 @@ import { cr3Layout } from '../core/cr3-layout.js';
 import { rafLayout } from '../core/raf-layout.js';
 import type { ByteSource, EmbeddedJpeg } from '../core/raw-preview.js';
 import { jpegExtent, largestPreview, rawLayout } from '../core/raw-preview.js';
+import { FileProblem } from '../core/file-problem.js';
 import type { InputPath } from './input-file.js';
 import { extensionOf, openInputSync, pathText, readExactSync } from './input-file.js';
 
@@ -42,16 +43,16 @@ export interface RawPreview {
   readonly sensorHeight: number | null;
 }
 
-/** The largest embedded JPEG preview of a RAW file; throws "no usable preview" when it holds none. */
+/** The largest embedded JPEG preview of a RAW file; throws a FileProblem (no-preview) when it holds none. */
 export async function readRawPreview(path: InputPath): Promise<RawPreview> {
   const ending = extensionOf(path);
-  if (unreadRawExtensions.has(ending)) throw new Error(`no usable preview: the ${ending} container is not read yet`);
+  if (unreadRawExtensions.has(ending)) throw new FileProblem('unread-container', `no usable preview: the ${ending} container is not read yet`, { ending });
   if (ending === '.cr3') return cr3Preview(path);
   if (ending === '.raf') return rafFilePreview(path);
   return withFile(path, (fd, src) => {
     const layout = rawLayout(src);
     const best = largestPreview(layout.previews);
-    if (!best) throw new Error(`no usable preview in ${pathText(path)}`);
+    if (!best) throw new FileProblem('no-preview', `no usable preview in ${pathText(path)}`);
     return {
       jpeg: readPreview(fd, src.length, best),
       orientation: layout.orientation >= 1 && layout.orientation <= 8 ? layout.orientation : 1,
@@ -104,7 +105,7 @@ function readRange(fd: number, fileSize: number, r: ByteRange, cap: number): Buf
 
 /** An embedded JPEG whole; one longer than `maxPreviewBytes` is refused rather than cut. */
 function readPreview(fd: number, fileSize: number, r: ByteRange): Buffer {
-  if (r.length > maxPreviewBytes) throw Object.assign(new Error(`the embedded preview is ${r.length} bytes, over the ${maxPreviewBytes} bytes read at most`), { code: 'EFBIG' });
+  if (r.length > maxPreviewBytes) throw new FileProblem('over-read-limit', `the embedded preview is ${r.length} bytes, over the ${maxPreviewBytes} bytes read at most`);
   return readRange(fd, fileSize, r, maxPreviewBytes);
 }
 
@@ -115,11 +116,11 @@ function readPreview(fd: number, fileSize: number, r: ByteRange): Buffer {
 async function cr3Preview(path: InputPath): Promise<RawPreview> {
   return withFile(path, (fd, src) => {
     const layout = cr3Layout(src);
-    if (!layout) throw new Error(`no usable preview in ${pathText(path)}: not a CR3 file`);
+    if (!layout) throw new FileProblem('no-preview', `no usable preview in ${pathText(path)}: not a CR3 file`);
     const best = largestPreview(layout.previews);
     if (best) return { jpeg: readPreview(fd, src.length, best), orientation: layout.orientation, sensorWidth: layout.width, sensorHeight: layout.height };
     const found = largestPreview(scanFileForJpegs(fd, src));
-    if (!found) throw new Error(`no usable preview in ${pathText(path)}`);
+    if (!found) throw new FileProblem('no-preview', `no usable preview in ${pathText(path)}`);
     // A stream found so carries its own EXIF orientation, if any.
     return { jpeg: readPreview(fd, src.length, found), orientation: null, sensorWidth: null, sensorHeight: null };
   });
@@ -160,7 +161,7 @@ function scanFileForJpegs(fd: number, src: ByteSource): EmbeddedJpeg[] {
 async function rafFilePreview(path: InputPath): Promise<RawPreview> {
   return withFile(path, (fd, src) => {
     const layout = rafLayout(src);
-    if (!layout?.preview) throw new Error(`no usable preview in ${pathText(path)}`);
+    if (!layout?.preview) throw new FileProblem('no-preview', `no usable preview in ${pathText(path)}`);
     const p = layout.preview, w = layout.sensorWidth, h = layout.sensorHeight;
     const sameShape = w !== null && h !== null && Math.abs((w / h) / (p.width / p.height) - 1) < 0.03;
     return { jpeg: readPreview(fd, src.length, p), orientation: null, sensorWidth: sameShape ? w : null, sensorHeight: sameShape ? h : null };
