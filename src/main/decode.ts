@@ -8,7 +8,7 @@ import type { InputPath } from './input-file.js';
 import { inputBudget, readInputHead, readInputRest } from './input-file.js';
 import { tooShortError } from './exif.js';
 import { FileProblem } from '../core/file-problem.js';
-import { decoderProblem } from './decoder-words.js';
+import { decoderProblem, garbledData, wordsLost } from './decoder-words.js';
 
 // libvips' operation cache keeps a finished decode's loader alive, and with it what the decoder
 // allocated (a progressive JPEG's coefficients: 432 MB for 12000 x 12000), which the cache does
@@ -70,28 +70,17 @@ const endsWhole = (data: Buffer, scanStart: number): boolean => data.indexOf(end
 const endOfImage = Buffer.from([0xff, 0xd9]);
 
 /**
- * What libjpeg says of entropy-coded data that does not decode as written (ITU-T T.81 data with
- * flipped or lost bytes: a bad sector read back wrong, a card going bad): the decoder goes on and
- * fills the rest with grey or garbage, which the check would then blame on the photographer
- * (parallax, an exposure jump). Extraneous bytes just before the end-of-image marker are not
- * damage: some cameras and editors write them, and the picture is whole.
- */
-function garbledData(message: string): boolean {
-  if (/extraneous bytes before marker 0xd9/i.test(message)) return false;
-  return /corrupt JPEG data|inconsistent progression|premature end/i.test(message);
-}
-
-/**
  * A JPEG is decoded with libjpeg's warnings as errors, so that a picture garbled part way is named
- * as damaged, and one that stops before its end as cut short. libvips keeps one error text for all
- * its threads, so under load a failure may carry another decode's words, or only "Unknown error":
- * the words are trusted only when two strict decodes in a row say the same kind of thing (garbled,
- * or a harmless warning), at most four tries. On a harmless warning the file is decoded again with
- * errors alone failing.
+ * as damaged, and one that stops before its end as cut short. libvips keeps one error text for the
+ * whole process and sharp one queue of warnings, and every decode clears the text when it ends, so
+ * under load a failure may carry another decode's words, or none (decoder-words.ts, wordsLost):
+ * a failure without words is no evidence and is tried again, and the words are trusted only when
+ * two strict decodes in a row say the same kind of thing (garbled, or a harmless warning), at most
+ * eight tries. On a harmless warning the file is decoded again with errors alone failing.
  */
 async function strictThenLenient<T>(attempt: (failOn: 'warning' | 'error') => Promise<T>, whole: boolean): Promise<T> {
   let last: 'garbled' | 'harmless' | null = null;
-  for (let tries = 0; tries < 4; tries++) {
+  for (let tries = 0; tries < 8; tries++) {
     let message: string;
     try {
       return await attempt('warning');
@@ -99,7 +88,7 @@ async function strictThenLenient<T>(attempt: (failOn: 'warning' | 'error') => Pr
       message = err instanceof Error ? err.message : String(err);
       if (err instanceof FileProblem && (err.kind === 'over-pixel-limit' || err.kind === 'decode-timeout')) throw err;
       if (!whole) throw new FileProblem('cut-short', 'Premature end of JPEG file: the file stops before its picture does', { cause: err });
-      if (/^\s*unknown error\s*$/i.test(message)) continue;
+      if (wordsLost(message)) continue;
       const kind = garbledData(message) ? 'garbled' : 'harmless';
       if (kind === last) {
         if (kind === 'garbled') throw err;
@@ -112,12 +101,12 @@ async function strictThenLenient<T>(attempt: (failOn: 'warning' | 'error') => Pr
   return lenient(attempt);
 }
 
-/** Decodes with errors alone failing, once more when the reason was lost ("Unknown error", see above). */
+/** Decodes with errors alone failing, once more when the reason was lost (see above). */
 async function lenient<T>(attempt: (failOn: 'warning' | 'error') => Promise<T>): Promise<T> {
   try {
     return await attempt('error');
   } catch (err) {
-    if (err instanceof Error && /^unknown error$/i.test(err.message.trim())) return attempt('error');
+    if (err instanceof Error && wordsLost(err.message)) return attempt('error');
     throw err;
   }
 }
