@@ -1,4 +1,4 @@
-import type { Analysis, CoverageHole, FlagCode, SkippedFile, Finding, FolderProblem, FrameSettings, MatchBudget, PairMeasure, Report, ReportFrame, ReportPair, ReportSequence, ReportStation, SequenceAnalysis, StationMeasure, Verdict } from './report.js';
+import type { Analysis, CoverageHole, CoverageNote, FlagCode, SkippedFile, Finding, FolderProblem, FrameSettings, MatchBudget, PairMeasure, Report, ReportFrame, ReportPair, ReportSequence, ReportStation, SequenceAnalysis, StationMeasure, Verdict } from './report.js';
 import { coverageFindings } from './coverage-map.js';
 import { reportSchema } from './report.js';
 import type { Flag, Rule, SequenceFacts } from './verdict-rules.js';
@@ -98,27 +98,15 @@ function judgeOne(analysis: Analysis, budget: MatchBudget): Report {
   const refs = analysis.stations.map((s) => settingsOf.get(s.reference)).filter((s): s is FrameSettings => !!s);
   const sizes = new Map(analysis.frames.map((f) => [f.file, { width: f.width, height: f.height }]));
 
-  // Holes first: a failed pair between the stations either side of a located gap is that hole.
-  const found = coverageFindings({ ...analysis, budget });
-  const stationKey = (p: PairMeasure): string | null => {
-    const i = stationOf.get(p.a)?.index, j = stationOf.get(p.b)?.index;
-    return i === undefined || j === undefined ? null : `${Math.min(i, j)}:${Math.max(i, j)}`;
-  };
-  const failedBetween = new Set(analysis.pairs.filter((p) => (p.kind === 'neighbour' || p.kind === 'closure') && p.homography === null).map(stationKey));
-  // A gap the geometry calls narrow (under 2 degrees, within its error) is no narrower when the
-  // frames either side failed to match: both say they do not meet, so it is to reshoot.
-  const holes: CoverageHole[] = found.holes.map((h) => (h.between && h.verdict !== 'reshoot' && failedBetween.has(`${h.between[0]}:${h.between[1]}`) ? { ...h, verdict: 'reshoot' } : h));
-  const gapBetween = new Map<string, CoverageHole>();
-  for (const h of holes) if (h.between) gapBetween.set(`${h.between[0]}:${h.between[1]}`, h);
+  const { holes, notes, holeOf } = locateHoles(analysis, budget, stationOf);
 
   const facts: SequenceFacts = {
     analysis, budget, stationOf, settingsOf, refs,
     frameSize: (file) => sizes.get(file) ?? null,
-    holeOf: (p) => {
-      const key = stationKey(p);
-      return key === null ? null : gapBetween.get(key) ?? null;
-    },
+    holeOf,
   };
+  // Pairs first: a bracket pair's drift is its frame's and its station's too; frames then carry
+  // their station's flags.
   const pairs: ReportPair[] = applyRules(analysis.pairs, pairRules, facts, (rule, p) => rule.kinds.includes(p.kind)).map((r, k) => ({ ...analysis.pairs[k], ...r.findings.done() }));
   const judgedStations = applyRules(analysis.stations, stationRules, { ...facts, pairs });
   // Each file's stations, once for each time a station lists it.
@@ -166,9 +154,32 @@ function judgeOne(analysis: Analysis, budget: MatchBudget): Report {
     rawPlusJpeg: analysis.rawPlusJpeg ?? null,
     folderProblems,
     holes,
-    coverageNotes: found.notes,
+    coverageNotes: notes,
     plan,
   };
+}
+
+/**
+ * The sequence's coverage holes and notes, and the hole between a pair's stations. Holes come first:
+ * a failed pair between the stations either side of a located gap is that hole.
+ */
+function locateHoles(analysis: Analysis, budget: MatchBudget, stationOf: ReadonlyMap<string, StationMeasure>): { holes: CoverageHole[]; notes: CoverageNote[]; holeOf: (p: PairMeasure) => CoverageHole | null } {
+  const found = coverageFindings({ ...analysis, budget });
+  const stationKey = (p: PairMeasure): string | null => {
+    const i = stationOf.get(p.a)?.index, j = stationOf.get(p.b)?.index;
+    return i === undefined || j === undefined ? null : `${Math.min(i, j)}:${Math.max(i, j)}`;
+  };
+  const failedBetween = new Set(analysis.pairs.filter((p) => (p.kind === 'neighbour' || p.kind === 'closure') && p.homography === null).map(stationKey));
+  // A gap the geometry calls narrow (under 2 degrees, within its error) is no narrower when the
+  // frames either side failed to match: both say they do not meet, so it is to reshoot.
+  const holes: CoverageHole[] = found.holes.map((h) => (h.between && h.verdict !== 'reshoot' && failedBetween.has(`${h.between[0]}:${h.between[1]}`) ? { ...h, verdict: 'reshoot' } : h));
+  const gapBetween = new Map<string, CoverageHole>();
+  for (const h of holes) if (h.between) gapBetween.set(`${h.between[0]}:${h.between[1]}`, h);
+  const holeOf = (p: PairMeasure): CoverageHole | null => {
+    const key = stationKey(p);
+    return key === null ? null : gapBetween.get(key) ?? null;
+  };
+  return { holes, notes: found.notes, holeOf };
 }
 
 /**
