@@ -6,11 +6,12 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import type { Analysis, FlagCode, FrameMeasure, FrameSettings, PairMeasure, StationMeasure } from '../src/core/report.js';
 import { defaultBudget } from '../src/core/report.js';
-import { frameRules, pairRules, stationRules } from '../src/core/verdict-rules.js';
+import { cardRules, frameRules, pairRules, sequenceRules, stationRules } from '../src/core/verdict-rules.js';
 import { judge } from '../src/core/verdicts.js';
 import { projectRoot } from './helpers/cli.js';
 
-const schemaFlags = (): string[] => JSON.parse(readFileSync(join(projectRoot, 'schema/report.schema.json'), 'utf8')).$defs.flag.enum;
+const schema = (): { $defs: { flag: { enum: string[] } }; properties: { folderProblems: { items: { properties: { code: { enum: string[] } } } } } } =>
+  JSON.parse(readFileSync(join(projectRoot, 'schema/report.schema.json'), 'utf8'));
 
 /** The codes a list may raise, in the list's order, each once. */
 const listOrder = (rules: readonly { codes: readonly FlagCode[] }[]): FlagCode[] => [...new Set(rules.flatMap((r) => r.codes))];
@@ -23,7 +24,7 @@ const pair = (a: string, b: string, extra: Partial<PairMeasure> = {}): PairMeasu
 
 describe('verdict rule lists', () => {
   it('names each rule once in its list', () => {
-    for (const rules of [pairRules, stationRules, frameRules]) {
+    for (const rules of [pairRules, stationRules, frameRules, sequenceRules, cardRules]) {
       const names = rules.map((r) => r.name);
       expect(new Set(names).size).toBe(names.length);
       expect(rules.every((r) => r.codes.length > 0)).toBe(true);
@@ -32,7 +33,12 @@ describe('verdict rule lists', () => {
 
   it('has a rule for every flag code of the report schema, and no code outside it', () => {
     const raised = new Set([...pairRules, ...stationRules, ...frameRules].flatMap((r) => r.codes));
-    expect([...raised].sort()).toEqual([...schemaFlags()].sort());
+    expect([...raised].sort()).toEqual([...schema().$defs.flag.enum].sort());
+  });
+
+  it('has a rule for every folder problem code of the report schema, and no code outside it', () => {
+    const raised = new Set([...sequenceRules, ...cardRules].flatMap((r) => r.codes));
+    expect([...raised].sort()).toEqual([...schema().properties.folderProblems.items.properties.code.enum].sort());
   });
 
   it('gives a pair its reasons in the order of the pair rules', () => {

@@ -1,10 +1,10 @@
 /**
  * The checks `judge` (verdicts.ts) applies, one named rule each, in one list per level: pairs,
- * stations, frames. A new check is one rule added to its level's list; the list's order is the order
- * of the reasons and advice in the report.
+ * stations, frames, a sequence as a whole and a card of sequences. A new check is one rule added to
+ * its level's list; the list's order is the order of the reasons and advice in the report.
  */
 
-import type { Analysis, CoverageHole, FlagCode, FrameMeasure, FrameSettings, MatchBudget, PairKind, PairMeasure, ReportPair, StationMeasure, Verdict } from './report.js';
+import type { Analysis, CoverageHole, FlagCode, FolderCode, FolderProblem, FrameMeasure, FrameSettings, MatchBudget, PairKind, PairMeasure, ReportPair, StationMeasure, Verdict } from './report.js';
 import { lensMisfitLimitPx } from './lens.js';
 import { missingOffsets, modalPattern, patternOf } from './stations.js';
 import { blurredFrames } from './blur-verdict.js';
@@ -372,3 +372,40 @@ export const sizeMismatch: FrameRule = {
 
 /** The frame rules in report order. */
 export const frameRules: readonly FrameRule[] = [onItsStation(incompleteBracket), blurred, onItsStation(settingsDriftRule), frameBracketDrift, sizeMismatch];
+
+// ---- A sequence as a whole, and a card of sequences --------------------------------------------
+
+/** A check of a whole analysis: a sequence judged alone, or a card of sequences. Each problem makes the whole weak. */
+export interface FolderRule {
+  readonly name: string;
+  readonly codes: readonly FolderCode[];
+  readonly check: (analysis: Analysis) => readonly FolderProblem[];
+}
+
+/** Too few frames to make a panorama of. */
+export const tooFewFrames: FolderRule = {
+  name: 'too-few-frames', codes: ['no-frames', 'one-frame'],
+  check: ({ frames }) => {
+    if (frames.length === 0) return [{ code: 'no-frames', advice: 'no frame could be checked in this folder: is it the right folder, and are the files images?' }];
+    if (frames.length === 1) return [{ code: 'one-frame', advice: 'only one frame could be checked: a panorama needs at least two overlapping frames' }];
+    return [];
+  },
+};
+
+/**
+ * A sequence apart from the one before only by its content, shot at the same rhythm with the same
+ * camera: a new panorama begun at once, or one panorama with a frame missing. Only the
+ * photographer knows which, so it is said, and weighs as weak.
+ */
+export const sequenceBreak: FolderRule = {
+  name: 'sequence-break', codes: ['sequence-break'],
+  check: ({ sequences = [] }) => sequences
+    .filter((s) => sequences.length > 1 && s.splitBy.length > 0 && s.splitBy.every((e) => e.by === 'content'))
+    .flatMap((s) => s.splitBy.flatMap((e) => (e.by === 'content' ? [{ code: 'sequence-break' as const, advice: `${e.after} and ${e.before} share nothing, while nothing else sets them apart: read as two sequences. If they are one panorama, a frame is missing between them: reshoot it` }] : []))),
+};
+
+/** The rules of each sequence judged alone, in report order. */
+export const sequenceRules: readonly FolderRule[] = [tooFewFrames];
+
+/** The rules of a card read as several sequences, in report order (after its sequence's own when there is one). */
+export const cardRules: readonly FolderRule[] = [sequenceBreak];

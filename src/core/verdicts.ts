@@ -2,7 +2,7 @@ import type { Analysis, CoverageHole, CoverageNote, FlagCode, SkippedFile, Findi
 import { coverageFindings } from './coverage-map.js';
 import { reportSchema } from './report.js';
 import type { Flag, Rule, SequenceFacts } from './verdict-rules.js';
-import { frameRules, pairRules, stationRules } from './verdict-rules.js';
+import { cardRules, frameRules, pairRules, sequenceRules, stationRules } from './verdict-rules.js';
 import { copyAgainPlan, reshootPlan } from './reshoot-plan.js';
 
 const rank: Record<Verdict, number> = { ok: 0, weak: 1, reshoot: 2 };
@@ -58,12 +58,7 @@ export function judge(analysis: Analysis, budget: MatchBudget): Report {
       plan: r.plan ?? [],
     };
   });
-  // A sequence apart from the one before only by its content, shot at the same rhythm with the same
-  // camera: a new panorama begun at once, or one panorama with a frame missing. Only the
-  // photographer knows which, so it is said, and weighs as weak.
-  const breaks: FolderProblem[] = sequences
-    .filter((s) => sequences.length > 1 && s.splitBy.length > 0 && s.splitBy.every((e) => e.by === 'content'))
-    .flatMap((s) => s.splitBy.flatMap((e) => (e.by === 'content' ? [{ code: 'sequence-break' as const, advice: `${e.after} and ${e.before} share nothing, while nothing else sets them apart: read as two sequences. If they are one panorama, a frame is missing between them: reshoot it` }] : [])));
+  const breaks: FolderProblem[] = cardRules.flatMap((rule) => rule.check(analysis));
   if (parts.length === 1) {
     const one = judgeOne(analysis, budget);
     return { ...one, verdict: worst(one.verdict, breaks.length ? 'weak' : 'ok'), folderProblems: [...one.folderProblems, ...breaks], sequences: judged, singleShots };
@@ -117,9 +112,7 @@ function judgeOne(analysis: Analysis, budget: MatchBudget): Report {
   const stationFlags = (file: string, rule: string): Flag[] => (stationsHolding.get(file) ?? []).flatMap((i) => judgedStations[i].byRule.get(rule) ?? []);
   const judgedFrames = applyRules(analysis.frames, frameRules, { ...facts, pairs, stationFlags });
 
-  const folderProblems: FolderProblem[] = [];
-  if (analysis.frames.length === 0) folderProblems.push({ code: 'no-frames', advice: 'no frame could be checked in this folder: is it the right folder, and are the files images?' });
-  else if (analysis.frames.length === 1) folderProblems.push({ code: 'one-frame', advice: 'only one frame could be checked: a panorama needs at least two overlapping frames' });
+  const folderProblems: FolderProblem[] = sequenceRules.flatMap((rule) => rule.check(analysis));
 
   const frames: ReportFrame[] = analysis.frames.map((f, k) => {
     const found = judgedFrames[k].findings.done();
