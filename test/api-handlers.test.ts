@@ -5,8 +5,8 @@ import { existsSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { HostCallName } from '../src/common/api.js';
-import type { HandlerTable } from '../src/main/api-handlers.js';
-import { createHandlers } from '../src/main/api-handlers.js';
+import type { FrameAnswer, HandlerTable } from '../src/main/api-handlers.js';
+import { createHandlers, expectFrameRequest, frameAnswer } from '../src/main/api-handlers.js';
 import { AppService } from '../src/main/app-service.js';
 import type { BrowserHost } from '../src/main/browser-host.js';
 import { startBrowserHost } from '../src/main/browser-host.js';
@@ -97,5 +97,61 @@ describe('the handler table both transports serve', () => {
     expect((await overHttp('hostInfo', [])).ok).toEqual({ shell: 'browser', version: 'test', initialTarget: null, latest: null });
     // A check id that is well formed but not the current check's is the service's to refuse.
     expect(await refusal(desktop.tiePoints([5, 'a.jpg', 'b.jpg']))).toBe('Expected the id of the current check but received 5');
+  });
+});
+
+describe('frame addresses, checked once for both transports', () => {
+  /** A frame through the browser host, as the page's img asks for it. */
+  async function frameOverHttp(path: string, max: string | null): Promise<{ status: number; text: string }> {
+    const query = `${max === null ? '' : `max=${encodeURIComponent(max)}&`}t=${host.token}`;
+    const res = await fetch(`http://${host.address}:${host.port}/frame/${path}?${query}`);
+    return { status: res.status, text: await res.text() };
+  }
+  /** The same through the desktop's frame protocol handler (electron-main.ts passes the URL's path and max to frameAnswer). */
+  async function frameOverProtocol(path: string, max: string | null): Promise<{ status: number; text: string }> {
+    const a: FrameAnswer = await frameAnswer(service, { path, max });
+    return a.status === 200 ? { status: 200, text: '' } : { status: a.status, text: a.text };
+  }
+
+  const idWords = (v: string): string => `Expected a check id (a whole number from 1) for checkId but received ${JSON.stringify(v)}`;
+  const maxWords = (v: string): string => `Expected a whole number of pixels from 32 to 2400 for max but received ${JSON.stringify(v)}`;
+  const badFrames: readonly { path: string; max: string | null; text: string }[] = [
+    { path: 'abc/a.jpg', max: '320', text: idWords('abc') },
+    { path: '0/a.jpg', max: '320', text: idWords('0') },
+    { path: '-1/a.jpg', max: '320', text: idWords('-1') },
+    { path: '1.5/a.jpg', max: '320', text: idWords('1.5') },
+    { path: '1e3/a.jpg', max: '320', text: idWords('1e3') },
+    { path: '99999999999999999999/a.jpg', max: '320', text: idWords('99999999999999999999') },
+    { path: '1/a.jpg', max: 'abc', text: maxWords('abc') },
+    { path: '1/a.jpg', max: '', text: maxWords('') },
+    { path: '1/a.jpg', max: '99999', text: maxWords('99999') },
+    { path: '1/a.jpg', max: '31', text: maxWords('31') },
+    { path: '1/a.jpg', max: '2401', text: maxWords('2401') },
+    { path: '1/a.jpg', max: '320.5', text: maxWords('320.5') },
+    { path: '1/a.jpg', max: '-320', text: maxWords('-320') },
+    { path: '1/%E0%A4%A', max: '320', text: 'Expected a percent-encoded file name for file but received "%E0%A4%A"' },
+  ];
+
+  it('refuses a bad check id, size or name with the same words and status from the browser host and the desktop protocol', async () => {
+    for (const f of badFrames) {
+      const desktopAnswer = await frameOverProtocol(f.path, f.max);
+      expect(desktopAnswer, `${f.path} max=${f.max}`).toEqual({ status: 400, text: f.text });
+      expect(await frameOverHttp(f.path, f.max), `${f.path} max=${f.max} over HTTP`).toEqual(desktopAnswer);
+    }
+  });
+
+  it('answers a well-formed address of no check\'s frame alike from both, as not found', async () => {
+    for (const [path, max] of [['999/x.jpg', '320'], ['999/x.jpg', null], ['1/..%2Fsecret.txt', '1200']] as const) {
+      const desktopAnswer = await frameOverProtocol(path, max);
+      expect(desktopAnswer, path).toEqual({ status: 404, text: 'no such frame' });
+      expect(await frameOverHttp(path, max), `${path} over HTTP`).toEqual(desktopAnswer);
+    }
+  });
+
+  it('reads the id, the name and the size the page sends, the ends of the size range included', () => {
+    expect(expectFrameRequest({ path: '12/IMG%200001.JPG', max: '1200' })).toEqual({ checkId: 12, file: 'IMG 0001.JPG', maxSide: 1200 });
+    expect(expectFrameRequest({ path: '3/sub%2Fa.jpg', max: null })).toEqual({ checkId: 3, file: 'sub/a.jpg', maxSide: 320 });
+    expect(expectFrameRequest({ path: '1/a.jpg', max: '32' }).maxSide).toBe(32);
+    expect(expectFrameRequest({ path: '1/a.jpg', max: '2400' }).maxSide).toBe(2400);
   });
 });

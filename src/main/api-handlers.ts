@@ -6,7 +6,7 @@ import { isAbsolute, join } from 'node:path';
 import type { ExportContent, HostCallName, HostCalls, HostInfo } from '../common/api.js';
 import { expectExportFormat, expectShotPreference } from '../common/api.js';
 import type { AppService } from './app-service.js';
-import { expectBudget, expectBudgetFields } from './app-service.js';
+import { expectBudget, expectBudgetFields, frameSides } from './app-service.js';
 import { readRecentFolders } from './recent-folders.js';
 import { loadStoredBudget, loadStoredPreference, storeBudget, storedSettingsInfo, storePreference } from './settings-store.js';
 
@@ -84,4 +84,64 @@ export function createHandlers(service: AppService, hooks: ShellHooks): HandlerT
     },
     tiePoints: async ([id, a, b]) => service.tiePoints(expectCheckId(id), expectText(a, 'a'), expectText(b, 'b')),
   };
+}
+
+/** A frame's address as a transport received it: "<check id>/<file name, percent-encoded>" and the `max` query value. */
+export interface FrameAddress {
+  readonly path: string;
+  readonly max: string | null;
+}
+
+export interface FrameRequest {
+  readonly checkId: number;
+  readonly file: string;
+  readonly maxSide: number;
+}
+
+/** What either transport answers for a frame: the picture, or why not in words. */
+export type FrameAnswer = { readonly status: 200; readonly image: Buffer } | { readonly status: 400 | 404 | 503; readonly text: string };
+
+/** Runs a render, or returns null at once when too many are under way (the browser host bounds them). */
+export type FrameRenderGate = (render: () => Promise<Buffer | null>) => Promise<Buffer | null> | null;
+
+const quoted = (v: string | null): string => JSON.stringify(v);
+
+/**
+ * A frame's address checked: the check id a whole number from 1, the name percent-decodable, the
+ * size a whole number of pixels within what is served (none asked: the strip's size). Whether the
+ * check is known and the name one of its frames is the service's to say (a 404, not a refusal).
+ */
+export function expectFrameRequest({ path, max }: FrameAddress): FrameRequest {
+  const [id = '', ...rest] = path.split('/');
+  const checkId = /^[1-9][0-9]*$/.test(id) ? Number(id) : NaN;
+  if (!Number.isSafeInteger(checkId)) throw new TypeError(`Expected a check id (a whole number from 1) for checkId but received ${quoted(id)}`);
+  let file: string;
+  try {
+    file = decodeURIComponent(rest.join('/'));
+  } catch {
+    throw new TypeError(`Expected a percent-encoded file name for file but received ${quoted(rest.join('/'))}`);
+  }
+  const side = max === null ? frameSides.unasked : /^[0-9]{1,5}$/.test(max) ? Number(max) : NaN;
+  if (!(side >= frameSides.least && side <= frameSides.most)) {
+    throw new TypeError(`Expected a whole number of pixels from ${frameSides.least} to ${frameSides.most} for max but received ${quoted(max)}`);
+  }
+  return { checkId, file, maxSide: side };
+}
+
+/**
+ * A frame as both transports serve it: the address checked by `expectFrameRequest`, then rendered
+ * by the service through `gate`. Unknown checks and names that are not the check's frames are one
+ * answer, so a page cannot tell a missing file from a forbidden one.
+ */
+export async function frameAnswer(service: Pick<AppService, 'frameImage'>, address: FrameAddress, gate: FrameRenderGate = (render) => render()): Promise<FrameAnswer> {
+  let request: FrameRequest;
+  try {
+    request = expectFrameRequest(address);
+  } catch (err) {
+    return { status: 400, text: (err as Error).message };
+  }
+  const rendering = gate(() => service.frameImage(request.checkId, request.file, request.maxSide).catch(() => null));
+  if (!rendering) return { status: 503, text: 'busy rendering other frames: try again' };
+  const image = await rendering;
+  return image ? { status: 200, image } : { status: 404, text: 'no such frame' };
 }

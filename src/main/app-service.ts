@@ -21,6 +21,13 @@ import type { DemoWriting } from './demo-shoot.js';
 /** Bytes of rendered frames kept for the page to show again (a strip of thumbnails is a few megabytes). */
 const frameCacheLimit = 48 * 1024 * 1024;
 
+/**
+ * The sizes a frame is served at (px, longer side). The page asks for 320 (strip) and 1200
+ * (detail); twice the larger is the most served. A JPEG then decodes shrunk on load, where a 24 MP
+ * frame at full size holds 72 MB per render.
+ */
+export const frameSides = { least: 32, most: 2400, unasked: 320 } as const;
+
 interface CheckState {
   readonly id: number;
   folder: string;
@@ -235,9 +242,7 @@ export class AppService {
     const s = this.checks.get(id);
     if (!s || !s.realFolder || !s.files.has(file)) return null;
     if (isAbsolute(file) || file.split(/[\\/]/).includes('..')) return null;
-    // The page asks for 320 px (strip) and 1200 px (detail); twice the larger is the most served. A
-    // JPEG then decodes shrunk on load, where a 24 MP frame at full size holds 72 MB per render.
-    const side = Math.max(32, Math.min(2400, Math.round(maxSide) || 320));
+    const side = Math.max(frameSides.least, Math.min(frameSides.most, Math.round(maxSide) || frameSides.unasked));
     const key = `${id}:${file}:${side}`;
     const cached = this.frameCache.get(key);
     if (cached) return cached;

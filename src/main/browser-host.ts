@@ -4,7 +4,7 @@ import { createServer } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { isIPv4 } from 'node:net';
 import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, HostCallName } from '../common/api.js';
-import { createHandlers } from './api-handlers.js';
+import { createHandlers, frameAnswer } from './api-handlers.js';
 import { AppService } from './app-service.js';
 import type { DemoWriting } from './demo-shoot.js';
 import { createFrameGate } from './frame-gate.js';
@@ -205,22 +205,13 @@ export async function startBrowserHost(options: BrowserHostOptions): Promise<Bro
     }
 
     if (url.pathname.startsWith('/frame/') && req.method === 'GET') {
-      const [, , id, ...rest] = url.pathname.split('/');
-      let file: string;
-      try {
-        file = decodeURIComponent(rest.join('/'));
-      } catch {
-        return send(res, 400, 'bad name');
-      }
       // A frame holds tens of megabytes while it is decoded and scaled: a few at a time, a few more
       // waiting, the rest asked to come back (the page retries).
-      const rendering = frameGate.run(() =>
-        req.socket.destroyed ? Promise.resolve(null) : service.frameImage(Number(id), file, Number(url.searchParams.get('max') ?? 320)).catch(() => null),
+      const answer = await frameAnswer(service, { path: url.pathname.slice('/frame/'.length), max: url.searchParams.get('max') }, (render) =>
+        frameGate.run(() => (req.socket.destroyed ? Promise.resolve(null) : render())),
       );
-      if (!rendering) return send(res, 503, 'busy rendering other frames: try again', 'text/plain; charset=utf-8', { 'Retry-After': '1' });
-      const image = await rendering;
-      if (!image) return send(res, 404, 'no such frame');
-      return send(res, 200, image, 'image/jpeg');
+      if (answer.status === 200) return send(res, 200, answer.image, 'image/jpeg');
+      return send(res, answer.status, answer.text, 'text/plain; charset=utf-8', answer.status === 503 ? { 'Retry-After': '1' } : {});
     }
 
     if (req.method !== 'GET') return refuse(res, 405, 'method not allowed');

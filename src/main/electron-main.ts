@@ -6,7 +6,7 @@ import { app, BrowserWindow, dialog, ipcMain, protocol } from 'electron';
 import type { IpcMainInvokeEvent } from 'electron';
 import type { ApiCallName } from '../common/api.js';
 import { callChannels, eventChannels, frameProtocol } from '../common/api.js';
-import { createHandlers } from './api-handlers.js';
+import { createHandlers, frameAnswer } from './api-handlers.js';
 import { AppService } from './app-service.js';
 import { ensureDemoShoot } from './demo-shoot.js';
 import { readAsset } from './page-assets.js';
@@ -44,9 +44,9 @@ app.whenReady().then(async () => {
   });
   protocol.handle(frameProtocol, async (request) => {
     const url = new URL(request.url);
-    const [, id, ...rest] = url.pathname.split('/');
-    const image = await service.frameImage(Number(id), decodeURIComponent(rest.join('/')), Number(url.searchParams.get('max') ?? 320)).catch(() => null);
-    return image ? new Response(new Uint8Array(image), { headers: { 'Content-Type': 'image/jpeg' } }) : new Response('not found', { status: 404 });
+    const answer = await frameAnswer(service, { path: url.pathname.slice(1), max: url.searchParams.get('max') });
+    if (answer.status === 200) return new Response(new Uint8Array(answer.image), { headers: { 'Content-Type': 'image/jpeg' } });
+    return new Response(answer.text, { status: answer.status, headers: { 'Content-Type': 'text/plain; charset=utf-8' } });
   });
 
   const handlers = createHandlers(service, {

@@ -1,34 +1,28 @@
-// The page's controller: holds the state (screen, report, budget, selection), talks to main only
-// through the SeamscoutApi object, and hands plain data to the views, which build DOM from it.
-import type { ExportFormat, HostInfo, LatestCheck, SeamscoutApi, ShotPreference } from '../common/api.js';
-import type { MatchBudget, Report } from '../core/report.js';
-import { sequenceReport } from '../core/sequence-report.js';
-import { renderAdvice } from './advice-view.js';
+// The page's controller: holds the check's life cycle (screen, report, budget), talks to main only
+// through the SeamscoutApi object, and wires the start screen, the progress view, the results screen
+// (results-screen.ts), the keyboard, drops and the settings; the views build DOM from plain data.
+import type { HostInfo, LatestCheck, SeamscoutApi, ShotPreference } from '../common/api.js';
+import type { MatchBudget } from '../core/report.js';
+import type { BudgetPanel } from './budget-panel.js';
 import { createBudgetPanel } from './budget-panel.js';
+import type { BudgetSaving } from './budget-save.js';
 import { createBudgetSaving } from './budget-save.js';
+import type { ShotPreferenceSaving } from './shot-preference.js';
 import { createShotPreference } from './shot-preference.js';
 import type { CheckEvent, CheckState, HostEvent, RunningCheck } from './check-state.js';
 import { checkIdOf, doneEvent, initialCheckState, reduce } from './check-state.js';
-import type { TiePointState } from './detail-view.js';
-import { renderDetail } from './detail-view.js';
 import { button, el, replaceChildren } from './dom.js';
+import type { DropTargets } from './drop.js';
 import { listenForDrops } from './drop.js';
 import { messageOf } from './format.js';
-import type { ExportResult } from './export-panel.js';
-import { renderExport } from './export-panel.js';
-import type { Navigation } from './navigation.js';
-import { afterReport, backToList as listNav, openedSequence, startNavigation, stepTo, withDetail, withoutDetail } from './navigation.js';
-import { chainPairs, findPair, pairKey } from './pairs.js';
 import type { ProgressView } from './progress-view.js';
 import { createProgressView } from './progress-view.js';
-import type { StartModel } from './start-view.js';
+import type { ResultsScreen } from './results-screen.js';
+import { createResultsScreen } from './results-screen.js';
+import type { StartActions, StartModel } from './start-view.js';
 import { renderStart } from './start-view.js';
-import { renderCoverage } from './coverage-view.js';
-import { createFrameImages } from './frame-images.js';
+import type { KeyTargets } from './keyboard.js';
 import { listenForKeys } from './keyboard.js';
-import { isCard, renderSequenceBar, renderSequenceList } from './sequence-list-view.js';
-import { renderStrip, revealInStrip } from './strip-view.js';
-import { focusedInSummary, renderSummary } from './summary-view.js';
 import { applyStoredTheme, themeToggle } from './theme.js';
 
 export interface MountOptions {
@@ -47,34 +41,34 @@ export interface MountedApp {
 /** The desktop bridge adds this beside the contract: a dropped file's path (Electron's webUtils). */
 type Bridge = SeamscoutApi & { pathForFile?: (file: File) => string };
 
+/** The mounted page: its parts, built once, and the controller's state, shared by the functions below. */
+interface Page {
+  readonly api: Bridge;
+  readonly doc: Document;
+  readonly view: HTMLElement;
+  readonly newCheck: HTMLButtonElement;
+  readonly saving: BudgetSaving;
+  readonly shots: ShotPreferenceSaving;
+  readonly panel: BudgetPanel;
+  readonly results: ResultsScreen;
+  readonly startActions: StartActions;
+  // State: the check's life cycle (screen, running check, report, budget, message) in one value.
+  state: CheckState;
+  // The progress view of the running check, made new for each.
+  progressView: ProgressView | null;
+  host: HostInfo | null;
+  recent: string[];
+  showPathField: boolean;
+}
+
 export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOptions = {}): MountedApp {
   const doc = root.ownerDocument;
   const win = doc.defaultView ?? window;
-  const storage = options.storage !== undefined ? options.storage : (() => {
-    try {
-      return win.localStorage;
-    } catch {
-      return null;
-    }
-  })();
-  const bridge = api as Bridge;
-
-  // State: the check's life cycle (screen, running check, report, budget, message) in one value.
-  let state: CheckState = initialCheckState;
-  // The progress view of the running check, made new for each.
-  let progressView: ProgressView | null = null;
-  let host: HostInfo | null = null;
-  let recent: string[] = [];
-  let showPathField = false;
-  // Where the user is in the results: a card's opened sequence, the selected entries, the open detail.
-  let nav: Navigation = startNavigation;
-  let lines = true;
-  let ties = new Map<string, TiePointState>();
-  let exportResult: ExportResult = { state: 'idle' };
+  const storage = options.storage !== undefined ? options.storage : localStorageOf(win);
 
   // The frame.
   applyStoredTheme(doc, storage);
-  const newCheck = button({ class: 'small', 'data-new-check': '' }, () => goStart(), 'New check');
+  const newCheck = button({ class: 'small', 'data-new-check': '' }, () => goStart(page), 'New check');
   const view = el('main', { class: 'view', id: 'view', tabindex: -1 });
   const footer = el('footer', { class: 'footer' });
   replaceChildren(
@@ -82,452 +76,257 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
     el('div', { class: 'app' }, el('header', { class: 'topbar' }, el('span', { class: 'brand' }, 'Seamscout'), el('span', { class: 'spacer' }), newCheck, themeToggle(doc, win, storage)), view, footer),
   );
 
-  // The results screen's parts, built once; the parts that depend on the report are refilled.
+  // The settings beside the results, and the results screen, built once; the parts that depend on the report are refilled.
   const saving = createBudgetSaving(api, options.saveDelayMs ?? 400);
-  const shots = createShotPreference(api, (p) => panel.setPrefer(p));
+  const shots = createShotPreference(api, (p) => page.panel.setPrefer(p));
   const panel = createBudgetPanel(
-    state.budget,
+    initialCheckState.budget,
     (b) => {
-      setBudget(b);
+      setBudget(page, b);
       saving.edit(b);
     },
-    { initial: shots.current, onChange: (p) => void setPrefer(p) },
+    { initial: shots.current, onChange: (p) => void setPrefer(page, p) },
   );
-  const summarySlot = el('div', { class: 'summary-slot' });
-  const listSlot = el('div', { class: 'list-slot' });
-  const stripSlot = el('div', { class: 'strip-slot' });
-  const stripSection = el('section', { class: 'strip-section', 'aria-label': 'Strip' }, el('h2', { class: 'visually-hidden' }, 'Strip'), stripSlot);
-  const coverageSlot = el('div', { class: 'coverage-slot' });
-  const detailSlot = el('div', { class: 'detail-slot' });
-  const adviceSlot = el('div', { class: 'advice-slot' });
-  const exportSlot = el('div', { class: 'export-slot' });
-  const wide = el('div', { class: 'results-wide' }, stripSection, coverageSlot, detailSlot);
-  const results = el(
-    'div',
-    { class: 'results' },
-    summarySlot,
-    wide,
-    // The card's list sits beside the budget, where a sequence's advice goes.
-    el('div', { class: 'results-main' }, listSlot, adviceSlot),
-    el('aside', { class: 'results-side' }, panel.element, saving.element, exportSlot),
-  );
+  const results = createResultsScreen({ doc, api, state: () => page.state, host: () => page.host, side: [panel.element, saving.element], switchPreference: () => void switchPreference(page) });
+  const page: Page = { api, doc, view, newCheck, saving, shots, panel, results, startActions: startActionsOf(() => page), state: initialCheckState, progressView: null, host: null, recent: [], showPathField: false };
 
-  const frames = createFrameImages((file, maxSide) => api.frameUrl(state.checkId ?? 0, file, maxSide));
-  const thumbnail = frames.thumbnail;
+  const offs = [
+    listenForKeys(doc, keyTargets(page)),
+    listenForDrops(win, root, dropTargets(page)),
+    api.onProgress((event) => hostEvent(page, { type: 'progress', event })),
+    api.onDone((e) => hostEvent(page, doneEvent(e))),
+    api.onPartial((event) => hostEvent(page, { type: 'partial', event })),
+  ];
 
-  // Rendering.
-  function render(): void {
-    const { screen, running, report } = state;
-    newCheck.hidden = screen !== 'results';
-    if (screen === 'start' || (screen === 'progress' && running?.writing)) {
-      replaceChildren(view, renderStart(startModel(), startActions));
-    } else if (screen === 'progress' && running && progressView) {
-      replaceChildren(view, progressView.element);
-      progressView.update(running.progress);
-    } else if (screen === 'results' && report) {
-      // While the check still runs, its progress (and Cancel) stays above the results so far.
-      // Put in place only when not already there: moving the results out and back would drop the focus.
-      const parts = running && progressView ? [progressView.element, results] : [results];
-      if (view.childNodes.length !== parts.length || parts.some((n, i) => view.childNodes[i] !== n)) replaceChildren(view, ...parts);
-      if (running) progressView?.update(running.progress);
-      fillResults();
-    }
-  }
+  render(page);
+  const ready = askHost(page, footer);
 
-  function startModel(): StartModel {
-    return { shell: host?.shell ?? null, recent, showPathField, canDrop: typeof bridge.pathForFile === 'function', message: state.message, hasResults: state.report !== null, prefer: shots.current, writing: state.running?.writing ?? null };
-  }
-
-  /** The card shows its list; a sequence opened from it, or a report of one sequence, shows the strip. */
-  const listing = (): boolean => state.report !== null && isCard(state.report) && nav.openSeq === null;
-
-  /** The report the strip, detail, coverage and advice are built from: the opened sequence alone, or the whole report. */
-  function shown(): Report | null {
-    const report = state.report;
-    if (!report) return null;
-    return isCard(report) && nav.openSeq !== null ? sequenceReport(report, nav.openSeq) : report;
-  }
-
-  function fillResults(): void {
-    const one = shown();
-    if (!state.report || !one) return;
-    if (listing()) fillList();
-    else fillSequence(state.report, one);
-  }
-
-  function fillList(): void {
-    const { report, running } = state;
-    if (!report) return;
-    const hadFocus = listSlot.contains(doc.activeElement) ? doc.activeElement?.getAttribute('data-sequence') ?? null : null;
-    replaceChildren(summarySlot, renderSummary(report, { switchPreference: running ? undefined : switchPreference, checking: running !== null }));
-    replaceChildren(listSlot, renderSequenceList(report, { thumbnail, selected: nav.listSelected, onOpen: openSequence, onSelect: (i) => selectSequence(i, false) }));
-    listSlot.hidden = false;
-    wide.hidden = true;
-    replaceChildren(stripSlot);
-    stripSection.hidden = true;
-    replaceChildren(coverageSlot);
-    replaceChildren(detailSlot);
-    // Advice names stations, counted within each sequence: it is read in the sequence it belongs to.
-    replaceChildren(adviceSlot);
-    adviceSlot.hidden = true;
-    replaceChildren(exportSlot, renderExport(exportResult, doExport));
-    if (hadFocus) listSlot.querySelector<HTMLElement>(`[data-sequence="${cssEscape(hadFocus)}"]`)?.focus();
-  }
-
-  function fillSequence(card: Report, report: Report): void {
-    replaceChildren(listSlot);
-    listSlot.hidden = true;
-    wide.hidden = false;
-    const hadFocus = stripSlot.contains(doc.activeElement) ? doc.activeElement?.getAttribute('data-pair') ?? null : null;
-    const summaryFocus = focusedInSummary(summarySlot);
-    const { openSeq, selected, detail } = nav;
-    const bar = isCard(card) && openSeq !== null ? renderSequenceBar(card, openSeq, backToList) : null;
-    const running = state.running;
-    replaceChildren(summarySlot, bar, renderSummary(report, { switchPreference: running ? undefined : switchPreference, checking: running !== null, show }));
-    // While the detail is open the strip is out of the document, so that [data-pair="a|b"] names
-    // one element only (the detail); thumbnails are kept and come back without reloading.
-    if (detail) replaceChildren(stripSlot);
-    else replaceChildren(stripSlot, renderStrip(report, { thumbnail, selected, onOpen: openDetail, onSelect: (k) => select(k, false) }));
-    // The plan, with a button to each item's pair or frame, is what to do; a report from before plans lists the advice.
-    replaceChildren(adviceSlot, report.plan ? null : renderAdvice(report, openDetail));
-    replaceChildren(coverageSlot, detail ? null : renderCoverage(report));
-    replaceChildren(exportSlot, renderExport(exportResult, doExport));
-    stripSection.hidden = detail !== null;
-    adviceSlot.hidden = detail !== null || !!report.plan;
-    if (detail) {
-      const onToggleLines = (): void => {
-        lines = !lines;
-        refreshDetail();
-      };
-      replaceChildren(detailSlot, renderDetail(report, detail, { image: frames.full, tiePoints: ties.get(detail) ?? { state: 'loading' }, lines, onBack: closeDetail, onToggleLines }));
-    } else {
-      replaceChildren(detailSlot);
-    }
-    if (hadFocus) stripSlot.querySelector<HTMLElement>(`[data-pair="${cssEscape(hadFocus)}"]`)?.focus();
-    if (summaryFocus) summarySlot.querySelector<HTMLElement>(summaryFocus)?.focus();
-  }
-
-  /** Redraws an open detail (tie points arrived, lines toggled), keeping focus on the same control. */
-  function refreshDetail(): void {
-    if (state.screen !== 'results' || !state.report || !nav.detail) return;
-    const a = doc.activeElement;
-    const focused = a && detailSlot.contains(a) ? (a.hasAttribute('data-toggle-lines') ? '[data-toggle-lines]' : '.back') : null;
-    fillResults();
-    if (focused) detailSlot.querySelector<HTMLElement>(focused)?.focus();
-  }
-
-  // Selection and the detail.
-  function markSelection(): void {
-    for (const n of stripSlot.querySelectorAll<HTMLElement>('[data-pair]')) {
-      const on = n.getAttribute('data-pair') === nav.selected;
-      n.classList.toggle('is-selected', on);
-      if (on) n.setAttribute('aria-current', 'true');
-      else n.removeAttribute('aria-current');
-    }
-  }
-
-  function select(key: string, focus: boolean): void {
-    nav = { ...nav, selected: key };
-    markSelection();
-    if (focus) stripSlot.querySelector<HTMLElement>(`[data-pair="${cssEscape(key)}"]`)?.focus();
-  }
-
-  function move(step: 1 | -1): void {
-    const report = shown();
-    if (!report) return;
-    const next = stepTo(chainPairs(report).map(pairKey), nav.selected, step);
-    if (next === undefined) return;
-    if (nav.detail) {
-      if (next !== nav.detail) openDetail(next);
-    } else {
-      select(next, true);
-    }
-  }
-
-  function openDetail(key: string): void {
-    const report = shown();
-    const checkId = state.checkId;
-    if (!report || checkId === null) return;
-    const p = findPair(report, key);
-    if (!p) return;
-    nav = withDetail(nav, key, chainPairs(report).some((q) => pairKey(q) === key));
-    if (!ties.has(key)) {
-      ties.set(key, { state: 'loading' });
-      const id = checkId;
-      api.tiePoints(id, p.a, p.b).then(
-        (points) => {
-          if (state.checkId !== id) return;
-          ties.set(key, { state: 'ready', points });
-          if (nav.detail === key) refreshDetail();
-        },
-        (e) => {
-          if (state.checkId !== id) return;
-          ties.set(key, { state: 'failed', message: messageOf(e) });
-          if (nav.detail === key) refreshDetail();
-        },
-      );
-    }
-    fillResults();
-    // The detail opens at the top of the window, its measures in sight whatever stands above it.
-    detailSlot.scrollIntoView?.({ block: 'start' });
-    detailSlot.querySelector<HTMLElement>('.back')?.focus({ preventScroll: true });
-  }
-
-  /** Shows a station or frame of the strip (closing the detail first): the plan's and the overview's buttons. */
-  function reveal(what: { station: number } | { frame: string }): void {
-    if (nav.detail) {
-      nav = withoutDetail(nav);
-      fillResults();
-    }
-    revealInStrip(stripSlot, what);
-  }
-  const show = { onOpenPair: (key: string) => openDetail(key), onShowStation: (station: number) => reveal({ station }), onShowFrame: (frame: string) => reveal({ frame }) };
-
-  function closeDetail(): void {
-    const { detail: key, selected } = nav;
-    nav = withoutDetail(nav);
-    fillResults();
-    const target = (selected && stripSlot.querySelector<HTMLElement>(`[data-pair="${cssEscape(selected)}"]`)) || (key && stripSlot.querySelector<HTMLElement>(`[data-pair="${cssEscape(key)}"]`));
-    if (target) target.focus();
-  }
-
-  // The card's list.
-  function selectSequence(index: number, focus: boolean): void {
-    nav = { ...nav, listSelected: index };
-    for (const n of listSlot.querySelectorAll<HTMLElement>('[data-sequence]')) {
-      const on = Number(n.getAttribute('data-sequence')) === index;
-      n.classList.toggle('is-selected', on);
-      if (on) n.setAttribute('aria-current', 'true');
-      else n.removeAttribute('aria-current');
-    }
-    if (focus) listSlot.querySelector<HTMLElement>(`[data-sequence="${index}"]`)?.focus();
-  }
-
-  function moveInList(step: 1 | -1): void {
-    const next = stepTo((state.report?.sequences ?? []).map((q) => q.index), nav.listSelected, step);
-    if (next !== undefined) selectSequence(next, true);
-  }
-
-  function openSequence(index: number): void {
-    if (!state.report || !(state.report.sequences ?? []).some((q) => q.index === index)) return;
-    nav = openedSequence(index);
-    fillResults();
-    summarySlot.querySelector<HTMLElement>('[data-back-to-list]')?.focus();
-  }
-
-  function backToList(): void {
-    nav = listNav(nav);
-    fillResults();
-    const { listSelected } = nav;
-    if (listSelected !== null) listSlot.querySelector<HTMLElement>(`[data-sequence="${listSelected}"]`)?.focus();
-  }
-
-  // Budget.
-  function setBudget(b: MatchBudget): void {
-    dispatch({ type: 'budget-changed', budget: b });
-    if (state.raw && state.screen === 'results') fillResults();
-  }
-
-  // Checks: every change of the life cycle goes through the reducer; what follows draws and calls the host.
-  /** Applies an event and returns the state before it. A new check forgets what was shown of the old one. */
-  function dispatch(e: CheckEvent): CheckState {
-    const prev = state;
-    state = reduce(prev, e);
-    if (state.checkId !== prev.checkId) {
-      nav = startNavigation;
-      ties = new Map();
-      frames.forget();
-      exportResult = { state: 'idle' };
-    }
-    if (state.raw !== prev.raw && state.report) nav = afterReport(nav, state.report);
-    return prev;
-  }
-
-  /**
-   * Draws what host events changed, no more: the progress view is updated in place so Cancel keeps
-   * the focus. A report received is drawn again even when it is the same, keeping the focus within.
-   */
-  function drawAfter(prev: CheckState, events: readonly HostEvent[]): void {
-    const s = state;
-    if (s === prev) return;
-    const received = events.some((e) => e.type === 'partial' || e.type === 'done');
-    if (received || s.report !== prev.report || s.screen !== prev.screen || s.message !== prev.message) render();
-    else if (s.running && s.running.writing !== prev.running?.writing && s.screen === 'progress') render();
-    else if (s.running && s.running.progress !== prev.running?.progress && s.screen !== 'start') progressView?.update(s.running.progress);
-    // A check that ended (with its report, cancelled or stopped) is now among the recent folders.
-    if (prev.running && !s.running) void refreshRecent();
-  }
-
-  const hostEvent = (e: HostEvent): void => drawAfter(dispatch(e), [e]);
-  // Read after an await: the state may have moved on meanwhile.
-  const runningNow = (): RunningCheck | null => state.running;
-
-  async function startCheck(target: { folder: string } | { demo: true }, label: string): Promise<void> {
-    if (state.running) return;
-    dispatch({ type: 'started', label });
-    const serial = state.serial;
-    const pv = createProgressView(cancel);
-    progressView = pv;
-    render();
-    pv.element.querySelector<HTMLElement>('[data-cancel]')?.focus();
-    try {
-      const id = await api.startCheck(target);
-      const r = runningNow();
-      if (r?.serial !== serial) return;
-      const asked = r.cancelAsked;
-      const prev = dispatch({ type: 'accepted', serial, checkId: id });
-      if (asked) void api.cancelCheck(id).catch(() => undefined);
-      drawAfter(prev, prev.early.filter((x) => checkIdOf(x) === id));
-    } catch (e) {
-      if (runningNow()?.serial !== serial) return;
-      dispatch({ type: 'start-failed', serial, error: messageOf(e) });
-      render();
-    }
-  }
-
-  function cancel(): void {
-    dispatch({ type: 'cancel-asked' });
-    const r = state.running;
-    if (!r) return;
-    progressView?.update(r.progress);
-    if (r.id !== null) void api.cancelCheck(r.id).catch(() => undefined);
-  }
-
-  /** A page loaded again: the host's latest check, still running or with its report, instead of a new one. */
-  function resume(latest: LatestCheck): void {
-    if (latest.running) progressView = createProgressView(cancel);
-    dispatch({ type: 'resumed', latest });
-    render();
-  }
-
-  async function doExport(format: ExportFormat): Promise<void> {
-    const checkId = state.checkId;
-    if (checkId === null || exportResult.state === 'busy') return;
-    exportResult = { state: 'busy', format };
-    replaceChildren(exportSlot, renderExport(exportResult, doExport));
-    try {
-      const path = await api.exportReport(checkId, format, state.budget);
-      exportResult = path === null ? { state: 'cancelled' } : { state: 'written', path, shell: host?.shell ?? 'desktop' };
-    } catch (e) {
-      exportResult = { state: 'failed', message: messageOf(e) };
-    }
-    if (state.screen === 'results') {
-      replaceChildren(exportSlot, renderExport(exportResult, doExport));
-      exportSlot.querySelector<HTMLElement>(`[data-export="${format}"]`)?.focus();
-    }
-  }
-
-  // Which file of a RAW+JPEG shot to check.
-  async function setPrefer(p: ShotPreference): Promise<boolean> {
-    const error = await shots.choose(p);
-    if (error === null) return true;
-    dispatch({ type: 'notice', message: { kind: 'error', text: `The choice of RAW or JPEG could not be saved: ${error}` } });
-    if (state.screen === 'start') render();
-    return false;
-  }
-
-  /** Checks the shown folder again, reading the other file of each RAW+JPEG shot. */
-  async function switchPreference(): Promise<void> {
-    const report = state.report;
-    if (!report?.rawPlusJpeg || state.running) return;
-    const folder = report.folder;
-    if (!(await setPrefer(report.rawPlusJpeg.checked === 'raw' ? 'jpeg' : 'raw'))) {
-      saving.say(state.message?.text ?? '');
-      return;
-    }
-    openFolder(folder);
-  }
-
-  // Start screen.
-  function goStart(): void {
-    if (state.screen === 'progress') return;
-    dispatch({ type: 'back-to-start' });
-    render();
-    view.querySelector<HTMLElement>('[data-back-to-results], [data-choose-folder]')?.focus();
-  }
-
-  const openFolder = (folder: string): void => {
-    void startCheck({ folder }, folder.split(/[\\/]/).filter(Boolean).pop() ?? folder);
-  };
-
-  const startActions = {
-    chooseFolder: async (): Promise<void> => {
-      let folder: string | null = null;
-      try {
-        folder = await api.chooseFolder();
-      } catch (e) {
-        dispatch({ type: 'notice', message: { kind: 'error', text: `No folder dialog: ${messageOf(e)}` } });
-      }
-      if (folder) {
-        openFolder(folder);
-        return;
-      }
-      if ((host ?? (await api.hostInfo().catch(() => null)))?.shell === 'browser') showPathField = true;
-      if (state.screen === 'start') {
-        render();
-        view.querySelector<HTMLInputElement>('input[name="folder"]')?.focus();
-      }
-    },
-    openFolder,
-    tryDemo: (): void => void startCheck({ demo: true }, 'the demo shoot'),
-    setPrefer: (p: ShotPreference): void => void setPrefer(p),
-    backToResults: (): void => {
-      if (!state.report) return;
-      dispatch({ type: 'back-to-results' });
-      render();
+  return {
+    ready,
+    destroy(): void {
+      for (const off of offs) off();
+      saving.dispose();
+      replaceChildren(root);
     },
   };
+}
 
-  async function refreshRecent(): Promise<void> {
-    try {
-      recent = await api.recentFolders();
-    } catch {
-      recent = [];
-    }
-    if (state.screen === 'start') render();
+function localStorageOf(win: Window): Storage | null {
+  try {
+    return win.localStorage;
+  } catch {
+    return null;
   }
+}
 
-  const offKeys = listenForKeys(doc, {
-    showing: () => (state.screen !== 'results' || !state.report ? null : listing() ? 'list' : 'strip'),
-    list: { selected: () => nav.listSelected, move: moveInList, open: openSequence },
-    strip: {
-      selected: () => nav.selected,
-      detailOpen: () => nav.detail !== null,
-      move,
-      open: openDetail,
-      closeDetail,
-      inCard: () => nav.openSeq !== null && state.report !== null && isCard(state.report),
-      backToList,
+// Rendering.
+function render(p: Page): void {
+  const { screen, running, report } = p.state;
+  const { view, progressView } = p;
+  p.newCheck.hidden = screen !== 'results';
+  if (screen === 'start' || (screen === 'progress' && running?.writing)) {
+    replaceChildren(view, renderStart(startModel(p), p.startActions));
+  } else if (screen === 'progress' && running && progressView) {
+    replaceChildren(view, progressView.element);
+    progressView.update(running.progress);
+  } else if (screen === 'results' && report) {
+    // While the check still runs, its progress (and Cancel) stays above the results so far.
+    // Put in place only when not already there: moving the results out and back would drop the focus.
+    const parts = running && progressView ? [progressView.element, p.results.element] : [p.results.element];
+    if (view.childNodes.length !== parts.length || parts.some((n, i) => view.childNodes[i] !== n)) replaceChildren(view, ...parts);
+    if (running) progressView?.update(running.progress);
+    p.results.fill();
+  }
+}
+
+function startModel(p: Page): StartModel {
+  const { state } = p;
+  return { shell: p.host?.shell ?? null, recent: p.recent, showPathField: p.showPathField, canDrop: typeof p.api.pathForFile === 'function', message: state.message, hasResults: state.report !== null, prefer: p.shots.current, writing: state.running?.writing ?? null };
+}
+
+// Budget.
+function setBudget(p: Page, b: MatchBudget): void {
+  dispatch(p, { type: 'budget-changed', budget: b });
+  if (p.state.raw && p.state.screen === 'results') p.results.fill();
+}
+
+// Checks: every change of the life cycle goes through the reducer; what follows draws and calls the host.
+/** Applies an event and returns the state before it. A new check forgets what was shown of the old one. */
+function dispatch(p: Page, e: CheckEvent): CheckState {
+  const prev = p.state;
+  p.state = reduce(prev, e);
+  if (p.state.checkId !== prev.checkId) p.results.forgetCheck();
+  if (p.state.raw !== prev.raw && p.state.report) p.results.reportChanged(p.state.report);
+  return prev;
+}
+
+/**
+ * Draws what host events changed, no more: the progress view is updated in place so Cancel keeps
+ * the focus. A report received is drawn again even when it is the same, keeping the focus within.
+ */
+function drawAfter(p: Page, prev: CheckState, events: readonly HostEvent[]): void {
+  const s = p.state;
+  if (s === prev) return;
+  const received = events.some((e) => e.type === 'partial' || e.type === 'done');
+  if (received || s.report !== prev.report || s.screen !== prev.screen || s.message !== prev.message) render(p);
+  else if (s.running && s.running.writing !== prev.running?.writing && s.screen === 'progress') render(p);
+  else if (s.running && s.running.progress !== prev.running?.progress && s.screen !== 'start') p.progressView?.update(s.running.progress);
+  // A check that ended (with its report, cancelled or stopped) is now among the recent folders.
+  if (prev.running && !s.running) void refreshRecent(p);
+}
+
+const hostEvent = (p: Page, e: HostEvent): void => drawAfter(p, dispatch(p, e), [e]);
+// Read after an await: the state may have moved on meanwhile.
+const runningNow = (p: Page): RunningCheck | null => p.state.running;
+
+async function startCheck(p: Page, target: { folder: string } | { demo: true }, label: string): Promise<void> {
+  if (p.state.running) return;
+  dispatch(p, { type: 'started', label });
+  const serial = p.state.serial;
+  const pv = createProgressView(() => cancel(p));
+  p.progressView = pv;
+  render(p);
+  pv.element.querySelector<HTMLElement>('[data-cancel]')?.focus();
+  try {
+    const id = await p.api.startCheck(target);
+    const r = runningNow(p);
+    if (r?.serial !== serial) return;
+    const asked = r.cancelAsked;
+    const prev = dispatch(p, { type: 'accepted', serial, checkId: id });
+    if (asked) void p.api.cancelCheck(id).catch(() => undefined);
+    drawAfter(p, prev, prev.early.filter((x) => checkIdOf(x) === id));
+  } catch (e) {
+    if (runningNow(p)?.serial !== serial) return;
+    dispatch(p, { type: 'start-failed', serial, error: messageOf(e) });
+    render(p);
+  }
+}
+
+function cancel(p: Page): void {
+  dispatch(p, { type: 'cancel-asked' });
+  const r = p.state.running;
+  if (!r) return;
+  p.progressView?.update(r.progress);
+  if (r.id !== null) void p.api.cancelCheck(r.id).catch(() => undefined);
+}
+
+/** A page loaded again: the host's latest check, still running or with its report, instead of a new one. */
+function resume(p: Page, latest: LatestCheck): void {
+  if (latest.running) p.progressView = createProgressView(() => cancel(p));
+  dispatch(p, { type: 'resumed', latest });
+  render(p);
+}
+
+// Which file of a RAW+JPEG shot to check.
+async function setPrefer(p: Page, prefer: ShotPreference): Promise<boolean> {
+  const error = await p.shots.choose(prefer);
+  if (error === null) return true;
+  dispatch(p, { type: 'notice', message: { kind: 'error', text: `The choice of RAW or JPEG could not be saved: ${error}` } });
+  if (p.state.screen === 'start') render(p);
+  return false;
+}
+
+/** Checks the shown folder again, reading the other file of each RAW+JPEG shot. */
+async function switchPreference(p: Page): Promise<void> {
+  const report = p.state.report;
+  if (!report?.rawPlusJpeg || p.state.running) return;
+  const folder = report.folder;
+  if (!(await setPrefer(p, report.rawPlusJpeg.checked === 'raw' ? 'jpeg' : 'raw'))) {
+    p.saving.say(p.state.message?.text ?? '');
+    return;
+  }
+  openFolder(p, folder);
+}
+
+// Start screen.
+function goStart(p: Page): void {
+  if (p.state.screen === 'progress') return;
+  dispatch(p, { type: 'back-to-start' });
+  render(p);
+  p.view.querySelector<HTMLElement>('[data-back-to-results], [data-choose-folder]')?.focus();
+}
+
+function openFolder(p: Page, folder: string): void {
+  void startCheck(p, { folder }, folder.split(/[\\/]/).filter(Boolean).pop() ?? folder);
+}
+
+/** The start screen's buttons; `page` is read when one is used (the page is built after them). */
+function startActionsOf(page: () => Page): StartActions {
+  return {
+    chooseFolder: () => void chooseFolder(page()),
+    openFolder: (folder) => openFolder(page(), folder),
+    tryDemo: () => void startCheck(page(), { demo: true }, 'the demo shoot'),
+    setPrefer: (prefer) => void setPrefer(page(), prefer),
+    backToResults: () => {
+      const p = page();
+      if (!p.state.report) return;
+      dispatch(p, { type: 'back-to-results' });
+      render(p);
     },
-    goStart,
-  });
+  };
+}
 
-  const offDrops = listenForDrops(win, root, {
-    busy: () => state.screen === 'progress',
-    pathOf: (file) => bridge.pathForFile?.(file) ?? '',
-    open: openFolder,
+async function chooseFolder(p: Page): Promise<void> {
+  let folder: string | null = null;
+  try {
+    folder = await p.api.chooseFolder();
+  } catch (e) {
+    dispatch(p, { type: 'notice', message: { kind: 'error', text: `No folder dialog: ${messageOf(e)}` } });
+  }
+  if (folder) {
+    openFolder(p, folder);
+    return;
+  }
+  if ((p.host ?? (await p.api.hostInfo().catch(() => null)))?.shell === 'browser') p.showPathField = true;
+  if (p.state.screen === 'start') {
+    render(p);
+    p.view.querySelector<HTMLInputElement>('input[name="folder"]')?.focus();
+  }
+}
+
+async function refreshRecent(p: Page): Promise<void> {
+  try {
+    p.recent = await p.api.recentFolders();
+  } catch {
+    p.recent = [];
+  }
+  if (p.state.screen === 'start') render(p);
+}
+
+function keyTargets(p: Page): KeyTargets {
+  return {
+    showing: () => (p.state.screen !== 'results' || !p.state.report ? null : p.results.listing() ? 'list' : 'strip'),
+    ...p.results.keys,
+    goStart: () => goStart(p),
+  };
+}
+
+function dropTargets(p: Page): DropTargets {
+  return {
+    busy: () => p.state.screen === 'progress',
+    pathOf: (file) => p.api.pathForFile?.(file) ?? '',
+    open: (folder) => openFolder(p, folder),
     refused: () => {
-      if (host?.shell === 'browser') showPathField = true;
-      dispatch({ type: 'back-to-start', message: { kind: 'info', text: 'Dropping a folder needs the desktop app: use Open folder… or type the folder path instead.' } });
-      render();
+      if (p.host?.shell === 'browser') p.showPathField = true;
+      dispatch(p, { type: 'back-to-start', message: { kind: 'info', text: 'Dropping a folder needs the desktop app: use Open folder… or type the folder path instead.' } });
+      render(p);
     },
-  });
-  const offProgress = api.onProgress((event) => hostEvent({ type: 'progress', event }));
-  const offDone = api.onDone((e) => hostEvent(doneEvent(e)));
-  const offPartial = api.onPartial((event) => hostEvent({ type: 'partial', event }));
+  };
+}
 
-  render();
-
-  const ready = Promise.all([
+/** Asks the host what it is, the recent folders and the stored settings; then opens what the host says to. */
+async function askHost(p: Page, footer: HTMLElement): Promise<void> {
+  const { api, saving } = p;
+  await Promise.all([
     api.hostInfo().then((h) => {
-      host = h;
+      p.host = h;
       footer.textContent = `Seamscout ${h.version} · ${h.shell === 'desktop' ? 'desktop app' : 'in the browser'}`;
     }, () => undefined),
     api.recentFolders().then((r) => {
-      recent = r;
+      p.recent = r;
     }, () => undefined),
-    api.loadShotPreference().then((p) => {
-      shots.loaded(p);
+    api.loadShotPreference().then((prefer) => {
+      p.shots.loaded(prefer);
     }, () => undefined),
     // Tolerant of a bridge without it: the path is only said when a budget is saved.
     Promise.resolve()
@@ -538,34 +337,15 @@ export function mountApp(root: HTMLElement, api: SeamscoutApi, options: MountOpt
       .catch(() => undefined),
     api.loadBudget().then((b) => {
       if (saving.edited) return;
-      panel.set(b);
-      setBudget(b);
+      p.panel.set(b);
+      setBudget(p, b);
     }, (e) => saving.say(`The stored budget could not be read (${messageOf(e)}); using the defaults.`)),
-  ]).then(() => {
-    // Opened with a folder (or, by default, the demo shoot): go straight to its check.
-    const first = host?.initialTarget;
-    if (state.screen === 'start' && host?.latest) resume(host.latest);
-    else if (state.screen === 'start' && first) {
-      if ('demo' in first) startActions.tryDemo();
-      else openFolder(first.folder);
-    } else if (state.screen === 'start') render();
-  });
-
-  return {
-    ready,
-    destroy(): void {
-      offKeys();
-      offDrops();
-      offProgress();
-      offDone();
-      offPartial();
-      saving.dispose();
-      replaceChildren(root);
-    },
-  };
-}
-
-/** Quotes a value for an attribute selector (file names may hold quotes or backslashes). */
-function cssEscape(v: string): string {
-  return v.replace(/["\\]/g, '\\$&');
+  ]);
+  // Opened with a folder (or, by default, the demo shoot): go straight to its check.
+  const first = p.host?.initialTarget;
+  if (p.state.screen === 'start' && p.host?.latest) resume(p, p.host.latest);
+  else if (p.state.screen === 'start' && first) {
+    if ('demo' in first) p.startActions.tryDemo();
+    else openFolder(p, first.folder);
+  } else if (p.state.screen === 'start') render(p);
 }

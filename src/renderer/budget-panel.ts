@@ -63,52 +63,27 @@ export function createBudgetPanel(initial: MatchBudget, onChange: (b: MatchBudge
   };
 
   const edited = (changed: BudgetField): void => {
-    const text = typed();
-    let bad = false;
-    // Each field on its own first, so every bad field shows its own message (the two overlaps held
-    // apart so that only the field's own range is checked here).
-    for (const f of budgetFields) {
-      try {
-        budgetFromTyped({ values: { reshootOverlap: 0, weakOverlap: 100 }, name: (k) => k }, panelBudget({ [f.name]: typedValue(text[f.name]) }));
-        showError(f.name, null);
-      } catch (e) {
-        showError(f.name, (e as Error).message);
-        bad = true;
-      }
-    }
-    if (bad) return;
-    const layer = { ...Object.fromEntries(budgetFields.map((f) => [f.name, typedValue(text[f.name])])), fullSphere: sphere.checked };
-    try {
-      const next = budgetFromTyped(panelBudget(layer));
-      good = next;
-      onChange(next);
-    } catch (e) {
+    const typedNow = readTyped(typed(), sphere.checked);
+    for (const [name, message] of typedNow.fields) showError(name, message);
+    if (typedNow.budget) {
+      good = typedNow.budget;
+      onChange(typedNow.budget);
+    } else if (typedNow.relation !== null) {
       // Only the fields' relation is left to fail (reshoot above weak): say so beside the field just edited.
-      showError(changed.name, (e as Error).message);
+      showError(changed.name, typedNow.relation);
     }
   };
 
   const rows = budgetFields.map((f) => {
-    const id = `budget-${f.name}`;
-    const input = el('input', { id, name: f.name, type: 'text', inputmode: 'decimal', autocomplete: 'off', spellcheck: 'false', value: shown(f, initial), 'aria-describedby': `${id}-help ${id}-error` });
+    const { row, input, error } = fieldRow(f, shown(f, initial));
     input.addEventListener('input', () => edited(f));
     inputs.set(f.name, input);
-    const error = el('p', { class: 'field-error', id: `${id}-error`, role: 'alert', 'data-error-for': f.name });
-    error.hidden = true;
     errors.set(f.name, error);
-    return el('div', { class: 'field' }, el('label', { for: id }, f.label), input, el('p', { class: 'help', id: `${id}-help` }, f.help), error);
+    return row;
   });
 
-  // A declaration, not a threshold: the set is meant to cover straight up and down.
-  const sphere = el('input', { id: 'budget-fullSphere', name: 'fullSphere', type: 'checkbox', 'aria-describedby': 'budget-fullSphere-help' });
-  sphere.checked = initial.fullSphere === true;
+  const { row: sphereRow, input: sphere } = sphereField(initial.fullSphere === true);
   sphere.addEventListener('change', () => edited(budgetFields[0]));
-  const sphereRow = el(
-    'div',
-    { class: 'field field-check' },
-    el('label', { for: 'budget-fullSphere' }, sphere, ' Full sphere'),
-    el('p', { class: 'help', id: 'budget-fullSphere-help' }, 'the set is meant to cover straight up and down: an open zenith or nadir is a hole to reshoot (otherwise only a note unless frames reach toward it)'),
-  );
 
   const set = (b: MatchBudget): void => {
     good = b;
@@ -141,4 +116,50 @@ export function createBudgetPanel(initial: MatchBudget, onChange: (b: MatchBudge
     preferSlot,
   );
   return { element, set, setPrefer, current: () => good };
+}
+
+/** One threshold's field: its input, with its help and its error line named for screen readers. */
+function fieldRow(f: BudgetField, value: string): { row: HTMLElement; input: HTMLInputElement; error: HTMLElement } {
+  const id = `budget-${f.name}`;
+  const input = el('input', { id, name: f.name, type: 'text', inputmode: 'decimal', autocomplete: 'off', spellcheck: 'false', value, 'aria-describedby': `${id}-help ${id}-error` });
+  const error = el('p', { class: 'field-error', id: `${id}-error`, role: 'alert', 'data-error-for': f.name });
+  error.hidden = true;
+  return { row: el('div', { class: 'field' }, el('label', { for: id }, f.label), input, el('p', { class: 'help', id: `${id}-help` }, f.help), error), input, error };
+}
+
+/** A declaration, not a threshold: the set is meant to cover straight up and down. */
+function sphereField(on: boolean): { row: HTMLElement; input: HTMLInputElement } {
+  const input = el('input', { id: 'budget-fullSphere', name: 'fullSphere', type: 'checkbox', 'aria-describedby': 'budget-fullSphere-help' });
+  input.checked = on;
+  const row = el(
+    'div',
+    { class: 'field field-check' },
+    el('label', { for: 'budget-fullSphere' }, input, ' Full sphere'),
+    el('p', { class: 'help', id: 'budget-fullSphere-help' }, 'the set is meant to cover straight up and down: an open zenith or nadir is a hole to reshoot (otherwise only a note unless frames reach toward it)'),
+  );
+  return { row, input };
+}
+
+/**
+ * The typed fields judged: each field on its own first, so every bad field shows its own message
+ * (the two overlaps held apart so that only the field's own range is checked); with all good, the
+ * budget they make together, or why they do not fit together.
+ */
+function readTyped(text: Record<string, string>, fullSphere: boolean): { fields: [NumericBudgetKey, string | null][]; budget: MatchBudget | null; relation: string | null } {
+  const fields: [NumericBudgetKey, string | null][] = [];
+  for (const f of budgetFields) {
+    try {
+      budgetFromTyped({ values: { reshootOverlap: 0, weakOverlap: 100 }, name: (k) => k }, panelBudget({ [f.name]: typedValue(text[f.name]) }));
+      fields.push([f.name, null]);
+    } catch (e) {
+      fields.push([f.name, (e as Error).message]);
+    }
+  }
+  if (fields.some(([, m]) => m !== null)) return { fields, budget: null, relation: null };
+  const layer = { ...Object.fromEntries(budgetFields.map((f) => [f.name, typedValue(text[f.name])])), fullSphere };
+  try {
+    return { fields, budget: budgetFromTyped(panelBudget(layer)), relation: null };
+  } catch (e) {
+    return { fields, budget: null, relation: (e as Error).message };
+  }
 }
