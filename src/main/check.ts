@@ -12,7 +12,6 @@ import { groupStations } from '../core/stations.js';
 import type { RotationLink } from '../core/rotations.js';
 import { relativeRotation, rotationAngleOf } from '../core/rotations.js';
 import { bracketShift } from '../core/bracket-shift.js';
-import { circleCoverage } from '../core/coverage.js';
 import { lensFieldOfViewDeg, sequenceGeometry } from '../core/sequence-geometry.js';
 import { focalPxFrom35mm } from '../core/sweep.js';
 import type { AnalysisPool } from './analysis-pool.js';
@@ -30,7 +29,7 @@ import { oneFilePerShot } from './shot-pairs.js';
 import { FrameGate, inOrder, slots } from './concurrency.js';
 import type { FrameSummary, PlannedStation } from '../core/check-report.js';
 import { frameMeasure, pairMeasure, skipsInOrder, stationMeasures, tiePointsAtFullResolution } from '../core/check-report.js';
-import { estimatedTurnDeg, sequenceExifFocal, kindInRows, keepClosure, mayHaveClosed, otherReferencePairs, sameViewOtherExposure, showsAnotherView, tryRowClosure, tryTurnClosure } from '../core/check-plan.js';
+import { estimatedTurnDeg, sequenceExifFocal, kindInRows, keepClosure, mayHaveClosed, otherReferencePairs, rowClosures, rowOfStations, sameViewOtherExposure, settleStation, showsAnotherView, splitStation, stationPairs, tryTurnClosure } from '../core/check-plan.js';
 
 export interface CheckProgress {
   readonly phase: 'frames' | 'pairs';
@@ -379,28 +378,14 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
       const s = stations.length;
       stations.push({ members, reference, offsets, groupedBy });
       for (const m of members) stationOf[m] = s;
-      for (const m of members) if (m !== reference) plan(reference, m, 'bracket');
-      if (s > 0) plan(stations[s - 1].reference, reference, 'neighbour');
+      for (const p of stationPairs(members, reference, s > 0 ? stations[s - 1].reference : null)) plan(p.i, p.j, p.kind);
       finalised = s + 1;
       if (s > 0) release(stations[s - 1].reference);
       for (const m of members) release(m);
     };
 
     /** The frames of an EXIF group still in play, its reference (the member nearest 0 EV when it failed) and their offsets. */
-    const settle = (g: StationGroup): { members: number[]; reference: number; offsetOf: (m: number) => number | null } => {
-      const members = g.members.filter((m) => frames[m]);
-      let reference = g.reference;
-      if (!frames[reference] && members.length > 0) {
-        const off = (m: number): number => Math.abs(g.offsets[g.members.indexOf(m)] ?? 0);
-        reference = members.reduce((best, m) => (off(m) < off(best) ? m : best), members[0]);
-      }
-      const base = g.offsets[g.members.indexOf(reference)];
-      const offsetOf = (m: number): number | null => {
-        const o = g.offsets[g.members.indexOf(m)];
-        return o === null || base === null ? null : o - base;
-      };
-      return { members, reference, offsetOf };
-    };
+    const settle = (g: StationGroup) => settleStation(g, (m) => !!frames[m]);
     const decoded = (g: StationGroup): boolean => g.members.every((m) => frames[m] !== undefined);
     /** A bracket frame's content check: its pair with the reference, compared at once (no blocks: one pose). */
     const checkMembers = (members: number[], reference: number): Promise<unknown> =>
@@ -414,7 +399,8 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
      * stays (the content cannot tell; its bracket pair says so).
      */
     const finaliseGroup = async (g: StationGroup): Promise<void> => {
-      const { members, reference, offsetOf } = settle(g);
+      const settled = settle(g);
+      const { members, reference } = settled;
       if (members.length === 0) return;
       await checkMembers(members, reference);
       const apart = members.filter((m) => {
@@ -422,12 +408,7 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
         return r !== undefined && showsAnotherView(r);
       });
       for (const m of apart) pairResults.delete(`${reference}:${m}`);
-      const kept = members.filter((m) => !apart.includes(m));
-      const parts = [
-        { members: kept, reference, offsets: kept.map(offsetOf), groupedBy: kept.length === 1 ? 'single' as const : g.groupedBy },
-        ...apart.map((m) => ({ members: [m], reference: m, offsets: [offsetOf(m) === null ? null : 0], groupedBy: 'single' as const })),
-      ].sort((p, q) => p.members[0] - q.members[0]);
-      for (const p of parts) finalise(p.members, p.reference, p.offsets, p.groupedBy);
+      for (const p of splitStation(settled, apart, g.groupedBy)) finalise(p.members, p.reference, p.offsets, p.groupedBy);
     };
 
     // EXIF stations, finalised in order once all their frames are decoded (or failed) and checked
@@ -668,23 +649,18 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
      * its last station to its first; the turn-wide closure pair no longer applies.
      */
     async function byRows(g: SequenceGeometry): Promise<SequenceGeometry | null> {
-      const rowOf = new Int32Array(stations.length).fill(-1);
-      g.rows.forEach((r, k) => r.stations.forEach((s) => (rowOf[s] = k)));
+      const rowOf = rowOfStations(g.rows, stations.length);
       for (const p of planned) {
         p.kind = kindInRows(p.kind, rowOf[stationOf[p.i]], rowOf[stationOf[p.j]]);
       }
-      const hfov = (s: number): number => lensFieldOfViewDeg(frames[stations[s].reference]!.summary.fullWidth, g.focalPx, g.distortion ?? { k1: 0, k2: 0 });
-      const yawOf = new Map(g.poses.map((p) => [p.station, p.yawDeg]));
-      for (const r of g.rows) {
-        if (r.stations.length < 3) continue;
-        const covered = circleCoverage(r.stations.map((s) => yawOf.get(s)!), r.stations.map(hfov)).coveredDeg;
-        if (!tryRowClosure(r.stations.length, covered)) continue;
-        const i = stations[r.stations[r.stations.length - 1]].reference, j = stations[r.stations[0]].reference;
+      const hfov = stations.map((st) => lensFieldOfViewDeg(frames[st.reference]!.summary.fullWidth, g.focalPx, g.distortion ?? { k1: 0, k2: 0 }));
+      for (const { last, first, coveredDeg } of rowClosures(g.rows, g.poses, hfov)) {
+        const i = stations[last].reference, j = stations[first].reference;
         const known = planned.find((p) => (p.i === i && p.j === j) || (p.i === j && p.j === i));
         if (known) known.kind = 'closure';
         else {
           await analysePair(i, j);
-          if (keepClosure(pairResults.get(`${i}:${j}`)!.homography !== null, covered)) keep({ i, j, kind: 'closure' });
+          if (keepClosure(pairResults.get(`${i}:${j}`)!.homography !== null, coveredDeg)) keep({ i, j, kind: 'closure' });
         }
       }
       return geometryOf(planned.filter((p) => p.kind !== 'bracket'), null);
