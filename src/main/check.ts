@@ -559,7 +559,7 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
       const neighbours = planned.filter((p) => p.kind === 'neighbour');
       const chain = geometryOf(neighbours, null);
       if (!chain) return false;
-      const sizes = stations.map((st) => ({ width: frames[st.reference]!.summary.fullWidth, height: frames[st.reference]!.summary.fullHeight }));
+      const sizes = referenceSizes();
       let turned = 0;
       for (const p of neighbours.slice(0, -1)) {
         const m = fullPair(p.i, p.j);
@@ -609,7 +609,7 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
       if (failed.length === 0 || stations.length < 3) return;
       const chain = geometryOf(planned.filter((p) => p.kind === 'neighbour'), null);
       if (!chain) return;
-      const sizes = stations.map((st) => ({ width: frames[st.reference]!.summary.fullWidth, height: frames[st.reference]!.summary.fullHeight }));
+      const sizes = referenceSizes();
       // The closure pair is worth a try when the turns measured, with the typical turn for each
       // failed pair, and a frame's width come to most of a full turn.
       const turns = planned.filter((p) => p.kind === 'neighbour').flatMap((p) => {
@@ -653,7 +653,7 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
       for (const p of planned) {
         p.kind = kindInRows(p.kind, rowOf[stationOf[p.i]], rowOf[stationOf[p.j]]);
       }
-      const hfov = stations.map((st) => lensFieldOfViewDeg(frames[st.reference]!.summary.fullWidth, g.focalPx, g.distortion ?? { k1: 0, k2: 0 }));
+      const hfov = referenceSizes().map((size) => lensFieldOfViewDeg(size.width, g.focalPx, g.distortion ?? { k1: 0, k2: 0 }));
       for (const { last, first, coveredDeg } of rowClosures(g.rows, g.poses, hfov)) {
         const i = stations[last].reference, j = stations[first].reference;
         const known = planned.find((p) => (p.i === i && p.j === j) || (p.i === j && p.j === i));
@@ -664,6 +664,11 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
         }
       }
       return geometryOf(planned.filter((p) => p.kind !== 'bracket'), null);
+    }
+
+    /** Full-resolution size of each station's reference frame, by station. */
+    function referenceSizes(): { width: number; height: number }[] {
+      return stations.map((st) => ({ width: frames[st.reference]!.summary.fullWidth, height: frames[st.reference]!.summary.fullHeight }));
     }
 
     /** Full-resolution homography and tie points of a measured pair, or null without a model. */
@@ -685,7 +690,7 @@ export async function checkFrames(card: CardContents, only: readonly CardFile[] 
       };
       const links = pairs.map(link).filter((l): l is RotationLink => l !== null);
       if (links.length === 0) return null;
-      const sizes = stations.map((st) => ({ width: frames[st.reference]!.summary.fullWidth, height: frames[st.reference]!.summary.fullHeight }));
+      const sizes = referenceSizes();
       // One focal length for the set: the EXIF 35 mm equivalents, where every station has one.
       const f35 = stations.map((st) => frames[st.reference]!.exif.settings.focalLength35);
       const { exifFocal35mm, exifFocalPx } = sequenceExifFocal(f35, sizes[0].width, sizes[0].height);
