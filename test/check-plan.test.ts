@@ -1,7 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import {
   bracketMinEvDiff, bracketMinOverlap, closingTurnDeg, estimatedTurnDeg, keepClosure, kindInRows, mayHaveClosed, nearFullTurnDeg, otherReferencePairs,
-  sameViewMaxShiftFraction, sameViewOtherExposure, sequenceExifFocal, showsAnotherView, tryRowClosure, tryTurnClosure,
+  rowClosures, rowOfStations, sameViewMaxShiftFraction, sameViewOtherExposure, sequenceExifFocal, settleStation, showsAnotherView, splitStation,
+  stationPairs, tryRowClosure, tryTurnClosure,
 } from '../src/core/check-plan.js';
 
 /** A pure translation by (tx, ty) as a row-major 3x3 homography. */
@@ -119,5 +120,82 @@ describe('one EXIF focal length for the set', () => {
 
   it('gives none when any station lacks it', () => {
     expect(sequenceExifFocal([35, null, 35], 6000, 4000)).toEqual({ exifFocal35mm: null, exifFocalPx: null });
+  });
+});
+
+describe('station planning', () => {
+  it('plans each bracket frame with its reference in member order, then the neighbour pair from the previous reference', () => {
+    expect(stationPairs([3, 4, 5], 4, 1)).toEqual([
+      { i: 4, j: 3, kind: 'bracket' },
+      { i: 4, j: 5, kind: 'bracket' },
+      { i: 1, j: 4, kind: 'neighbour' },
+    ]);
+    expect(stationPairs([0, 1, 2], 0, null)).toEqual([{ i: 0, j: 1, kind: 'bracket' }, { i: 0, j: 2, kind: 'bracket' }]);
+    expect(stationPairs([7], 7, 6)).toEqual([{ i: 6, j: 7, kind: 'neighbour' }]);
+  });
+
+  it('settles a whole group as planned, offsets from the reference', () => {
+    const g = { members: [3, 4, 5], reference: 3, offsets: [0, -2, 2] };
+    expect(settleStation(g, () => true)).toEqual({ members: [3, 4, 5], reference: 3, offsets: [0, -2, 2] });
+  });
+
+  it('drops frames out of play and takes the member nearest 0 EV as reference when the planned one is out', () => {
+    const g = { members: [3, 4, 5, 6], reference: 3, offsets: [0, -1.5, 1, 3] };
+    const s = settleStation(g, (m) => m !== 3);
+    expect(s.members).toEqual([4, 5, 6]);
+    expect(s.reference).toBe(5);
+    expect(s.offsets).toEqual([-2.5, 0, 2]);
+    // A tie goes to the first in shooting order.
+    expect(settleStation({ members: [0, 1, 2], reference: 0, offsets: [0, 1, -1] }, (m) => m !== 0).reference).toBe(1);
+  });
+
+  it('gives unknown offsets where the frame or the reference has none, and nothing for a group all out', () => {
+    expect(settleStation({ members: [0, 1, 2], reference: 0, offsets: [0, null, 2] }, () => true).offsets).toEqual([0, null, 2]);
+    expect(settleStation({ members: [0, 1], reference: 0, offsets: [null, 2] }, () => true).offsets).toEqual([null, null]);
+    expect(settleStation({ members: [0, 1], reference: 0, offsets: [0, 2] }, () => false)).toEqual({ members: [], reference: 0, offsets: [] });
+  });
+
+  it('keeps a group whole when no member shows another view', () => {
+    const settled = { members: [3, 4, 5], reference: 4, offsets: [-2, 0, 2] };
+    expect(splitStation(settled, [], 'exif')).toEqual([{ members: [3, 4, 5], reference: 4, offsets: [-2, 0, 2], groupedBy: 'exif' }]);
+  });
+
+  it('sets apart a member that shows another view as a station of its own, in shooting order', () => {
+    const settled = { members: [3, 4, 5], reference: 4, offsets: [-2, 0, null] };
+    expect(splitStation(settled, [3, 5], 'exif')).toEqual([
+      { members: [3], reference: 3, offsets: [0], groupedBy: 'single' },
+      { members: [4], reference: 4, offsets: [0], groupedBy: 'single' },
+      { members: [5], reference: 5, offsets: [null], groupedBy: 'single' },
+    ]);
+    expect(splitStation({ members: [3, 4, 5], reference: 3, offsets: [0, 1, 2] }, [5], 'content')).toEqual([
+      { members: [3, 4], reference: 3, offsets: [0, 1], groupedBy: 'content' },
+      { members: [5], reference: 5, offsets: [0], groupedBy: 'single' },
+    ]);
+  });
+});
+
+describe('rows', () => {
+  it('tells each station its row, -1 for a station in none', () => {
+    expect(Array.from(rowOfStations([{ stations: [0, 1, 2] }, { stations: [4, 3] }], 6))).toEqual([0, 0, 0, 1, 1, -1]);
+  });
+
+  it('gives a closure pair to a row of three stations or more that comes most of the way round, last station to first', () => {
+    // Six stations 60 degrees apart, each seeing 70 degrees: the row covers the whole turn.
+    const full = [0, 1, 2, 3, 4, 5];
+    const poses = full.map((s) => ({ station: s, yawDeg: s * 60 }));
+    const wide = full.map(() => 70);
+    expect(rowClosures([{ stations: full }], poses, wide)).toEqual([{ last: 5, first: 0, coveredDeg: 360 }]);
+    // The same stations seeing 40 degrees each cover 240 degrees: short of most of a turn.
+    expect(rowClosures([{ stations: full }], poses, full.map(() => 40))).toEqual([]);
+  });
+
+  it('gives none to a row of two stations, and judges each row by its own stations', () => {
+    const poses = [0, 1, 2, 3, 4].map((s) => ({ station: s, yawDeg: s < 2 ? s * 180 : (s - 2) * 120 }));
+    const hfov = [200, 200, 130, 130, 130];
+    // Stations 0 and 1 cover the turn but are two; stations 2-4 at 120 degrees, 130 wide, cover it too.
+    expect(rowClosures([{ stations: [0, 1] }, { stations: [2, 3, 4] }], poses, hfov)).toEqual([{ last: 4, first: 2, coveredDeg: 360 }]);
+    // Three stations 90 degrees apart and 90 wide cover 270 degrees, short of the near-full-turn limit.
+    const narrow = [0, 1, 2].map((s) => ({ station: s, yawDeg: s * 90 }));
+    expect(rowClosures([{ stations: [0, 1, 2] }], narrow, [90, 90, 90])).toEqual([]);
   });
 });

@@ -7,6 +7,8 @@ import type { PairKind } from './report.js';
 import { cornerShift } from './pair-analysis.js';
 import { median } from './median.js';
 import { focalPxFrom35mm } from './sweep.js';
+import { circleCoverage } from './coverage.js';
+import type { StationGroup } from './stations.js';
 
 /** Frames covering this much of the horizon may have been meant as a full turn: the closure pair is tried (common practice). */
 export const nearFullTurnDeg = 300;
@@ -92,4 +94,99 @@ export function sequenceExifFocal(focal35PerStation: readonly (number | null)[],
   const exifFocal35mm = focal35PerStation.every((f) => f) ? median(focal35PerStation as number[]) : null;
   const exifFocalPx = exifFocal35mm !== null ? focalPxFrom35mm(exifFocal35mm, width, height) : null;
   return { exifFocal35mm, exifFocalPx };
+}
+
+/** A pair the check plans, by the frames' indices in shooting order. */
+export interface PlanPair {
+  readonly i: number;
+  readonly j: number;
+  readonly kind: PairKind;
+}
+
+/**
+ * The pairs a station brings once it is final: each bracket frame with its reference, in the order
+ * of the members, then the neighbour pair from the previous station's reference (null for the
+ * first station).
+ */
+export function stationPairs(members: readonly number[], reference: number, previousReference: number | null): PlanPair[] {
+  const pairs: PlanPair[] = members.filter((m) => m !== reference).map((m) => ({ i: reference, j: m, kind: 'bracket' as const }));
+  if (previousReference !== null) pairs.push({ i: previousReference, j: reference, kind: 'neighbour' });
+  return pairs;
+}
+
+/** An EXIF group as far as it is still in play: its frames, its reference and each frame's offset from the reference, EV (null: unknown). */
+export interface SettledStation {
+  readonly members: number[];
+  readonly reference: number;
+  readonly offsets: (number | null)[];
+}
+
+/**
+ * The frames of an EXIF group still in play (a frame left out or not decoded is not), its
+ * reference (the planned one; the member nearest 0 EV when that one is out) and their offsets
+ * from that reference.
+ */
+export function settleStation(group: Pick<StationGroup, 'members' | 'reference' | 'offsets'>, inPlay: (frame: number) => boolean): SettledStation {
+  const offsetOf = (m: number): number | null => group.offsets[group.members.indexOf(m)];
+  const members = group.members.filter(inPlay);
+  let reference = group.reference;
+  if (!inPlay(reference) && members.length > 0) {
+    const off = (m: number): number => Math.abs(offsetOf(m) ?? 0);
+    reference = members.reduce((best, m) => (off(m) < off(best) ? m : best), members[0]);
+  }
+  const base = offsetOf(reference);
+  const offsets = members.map((m) => {
+    const o = offsetOf(m);
+    return o === null || base === null ? null : o - base;
+  });
+  return { members, reference, offsets };
+}
+
+/** A station as it is finalised. */
+export interface StationPlan extends SettledStation {
+  readonly groupedBy: StationGroup['groupedBy'];
+}
+
+/**
+ * A settled group once its content is known: the members that show another view than the
+ * reference (never the reference itself) become stations of their own (offset 0, or null when
+ * unknown), the rest stay one station; all in shooting order of their first frame.
+ */
+export function splitStation(settled: SettledStation, apart: readonly number[], groupedBy: StationGroup['groupedBy']): StationPlan[] {
+  const offsetOf = (m: number): number | null => settled.offsets[settled.members.indexOf(m)];
+  const kept = settled.members.filter((m) => !apart.includes(m));
+  return [
+    { members: kept, reference: settled.reference, offsets: kept.map(offsetOf), groupedBy: kept.length === 1 ? 'single' as const : groupedBy },
+    ...apart.map((m) => ({ members: [m], reference: m, offsets: [offsetOf(m) === null ? null : 0], groupedBy: 'single' as const })),
+  ].sort((p, q) => p.members[0] - q.members[0]);
+}
+
+/** Each station's row (-1: in none), from the rows of the geometry. */
+export function rowOfStations(rows: readonly { readonly stations: readonly number[] }[], stationCount: number): Int32Array {
+  const rowOf = new Int32Array(stationCount).fill(-1);
+  rows.forEach((r, k) => r.stations.forEach((s) => (rowOf[s] = k)));
+  return rowOf;
+}
+
+/** A row's closure pair to try: its last station to its first (stations' indices), and how much of the horizon the row covers. */
+export interface RowClosure {
+  readonly last: number;
+  readonly first: number;
+  readonly coveredDeg: number;
+}
+
+/**
+ * The rows of a set shot in rows that get a closure pair of their own: three stations or more that
+ * come most of the way round, by the stations' yaw (poses) and each station's horizontal field of
+ * view (by station index), in the order of the rows.
+ */
+export function rowClosures(rows: readonly { readonly stations: readonly number[] }[], poses: readonly { readonly station: number; readonly yawDeg: number }[], hfovDeg: readonly number[]): RowClosure[] {
+  const yawOf = new Map(poses.map((p) => [p.station, p.yawDeg]));
+  const closures: RowClosure[] = [];
+  for (const r of rows) {
+    if (r.stations.length < 3) continue;
+    const covered = circleCoverage(r.stations.map((s) => yawOf.get(s)!), r.stations.map((s) => hfovDeg[s])).coveredDeg;
+    if (tryRowClosure(r.stations.length, covered)) closures.push({ last: r.stations[r.stations.length - 1], first: r.stations[0], coveredDeg: covered });
+  }
+  return closures;
 }
