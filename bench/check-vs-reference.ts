@@ -7,11 +7,11 @@
 // against the generator's truth (mean corner error at full resolution, overlap error).
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import type { DemoTruth } from '../src/core/demo-truth.js';
-import { demoTruthFile } from '../src/core/demo-truth.js';
-import { invert, normalise } from '../src/core/homography.js';
-import { overlapRegions } from '../src/core/overlap.js';
-import type { Report } from '../src/core/report.js';
+import type { DemoTruth } from '../src/core/demo/demo-truth.js';
+import { demoTruthFile } from '../src/core/demo/demo-truth.js';
+import { invert, normalise } from '../src/core/geometry/homography.js';
+import { overlapRegions } from '../src/core/geometry/overlap.js';
+import type { Report } from '../src/core/sequence/report.js';
 import { defaultMaxSide } from '../src/main/check.js';
 import { meanCornerError } from '../tools/images.js';
 import { loadOpenCV } from '../tools/opencv.js';

@@ -2,10 +2,10 @@
 // 1500x1000 and seen a second time through a known homography (a small roll and shift), each with
 // sensor-like noise and a JPEG round trip.
 import sharp from 'sharp';
-import { invert, multiply } from '../src/core/homography.js';
-import type { GrayImage } from '../src/core/image.js';
-import { createRandom } from '../src/core/random.js';
-import { warpBilinear } from '../src/core/warp.js';
+import { invert, multiply } from '../src/core/geometry/homography.js';
+import type { GrayImage } from '../src/core/image/image.js';
+import { createRandom } from '../src/core/numeric/random.js';
+import { warpBilinear } from '../src/core/image/warp.js';
 import { toCameraFrame } from '../tools/images.js';
 import { externalFixture } from '../tools/paths.js';
 

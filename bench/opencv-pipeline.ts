@@ -1,6 +1,6 @@
 // The reference pipeline for the benchmark, built from OpenCV's JavaScript build: ORB features,
 // brute-force Hamming matching with Lowe's ratio test, findHomography with RANSAC.
-import type { GrayImage } from '../src/core/image.js';
+import type { GrayImage } from '../src/core/image/image.js';
 import type { OpenCV } from '../tools/opencv.js';
 
 export interface CvFeatures {

@@ -3,17 +3,17 @@
 // detector runs with the check's settings (corners on the halved frame).
 // Speed targets (issue 2, this 2-core machine): detection + description under 35 ms per frame,
 // matching + RANSAC under 15 ms per pair, and faster than the OpenCV.js reference on each stage.
-import { adaptiveNonMaximalSuppression } from '../src/core/anms.js';
-import { defaultCandidateParams, findCandidates } from '../src/core/corners.js';
-import { detectAndDescribe } from '../src/core/features.js';
-import { harrisResponse } from '../src/core/harris.js';
-import { fitHomography } from '../src/core/homography-estimator.js';
-import { matchDescriptors } from '../src/core/match.js';
-import { correspondencesOf, estimatePairGeometry } from '../src/core/pair-geometry.js';
-import { buildPyramid } from '../src/core/pyramid.js';
-import { createScratchPool } from '../src/core/scratch.js';
-import { refineTiePoints } from '../src/core/tie-point-refine.js';
-import { checkFeatureParams as params } from '../src/core/pair-analysis.js';
+import { adaptiveNonMaximalSuppression } from '../src/core/features/anms.js';
+import { defaultCandidateParams, findCandidates } from '../src/core/features/corners.js';
+import { detectAndDescribe } from '../src/core/features/features.js';
+import { harrisResponse } from '../src/core/features/harris.js';
+import { fitHomography } from '../src/core/geometry/homography-estimator.js';
+import { matchDescriptors } from '../src/core/features/match.js';
+import { correspondencesOf, estimatePairGeometry } from '../src/core/geometry/pair-geometry.js';
+import { buildPyramid } from '../src/core/features/pyramid.js';
+import { createScratchPool } from '../src/core/image/scratch.js';
+import { refineTiePoints } from '../src/core/geometry/tie-point-refine.js';
+import { checkFeatureParams as params } from '../src/core/pair/pair-analysis.js';
 import { meanCornerError } from '../tools/images.js';
 import { loadOpenCV } from '../tools/opencv.js';
 import { benchPair } from './frames.js';

@@ -6,7 +6,7 @@ import { spawnSync } from 'node:child_process';
 import { readdirSync } from 'node:fs';
 import { join } from 'node:path';
 import sharp from 'sharp';
-import type { GrayImage } from '../src/core/image.js';
+import type { GrayImage } from '../src/core/image/image.js';
 import { decodeForAnalysis } from '../src/main/decode.js';
 import { projectRoot } from '../tools/paths.js';
 import { benchCache } from './sequences.js';

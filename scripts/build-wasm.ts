@@ -5,7 +5,7 @@ import { readFileSync, writeFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import wabtInit from 'wabt';
 
-export const kernels = [{ source: 'src/core/nearest-hamming.wat', module: 'src/core/nearest-hamming-wasm.ts', name: 'nearestHammingWasm' }];
+export const kernels = [{ source: 'src/core/features/nearest-hamming.wat', module: 'src/core/features/nearest-hamming-wasm.ts', name: 'nearestHammingWasm' }];
 
 const root = fileURLToPath(new URL('..', import.meta.url));
 

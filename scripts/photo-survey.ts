@@ -12,9 +12,9 @@
  */
 import { mkdir, readdir, writeFile } from 'node:fs/promises';
 import { join, resolve } from 'node:path';
-import { defaultBudget } from '../src/core/report.js';
-import type { Report } from '../src/core/report.js';
-import { judge } from '../src/core/verdicts.js';
+import { defaultBudget } from '../src/core/sequence/report.js';
+import type { Report } from '../src/core/sequence/report.js';
+import { judge } from '../src/core/sequence/verdicts.js';
 import { commandLineThreads, defaultMaxSide, runCheck } from '../src/main/check.js';
 import type { ExpectedFinding, Scenario } from '../test/helpers/photo-sequences.js';
 import type { FrameTruth, SequenceSpec } from '../test/helpers/photo-sequences.js';

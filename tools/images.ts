@@ -1,8 +1,8 @@
 // Frame making and homography comparison that the tests and the bench both use.
 import sharp from 'sharp';
-import type { FloatImage, GrayImage } from '../src/core/image.js';
-import { linearToSrgb, srgbToLinear } from '../src/core/srgb.js';
-import type { RandomSource } from '../src/core/random.js';
+import type { FloatImage, GrayImage } from '../src/core/image/image.js';
+import { linearToSrgb, srgbToLinear } from '../src/core/image/srgb.js';
+import type { RandomSource } from '../src/core/numeric/random.js';
 
 export interface Degradation {
   /** Exposure change in EV, applied in linear light (sRGB decode, scale, encode). */

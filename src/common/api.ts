@@ -2,7 +2,7 @@
 // both shells: the methods with their arguments and results, the channel names, the export formats
 // and the RAW+JPEG choice. The preload bridge (Electron) and the browser host's client implement it
 // for the page; main's handler table serves it. Pure: core types only, no Node, Electron or DOM.
-import type { MatchBudget, RawPlusJpeg, Report } from '../core/report.js';
+import type { MatchBudget, RawPlusJpeg, Report } from '../core/sequence/report.js';
 
 /** Progress of a running check, as it streams. */
 export interface CheckProgressEvent {

@@ -6,14 +6,14 @@ import { byteBudget, inputBudgetBytes } from './input-file.js';
 import { decodeCost } from './decode.js';
 import { runTaskHere as runTask } from './analysis-worker.js';
 import { errorFromCrossing } from './crossing-error.js';
-import type { AnalysisLens, FrameAnalysis, LensJudgement, PairAnalysis, PairOptions } from '../core/pair-analysis.js';
+import type { AnalysisLens, FrameAnalysis, LensJudgement, PairAnalysis, PairOptions } from '../core/pair/pair-analysis.js';
 
 const defaultPairOptions: PairOptions = { retryAtFullSize: true, overlapBlocks: true };
 
 export interface AnalysisPool {
   analyseFrame(path: InputPath, maxSide: number, signal?: AbortSignal): Promise<FrameAnalysis>;
   analysePair(a: FrameAnalysis, b: FrameAnalysis, options?: PairOptions, signal?: AbortSignal): Promise<PairAnalysis>;
-  /** A measured pair's overlap judged again through the sequence's lens (core/pair-analysis.ts, judgeThroughLens). */
+  /** A measured pair's overlap judged again through the sequence's lens (core/pair/pair-analysis.ts, judgeThroughLens). */
   judgeThroughLens(a: FrameAnalysis, b: FrameAnalysis, tiePoints: Float32Array, lens: AnalysisLens, signal?: AbortSignal): Promise<LensJudgement | null>;
   readonly threads: number;
   /** Worker threads alive right now. */

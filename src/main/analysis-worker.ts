@@ -1,8 +1,8 @@
 // The worker side of the analysis pool: one task at a time, no state kept between tasks.
-import type { AnalysisLens, FrameAnalysis, PairOptions } from '../core/pair-analysis.js';
+import type { AnalysisLens, FrameAnalysis, PairOptions } from '../core/pair/pair-analysis.js';
 import type { InputPath } from './input-file.js';
 import { analyseFrameFile, analysePair } from './frame-analysis.js';
-import { judgeThroughLens } from '../core/pair-analysis.js';
+import { judgeThroughLens } from '../core/pair/pair-analysis.js';
 import { errorToCross } from './crossing-error.js';
 
 export type AnalysisTask =

@@ -1,8 +1,8 @@
 import { opendir, realpath, stat } from 'node:fs/promises';
 import { isAbsolute, relative, resolve, sep } from 'node:path';
-import { budgetFromTyped, pageBudget } from '../core/budget.js';
-import type { MatchBudget, Report } from '../core/report.js';
-import { judge, rejudge } from '../core/verdicts.js';
+import { budgetFromTyped, pageBudget } from '../core/sequence/budget.js';
+import type { MatchBudget, Report } from '../core/sequence/report.js';
+import { judge, rejudge } from '../core/sequence/verdicts.js';
 import type { AnalysisPool } from './analysis-pool.js';
 import { createAnalysisPool } from './analysis-pool.js';
 import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat, LatestCheck } from '../common/api.js';

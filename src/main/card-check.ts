@@ -3,7 +3,7 @@
  * shots), so its frames are split into sequences and each is checked on its own, exactly as if it
  * were alone in a folder.
  *
- * The split weighs three kinds of evidence. The headers first (core/sequence-split.ts): a pause far
+ * The split weighs three kinds of evidence. The headers first (core/sequence/sequence-split.ts): a pause far
  * longer than the sequence's rhythm, a change of camera, lens, focal length or orientation. Then the
  * content, which wins over time: frames either side of a pause that overlap are one sequence (a
  * wait for a cloud in the middle of a turn), and a sequence whose neighbour pair found nothing in
@@ -11,9 +11,9 @@
  * panorama begun at once from another spot). A sequence of one frame, or of one station, is a
  * single shot.
  */
-import type { Analysis, SequenceAnalysis, SequenceSplit, SingleShot, SkippedFile, StationMeasure } from '../core/report.js';
-import type { SplitFrame } from '../core/sequence-split.js';
-import { splitByEvidence } from '../core/sequence-split.js';
+import type { Analysis, SequenceAnalysis, SequenceSplit, SingleShot, SkippedFile, StationMeasure } from '../core/sequence/report.js';
+import type { SplitFrame } from '../core/sequence/sequence-split.js';
+import { splitByEvidence } from '../core/sequence/sequence-split.js';
 import { createAnalysisPool } from './analysis-pool.js';
 import type { CardContents, CardFile, CheckOptions, CheckResult, TiePointSet } from './check.js';
 import { checkFrames, defaultMaxSide, readCard } from './check.js';

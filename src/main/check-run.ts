@@ -3,34 +3,34 @@
  * method. What to plan and judge is decided in the core (check-plan.ts, check-report.ts); this
  * class keeps the order of the I/O, the memory gate and the streaming.
  */
-import type { FrameSample } from '../core/candidate-pairs.js';
-import { sampleFeatures, screenPairs } from '../core/candidate-pairs.js';
-import { normalise } from '../core/homography.js';
-import { predictPairHomography, toAnalysisPixels } from '../core/guided-match.js';
-import { overlapRegions } from '../core/overlap.js';
-import type { FrameMeasure, PairKind, PairMeasure, SequenceGeometry, SkippedFile } from '../core/report.js';
-import { analysisToFull } from '../core/resolution.js';
-import type { StationGroup } from '../core/stations.js';
-import { groupStations } from '../core/stations.js';
-import type { RotationLink } from '../core/rotations.js';
-import { relativeRotation, rotationAngleOf } from '../core/rotations.js';
-import { bracketShift } from '../core/bracket-shift.js';
-import { lensFieldOfViewDeg, sequenceGeometry } from '../core/sequence-geometry.js';
-import { focalPxFrom35mm } from '../core/sweep.js';
+import type { FrameSample } from '../core/features/candidate-pairs.js';
+import { sampleFeatures, screenPairs } from '../core/features/candidate-pairs.js';
+import { normalise } from '../core/geometry/homography.js';
+import { predictPairHomography, toAnalysisPixels } from '../core/features/guided-match.js';
+import { overlapRegions } from '../core/geometry/overlap.js';
+import type { FrameMeasure, PairKind, PairMeasure, SequenceGeometry, SkippedFile } from '../core/sequence/report.js';
+import { analysisToFull } from '../core/image/resolution.js';
+import type { StationGroup } from '../core/sequence/stations.js';
+import { groupStations } from '../core/sequence/stations.js';
+import type { RotationLink } from '../core/geometry/rotations.js';
+import { relativeRotation, rotationAngleOf } from '../core/geometry/rotations.js';
+import { bracketShift } from '../core/geometry/bracket-shift.js';
+import { lensFieldOfViewDeg, sequenceGeometry } from '../core/geometry/sequence-geometry.js';
+import { focalPxFrom35mm } from '../core/geometry/sweep.js';
 import type { AnalysisPool } from './analysis-pool.js';
 import type { FrameExif } from './exif.js';
-import { sequenceLook, strayReason } from '../core/strays.js';
-import type { FrameAnalysis, PairAnalysis } from '../core/pair-analysis.js';
-import { cornerShift, fullResolution } from '../core/pair-analysis.js';
+import { sequenceLook, strayReason } from '../core/sequence/strays.js';
+import type { FrameAnalysis, PairAnalysis } from '../core/pair/pair-analysis.js';
+import { cornerShift, fullResolution } from '../core/pair/pair-analysis.js';
 import type { ScannedFile } from './scan.js';
 import { FrameGate, inOrder, slots } from './concurrency.js';
-import type { FrameSummary, PlannedStation } from '../core/check-report.js';
-import { frameMeasure, pairMeasure, skipsInOrder, stationMeasures, tiePointsAtFullResolution } from '../core/check-report.js';
-import type { SettledStation } from '../core/check-plan.js';
+import type { FrameSummary, PlannedStation } from '../core/sequence/check-report.js';
+import { frameMeasure, pairMeasure, skipsInOrder, stationMeasures, tiePointsAtFullResolution } from '../core/sequence/check-report.js';
+import type { SettledStation } from '../core/sequence/check-plan.js';
 import {
   estimatedTurnDeg, sequenceExifFocal, kindInRows, keepClosure, mayHaveClosed, otherReferencePairs, rowClosures, rowOfStations, sameViewOtherExposure,
   settleStation, showsAnotherView, splitStation, stationPairs, tryTurnClosure,
-} from '../core/check-plan.js';
+} from '../core/sequence/check-plan.js';
 import type { CardContents, CardFile, CheckOptions, CheckResult, TiePointSet } from './check.js';
 import { skipOf } from './skip-reasons.js';
 

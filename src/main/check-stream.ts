@@ -8,9 +8,9 @@
  * the coverage) or its kind (a set shot in rows: a row's closure pair), so the final summary has
  * the last word: it lists again only the pairs it judged otherwise.
  */
-import type { Analysis, FrameMeasure, MatchBudget, ReportPair, StationMeasure, Verdict } from '../core/report.js';
+import type { Analysis, FrameMeasure, MatchBudget, ReportPair, StationMeasure, Verdict } from '../core/sequence/report.js';
 import type { ShownPair } from './summary.js';
-import { judge } from '../core/verdicts.js';
+import { judge } from '../core/sequence/verdicts.js';
 import type { CheckProgress, PairStreamed } from './check.js';
 import { forTerminal, pairKey, pairRow, pairTableHeader, progressLine } from './summary.js';
 

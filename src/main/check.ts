@@ -1,12 +1,12 @@
 import { availableParallelism } from 'node:os';
-import { shootingOrder } from '../core/natural-order.js';
-import type { Analysis, FrameMeasure, PairMeasure, SkippedFile } from '../core/report.js';
+import { shootingOrder } from '../core/sequence/natural-order.js';
+import type { Analysis, FrameMeasure, PairMeasure, SkippedFile } from '../core/sequence/report.js';
 import type { AnalysisPool } from './analysis-pool.js';
 import { createAnalysisPool } from './analysis-pool.js';
 import type { FrameExif } from './exif.js';
 import type { FeatureCache } from './feature-cache.js';
 import { readFileHeaders } from './exif.js';
-import { sequenceLook, strayReason } from '../core/strays.js';
+import { sequenceLook, strayReason } from '../core/sequence/strays.js';
 import type { ScannedFile } from './scan.js';
 import { byteCopies, scanFolder } from './scan.js';
 import type { ShotPreference } from '../common/api.js';

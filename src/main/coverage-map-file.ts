@@ -1,6 +1,6 @@
 import sharp from 'sharp';
-import { coverageMapSvg } from '../core/coverage-map.js';
-import type { Report } from '../core/report.js';
+import { coverageMapSvg } from '../core/geometry/coverage-map.js';
+import type { Report } from '../core/sequence/report.js';
 
 export type CoverageMapFormat = 'svg' | 'png';
 

@@ -1,5 +1,5 @@
-import type { FileProblemKind } from '../core/file-problem.js';
-import { FileProblem } from '../core/file-problem.js';
+import type { FileProblemKind } from '../core/image/file-problem.js';
+import { FileProblem } from '../core/image/file-problem.js';
 
 /**
  * An error as it crosses from a worker thread: a thread's messages carry an Error's message and

@@ -1,13 +1,13 @@
 import type { Sharp } from 'sharp';
 import sharp from 'sharp';
-import type { GrayImage } from '../core/image.js';
+import type { GrayImage } from '../core/image/image.js';
 import type { RawPreview } from './raw-file.js';
 import { isRawFile, maxPreviewBytes, orient, readRawPreview } from './raw-file.js';
-import { jpegDemand, tooShortForItsSize } from '../core/jpeg-demand.js';
+import { jpegDemand, tooShortForItsSize } from '../core/image/jpeg-demand.js';
 import type { InputPath } from './input-file.js';
 import { inputBudget, readInputHead, readInputRest } from './input-file.js';
 import { tooShortError } from './exif.js';
-import { FileProblem } from '../core/file-problem.js';
+import { FileProblem } from '../core/image/file-problem.js';
 import { decoderProblem, garbledData, wordsLost } from './decoder-words.js';
 
 // libvips' operation cache keeps a finished decode's loader alive, and with it what the decoder

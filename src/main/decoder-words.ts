@@ -1,4 +1,4 @@
-import { FileProblem } from '../core/file-problem.js';
+import { FileProblem } from '../core/image/file-problem.js';
 
 // The one module that reads error text: the decoder's errors (sharp's, libvips' and libjpeg's
 // messages) carry no code or type, and their words are not ours to change.

@@ -1,7 +1,7 @@
 import { parseArgs } from 'node:util';
-import type { DemoPlanOptions } from '../core/demo-plan.js';
-import { defaultDemoPlanOptions, expectDemoPlanOptions, demoMaxPixels, demoMaxSide, demoMaxStations, demoMinSide, demoMinStationsWithProblems } from '../core/demo-plan.js';
-import { demoTruthFile } from '../core/demo-truth.js';
+import type { DemoPlanOptions } from '../core/demo/demo-plan.js';
+import { defaultDemoPlanOptions, expectDemoPlanOptions, demoMaxPixels, demoMaxSide, demoMaxStations, demoMinSide, demoMinStationsWithProblems } from '../core/demo/demo-plan.js';
+import { demoTruthFile } from '../core/demo/demo-truth.js';
 import { DemoFolderError, inspectShootFolder, writeDemoShoot } from './demo-writer.js';
 
 export const demoUsage = `Usage:

@@ -8,11 +8,11 @@ import { createRequire } from 'node:module';
 import { dirname, join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { Worker } from 'node:worker_threads';
-import { pixelAngle } from '../core/camera.js';
-import { demoCameraModel } from '../core/demo-plan.js';
-import type { RenderJob } from '../core/demo-station.js';
-import { renderJob } from '../core/demo-station.js';
-import { createScene, prepareSceneView } from '../core/scene-radiance.js';
+import { pixelAngle } from '../core/demo/camera.js';
+import { demoCameraModel } from '../core/demo/demo-plan.js';
+import type { RenderJob } from '../core/demo/demo-station.js';
+import { renderJob } from '../core/demo/demo-station.js';
+import { createScene, prepareSceneView } from '../core/demo/scene-radiance.js';
 import type { RenderReply, RenderRequest, RenderWorkerData } from './demo-render-worker.js';
 
 export interface RenderedFrame {

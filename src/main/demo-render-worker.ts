@@ -3,11 +3,11 @@
  * once, then renders each job it is sent and hands the 8-bit RGB pixels back without copying.
  */
 import { parentPort, workerData } from 'node:worker_threads';
-import { pixelAngle } from '../core/camera.js';
-import { demoCameraModel } from '../core/demo-plan.js';
-import type { RenderJob } from '../core/demo-station.js';
-import { renderJob } from '../core/demo-station.js';
-import { createScene, prepareSceneView } from '../core/scene-radiance.js';
+import { pixelAngle } from '../core/demo/camera.js';
+import { demoCameraModel } from '../core/demo/demo-plan.js';
+import type { RenderJob } from '../core/demo/demo-station.js';
+import { renderJob } from '../core/demo/demo-station.js';
+import { createScene, prepareSceneView } from '../core/demo/scene-radiance.js';
 
 export interface RenderWorkerData {
   readonly seed: number;

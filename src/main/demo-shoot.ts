@@ -1,9 +1,9 @@
 import { access } from 'node:fs/promises';
 import { availableParallelism } from 'node:os';
 import { join } from 'node:path';
-import type { DemoPlanOptions } from '../core/demo-plan.js';
-import { defaultDemoPlanOptions } from '../core/demo-plan.js';
-import { demoTruthFile } from '../core/demo-truth.js';
+import type { DemoPlanOptions } from '../core/demo/demo-plan.js';
+import { defaultDemoPlanOptions } from '../core/demo/demo-plan.js';
+import { demoTruthFile } from '../core/demo/demo-truth.js';
 import { cacheDir } from './user-dirs.js';
 import { writeDemoShoot } from './demo-writer.js';
 

@@ -6,13 +6,13 @@ import { mkdir, readdir, readFile, rename, rm, stat, writeFile } from 'node:fs/p
 import { availableParallelism } from 'node:os';
 import { join } from 'node:path';
 import sharp from 'sharp';
-import type { DemoCamera, DemoPlan, DemoPlanOptions, PlannedFrame } from '../core/demo-plan.js';
-import { defaultDemoPlanOptions, planDemoShoot } from '../core/demo-plan.js';
-import type { RenderJob } from '../core/demo-station.js';
-import { renderJobs } from '../core/demo-station.js';
-import type { DemoTruth } from '../core/demo-truth.js';
-import { demoTruth, demoTruthFile, demoTruthSchema } from '../core/demo-truth.js';
-import { focalLength35mm } from '../core/camera.js';
+import type { DemoCamera, DemoPlan, DemoPlanOptions, PlannedFrame } from '../core/demo/demo-plan.js';
+import { defaultDemoPlanOptions, planDemoShoot } from '../core/demo/demo-plan.js';
+import type { RenderJob } from '../core/demo/demo-station.js';
+import { renderJobs } from '../core/demo/demo-station.js';
+import type { DemoTruth } from '../core/demo/demo-truth.js';
+import { demoTruth, demoTruthFile, demoTruthSchema } from '../core/demo/demo-truth.js';
+import { focalLength35mm } from '../core/demo/camera.js';
 import type { FrameRenderer } from './demo-render-pool.js';
 import { inThreadRenderer, workerRenderer } from './demo-render-pool.js';
 

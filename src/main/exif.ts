@@ -1,14 +1,14 @@
 import exifr from 'exifr';
 import sharp from 'sharp';
-import type { FrameSettings } from '../core/report.js';
+import type { FrameSettings } from '../core/sequence/report.js';
 import type { InputPath } from './input-file.js';
 import { extensionOf, inputBudget, readInputHead, readInputRest } from './input-file.js';
 import { isRawFile, readRawExifBlocks } from './raw-file.js';
-import type { JpegDemand } from '../core/jpeg-demand.js';
-import { jpegDemand, tooShortForItsSize } from '../core/jpeg-demand.js';
-import { FileProblem } from '../core/file-problem.js';
+import type { JpegDemand } from '../core/image/jpeg-demand.js';
+import { jpegDemand, tooShortForItsSize } from '../core/image/jpeg-demand.js';
+import { FileProblem } from '../core/image/file-problem.js';
 
-/** The error for a JPEG stream too short for the size its header claims (core/jpeg-demand.ts). */
+/** The error for a JPEG stream too short for the size its header claims (core/image/jpeg-demand.ts). */
 export function tooShortError(d: JpegDemand, streamBytes: number): FileProblem {
   return new FileProblem('cut-short', `damaged or cut short: ${streamBytes - d.scanStart} bytes of JPEG data for ${d.width} x ${d.height} pixels, which need ${d.minEntropyBytes} at least`);
 }

@@ -1,9 +1,9 @@
 // Frames decoded from their files and analysed, and pairs measured, on this thread's scratch pool;
-// the computation itself is core/pair-analysis.ts.
-import type { FeatureParams } from '../core/features.js';
-import type { FrameAnalysis, PairAnalysis, PairOptions } from '../core/pair-analysis.js';
-import { analyseFrame, analysePair as analysePairWith, checkFeatureParams } from '../core/pair-analysis.js';
-import { createScratchPool } from '../core/scratch.js';
+// the computation itself is core/pair/pair-analysis.ts.
+import type { FeatureParams } from '../core/features/features.js';
+import type { FrameAnalysis, PairAnalysis, PairOptions } from '../core/pair/pair-analysis.js';
+import { analyseFrame, analysePair as analysePairWith, checkFeatureParams } from '../core/pair/pair-analysis.js';
+import { createScratchPool } from '../core/image/scratch.js';
 import { decodeForAnalysis } from './decode.js';
 import type { InputPath } from './input-file.js';
 
@@ -15,7 +15,7 @@ export async function analyseFrameFile(path: InputPath, maxSide: number, params:
   return analyseFrame(await decodeForAnalysis(path, maxSide), params, scratch);
 }
 
-/** core/pair-analysis.ts's analysePair on this thread's scratch pool. */
+/** core/pair/pair-analysis.ts's analysePair on this thread's scratch pool. */
 export function analysePair(a: FrameAnalysis, b: FrameAnalysis, options: PairOptions = { retryAtFullSize: true, overlapBlocks: true }): PairAnalysis {
   return analysePairWith(a, b, options, scratch);
 }

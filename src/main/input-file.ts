@@ -2,7 +2,7 @@ import { closeSync, constants, fstatSync, openSync, readSync } from 'node:fs';
 import type { FileHandle } from 'node:fs/promises';
 import { open } from 'node:fs/promises';
 import { extname, join, sep } from 'node:path';
-import { FileProblem } from '../core/file-problem.js';
+import { FileProblem } from '../core/image/file-problem.js';
 
 /**
  * A path to an input file: a string, or the exact bytes of a name that is not valid UTF-8 (written

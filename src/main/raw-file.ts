@@ -1,11 +1,11 @@
 import { closeSync } from 'node:fs';
 import type { Sharp } from 'sharp';
-import type { ByteRange } from '../core/cr3-layout.js';
-import { cr3Layout } from '../core/cr3-layout.js';
-import { rafLayout } from '../core/raf-layout.js';
-import type { ByteSource, EmbeddedJpeg } from '../core/raw-preview.js';
-import { jpegExtent, largestPreview, rawLayout } from '../core/raw-preview.js';
-import { FileProblem } from '../core/file-problem.js';
+import type { ByteRange } from '../core/raw/cr3-layout.js';
+import { cr3Layout } from '../core/raw/cr3-layout.js';
+import { rafLayout } from '../core/raw/raf-layout.js';
+import type { ByteSource, EmbeddedJpeg } from '../core/raw/raw-preview.js';
+import { jpegExtent, largestPreview, rawLayout } from '../core/raw/raw-preview.js';
+import { FileProblem } from '../core/image/file-problem.js';
 import type { InputPath } from './input-file.js';
 import { extensionOf, openInputSync, pathText, readExactSync } from './input-file.js';
 

@@ -1,7 +1,7 @@
 import { mkdir } from 'node:fs/promises';
 import { dirname } from 'node:path';
-import { budgetAsTyped, budgetFromTyped, pageBudget, resolveBudget } from '../core/budget.js';
-import type { MatchBudget } from '../core/report.js';
+import { budgetAsTyped, budgetFromTyped, pageBudget, resolveBudget } from '../core/sequence/budget.js';
+import type { MatchBudget } from '../core/sequence/report.js';
 import type { SettingsInfo, ShotPreference } from '../common/api.js';
 import { expectShotPreference } from '../common/api.js';
 import type { SettingsFile } from './settings.js';

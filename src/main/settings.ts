@@ -1,6 +1,6 @@
 import { readFile } from 'node:fs/promises';
 import { join } from 'node:path';
-import type { TypedBudget } from '../core/budget.js';
+import type { TypedBudget } from '../core/sequence/budget.js';
 import type { ShotPreference } from '../common/api.js';
 import { configDir } from './user-dirs.js';
 

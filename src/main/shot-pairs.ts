@@ -1,5 +1,5 @@
 import { extname } from 'node:path';
-import type { RawPlusJpeg, SkippedFile } from '../core/report.js';
+import type { RawPlusJpeg, SkippedFile } from '../core/sequence/report.js';
 import { isRawFile } from './raw-file.js';
 import type { ScannedFile } from './scan.js';
 

@@ -1,9 +1,9 @@
-import type { FileProblemKind } from '../core/file-problem.js';
-import { FileProblem } from '../core/file-problem.js';
-import type { SkippedFile } from '../core/report.js';
+import type { FileProblemKind } from '../core/image/file-problem.js';
+import { FileProblem } from '../core/image/file-problem.js';
+import type { SkippedFile } from '../core/sequence/report.js';
 import { decoderProblem } from './decoder-words.js';
 
-/** What a photographer reads for each file problem (core/file-problem.ts). */
+/** What a photographer reads for each file problem (core/image/file-problem.ts). */
 const reasonOfKind: Record<FileProblemKind, (p: FileProblem) => Pick<SkippedFile, 'code' | 'reason'>> = {
   'folder': () => ({ code: 'unreadable', reason: 'it is a folder, not a picture' }),
   'not-regular': () => ({ code: 'unreadable', reason: 'it is not a regular file (a pipe, a device or a socket): not read' }),

@@ -1,8 +1,8 @@
-import type { PairKind, Report, ReportPair, ReportSequence, Verdict } from '../core/report.js';
-import { duration, millimetres } from '../core/number-words.js';
-import { sequenceReport } from '../core/sequence-report.js';
-import { lensSentence } from '../core/lens-words.js';
-import { notChecked } from '../core/verdicts.js';
+import type { PairKind, Report, ReportPair, ReportSequence, Verdict } from '../core/sequence/report.js';
+import { duration, millimetres } from '../core/sequence/number-words.js';
+import { sequenceReport } from '../core/sequence/sequence-report.js';
+import { lensSentence } from '../core/sequence/lens-words.js';
+import { notChecked } from '../core/sequence/verdicts.js';
 
 /** "1 frame", "35 frames". */
 const count = (n: number, one: string): string => `${n} ${one}${n === 1 ? '' : 's'}`;

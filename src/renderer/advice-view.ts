@@ -1,8 +1,8 @@
 // "What to do": every piece of advice in the report once, reshoot first, each pointing at its pair
 // when it came from one (shown for reports without a plan); and, for the plan that replaces it, where
 // each plan item can be seen: its pairs, its frame or its station.
-import type { PlanItem } from '../core/reshoot-plan.js';
-import type { FlagCode, Report, ReportPair, Verdict } from '../core/report.js';
+import type { PlanItem } from '../core/sequence/reshoot-plan.js';
+import type { FlagCode, Report, ReportPair, Verdict } from '../core/sequence/report.js';
 import { button, el } from './dom.js';
 import { verdictBadge } from './icons.js';
 import { pairKey } from './pairs.js';

@@ -2,7 +2,7 @@
 // through the SeamscoutApi object, and wires the start screen, the progress view, the results screen
 // (results-screen.ts), the keyboard, drops and the settings; the views build DOM from plain data.
 import type { HostInfo, LatestCheck, SeamscoutApi, ShotPreference } from '../common/api.js';
-import type { MatchBudget } from '../core/report.js';
+import type { MatchBudget } from '../core/sequence/report.js';
 import type { BudgetPanel } from './budget-panel.js';
 import { createBudgetPanel } from './budget-panel.js';
 import type { BudgetSaving } from './budget-save.js';

@@ -1,7 +1,7 @@
 // The page's side of the local browser host: the same SeamscoutApi as the desktop bridge, over HTTP
 // to this run's own loopback address with its token (given in the address the host printed).
 import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, ExportFormat, HostInfo, SeamscoutApi, SettingsInfo, ShotPreference } from '../common/api.js';
-import type { MatchBudget } from '../core/report.js';
+import type { MatchBudget } from '../core/sequence/report.js';
 
 function takeToken(): string {
   const params = new URLSearchParams(location.search);

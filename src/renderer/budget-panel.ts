@@ -4,10 +4,10 @@
 // message the command gives for the same mistake (budgetFromTyped, in the panel's words), and keeps
 // the last good budget.
 import type { ShotPreference } from '../common/api.js';
-import type { NumericBudgetKey, TypedBudget } from '../core/budget.js';
-import { budgetFromTyped, budgetPanelWords } from '../core/budget.js';
-import type { MatchBudget } from '../core/report.js';
-import { defaultBudget } from '../core/report.js';
+import type { NumericBudgetKey, TypedBudget } from '../core/sequence/budget.js';
+import { budgetFromTyped, budgetPanelWords } from '../core/sequence/budget.js';
+import type { MatchBudget } from '../core/sequence/report.js';
+import { defaultBudget } from '../core/sequence/report.js';
 import { button, el } from './dom.js';
 import { preferenceChoice } from './start-view.js';
 

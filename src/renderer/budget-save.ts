@@ -1,6 +1,6 @@
 // Saving the match budget as the user edits it: edits within the delay are saved once, and the status
 // line says where it went (the command reads the same file, so its verdicts change too) or why not.
-import type { MatchBudget } from '../core/report.js';
+import type { MatchBudget } from '../core/sequence/report.js';
 import type { SeamscoutApi, SettingsInfo } from '../common/api.js';
 import { el } from './dom.js';
 import { messageOf } from './format.js';

@@ -2,9 +2,9 @@
 // state out. No DOM and no API calls here, so every transition is testable on plain data; the page
 // (app.ts) dispatches events, makes the calls and draws from the state.
 import type { CheckDoneEvent, CheckPartialEvent, CheckProgressEvent, LatestCheck } from '../common/api.js';
-import type { MatchBudget, Report } from '../core/report.js';
-import { defaultBudget } from '../core/report.js';
-import { rejudge } from '../core/verdicts.js';
+import type { MatchBudget, Report } from '../core/sequence/report.js';
+import { defaultBudget } from '../core/sequence/report.js';
+import { rejudge } from '../core/sequence/verdicts.js';
 import type { ProgressModel } from './progress-view.js';
 import { emptyProgress, withEvent } from './progress-view.js';
 import type { DemoWriting, StartModel } from './start-view.js';

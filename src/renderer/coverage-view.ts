@@ -1,8 +1,8 @@
-// The coverage map beside the strip: the same SVG the export writes (core/coverage-map.ts), parsed
+// The coverage map beside the strip: the same SVG the export writes (core/geometry/coverage-map.ts), parsed
 // as SVG (no HTML parsing, no script), with a sentence for screen readers.
-import type { LinkMark } from '../core/coverage-map.js';
-import { coverageMap, coverageMapSvg, holeShare, linkMarks } from '../core/coverage-map.js';
-import type { Report } from '../core/report.js';
+import type { LinkMark } from '../core/geometry/coverage-map.js';
+import { coverageMap, coverageMapSvg, holeShare, linkMarks } from '../core/geometry/coverage-map.js';
+import type { Report } from '../core/sequence/report.js';
 import { el } from './dom.js';
 
 /** The coverage section, or null when the frames could not be placed. */

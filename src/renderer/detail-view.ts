@@ -1,7 +1,7 @@
 // The pair detail: both frames with the tie points and the overlap drawn, every measure with the
 // budget's limit beside it, the verdict and reasons, and the advice in plain words.
-import type { Report, ReportPair } from '../core/report.js';
-import { focalPxFrom35mm } from '../core/sweep.js';
+import type { Report, ReportPair } from '../core/sequence/report.js';
+import { focalPxFrom35mm } from '../core/geometry/sweep.js';
 import { button, el } from './dom.js';
 import { evStep, flagMeaning, flagWords, kindWords, percent, pixels } from './format.js';
 import { backIcon, verdictBadge } from './icons.js';

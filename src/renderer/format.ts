@@ -1,5 +1,5 @@
 // Numbers and codes as the page shows them: plain words, units always written out.
-import type { FlagCode, PairKind, Verdict } from '../core/report.js';
+import type { FlagCode, PairKind, Verdict } from '../core/sequence/report.js';
 
 /** 0..1 as a whole percent with a space before the sign ("45 %"), or a dash when unknown. */
 export function percent(v: number | null | undefined): string {

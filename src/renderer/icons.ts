@@ -1,7 +1,7 @@
 // Our own icons, simple inline SVG shapes. The three verdict shapes differ (circle, diamond,
 // square) so the verdict reads without colour; the word is always shown beside them as well.
 // Colours: the Okabe-Ito palette (Okabe & Ito, "Color Universal Design", 2002).
-import type { Verdict } from '../core/report.js';
+import type { Verdict } from '../core/sequence/report.js';
 import { el, svg } from './dom.js';
 import { verdictWords } from './format.js';
 

@@ -1,7 +1,7 @@
 // Where the user is within the shown results, as plain data: a card's opened sequence (or its list),
 // the selected entry of the list and of the strip, and the pair whose detail is open. The page moves
 // the focus; these functions only say where to.
-import type { Report } from '../core/report.js';
+import type { Report } from '../core/sequence/report.js';
 import { isCard } from './sequence-list-view.js';
 
 export interface Navigation {

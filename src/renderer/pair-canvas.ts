@@ -2,10 +2,10 @@
 // points marked on each (joined by a line when lines are on) and the overlap outlined on each.
 // Everything is placed in one coordinate system derived from the frames' full-resolution sizes in
 // the report, so the drawing stays registered with the images at any displayed size.
-import { invert, project } from '../core/homography.js';
-import { overlapRegions } from '../core/overlap.js';
-import type { Polygon } from '../core/polygon.js';
-import { clipConvex, frameRectangle, polygonArea, projectPolygon } from '../core/polygon.js';
+import { invert, project } from '../core/geometry/homography.js';
+import { overlapRegions } from '../core/geometry/overlap.js';
+import type { Polygon } from '../core/geometry/polygon.js';
+import { clipConvex, frameRectangle, polygonArea, projectPolygon } from '../core/geometry/polygon.js';
 import { svg } from './dom.js';
 
 export interface CanvasFrame {

@@ -1,5 +1,5 @@
 // Which pairs the strip shows, in the order the arrow keys walk them.
-import type { Report, ReportPair } from '../core/report.js';
+import type { Report, ReportPair } from '../core/sequence/report.js';
 
 export const pairKey = (p: { readonly a: string; readonly b: string }): string => `${p.a}|${p.b}`;
 

@@ -3,8 +3,8 @@
 // points fetched, the export's outcome); the check's life cycle stays with the page's controller,
 // which it reads through `ResultsDeps`.
 import type { ExportFormat, HostInfo, SeamscoutApi } from '../common/api.js';
-import type { Report } from '../core/report.js';
-import { sequenceReport } from '../core/sequence-report.js';
+import type { Report } from '../core/sequence/report.js';
+import { sequenceReport } from '../core/sequence/sequence-report.js';
 import { renderAdvice } from './advice-view.js';
 import type { CheckState } from './check-state.js';
 import type { TiePointState } from './detail-view.js';

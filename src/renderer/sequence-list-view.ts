@@ -1,8 +1,8 @@
 // A card of several sequences: the list the app opens on (one entry per sequence, in shooting order,
 // then the single shots), and the bar above a sequence opened from it. Pure functions of the report.
-import { duration, millimetres } from '../core/number-words.js';
-import type { Report, ReportSequence, SequenceSplit, SingleShot } from '../core/report.js';
-import { cardSequences } from '../core/sequence-report.js';
+import { duration, millimetres } from '../core/sequence/number-words.js';
+import type { Report, ReportSequence, SequenceSplit, SingleShot } from '../core/sequence/report.js';
+import { cardSequences } from '../core/sequence/sequence-report.js';
 import { button, el } from './dom.js';
 import { plural, verdictWords } from './format.js';
 import { backIcon, verdictBadge } from './icons.js';

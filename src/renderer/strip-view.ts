@@ -2,7 +2,7 @@
 // reference frame on top), and between neighbouring stations a link with overlap, inliers, EV
 // difference and the verdict. A pure function of the report: a partial report (pairs still
 // missing) renders too, with "not measured yet" in place of the missing links.
-import type { FlagCode, Report, ReportFrame, ReportPair, ReportStation, Verdict } from '../core/report.js';
+import type { FlagCode, Report, ReportFrame, ReportPair, ReportStation, Verdict } from '../core/sequence/report.js';
 import type { Child } from './dom.js';
 import { button, el } from './dom.js';
 import { evOffset, evStep, flagMeaning, flagWords, percent, pixels, plural, verdictWords } from './format.js';

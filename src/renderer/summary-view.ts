@@ -1,9 +1,9 @@
 // The summary header: the overall verdict, the reshoot plan (each item with a way to see it), the
 // numbers in one compact row and, for a sequence, every station and link at a glance.
-import { lensSentence } from '../core/lens-words.js';
-import { millimetres } from '../core/number-words.js';
-import type { Report, Verdict } from '../core/report.js';
-import { notChecked } from '../core/verdicts.js';
+import { lensSentence } from '../core/sequence/lens-words.js';
+import { millimetres } from '../core/sequence/number-words.js';
+import type { Report, Verdict } from '../core/sequence/report.js';
+import { notChecked } from '../core/sequence/verdicts.js';
 import type { PlanActions } from './advice-view.js';
 import { planButtons } from './advice-view.js';
 import { button, el } from './dom.js';

@@ -3,7 +3,7 @@
 // two stations of three bracket frames, all sound, after a pause; sequence 3, three frames at another
 // focal length with one pair of 25 % overlap. Each sequence's own measurements are also given as the
 // analysis of a folder holding that sequence alone, to compare with.
-import type { Analysis, FrameMeasure, PairMeasure, SequenceAnalysis, StationMeasure } from '../../src/core/report.js';
+import type { Analysis, FrameMeasure, PairMeasure, SequenceAnalysis, StationMeasure } from '../../src/core/sequence/report.js';
 
 const W = 3000, H = 2000;
 

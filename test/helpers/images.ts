@@ -1,7 +1,7 @@
 import { readdirSync } from 'node:fs';
 import { join } from 'node:path';
 import sharp from 'sharp';
-import type { GrayImage } from '../../src/core/image.js';
+import type { GrayImage } from '../../src/core/image/image.js';
 import { tempDir } from '../../tools/paths.js';
 
 // Shared with bench/, so kept in tools/; the tests keep importing them from here.

@@ -10,17 +10,17 @@
  * IEC 61966-2-1) -> 2x2 supersampling. Then motion blur, vignetting, exposure, seeded sensor noise,
  * clipping, sRGB encoding, JPEG with EXIF (CIPA DC-008 tags through sharp).
  *
- * Poses follow src/core/camera.ts (yaw to the right, pitch up, roll clockwise seen from behind;
+ * Poses follow src/core/demo/camera.ts (yaw to the right, pitch up, roll clockwise seen from behind;
  * world y up), so the truth's homography of a pair without distortion is rotationHomography() there.
  * `scenarios()` is the catalogue; `npx tsx scripts/photo-survey.ts <outdir>` runs the check on it.
  */
 import { mkdir, readdir, writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import sharp from 'sharp';
-import type { CameraModel, Pose } from '../../src/core/camera.js';
-import { cameraModel, focalLengthPx, worldToCamera } from '../../src/core/camera.js';
-import { createRandom } from '../../src/core/random.js';
-import { linearOf8bit, linearToSrgb } from '../../src/core/srgb.js';
+import type { CameraModel, Pose } from '../../src/core/demo/camera.js';
+import { cameraModel, focalLengthPx, worldToCamera } from '../../src/core/demo/camera.js';
+import { createRandom } from '../../src/core/numeric/random.js';
+import { linearOf8bit, linearToSrgb } from '../../src/core/image/srgb.js';
 import { exifRational } from '../../src/main/demo-writer.js';
 import { externalFixture } from './images.js';
 import { cachedBytes, renderKey, sourcesHash } from './render-cache.js';

@@ -11,9 +11,9 @@ import { constants, existsSync, readFileSync, readdirSync, rmSync, statSync, uti
 import { copyFile, mkdir, readFile, rename, rm, writeFile } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
-import type { DemoPlanOptions } from '../../src/core/demo-plan.js';
-import { defaultDemoPlanOptions, planDemoShoot } from '../../src/core/demo-plan.js';
-import { demoTruth, demoTruthFile } from '../../src/core/demo-truth.js';
+import type { DemoPlanOptions } from '../../src/core/demo/demo-plan.js';
+import { defaultDemoPlanOptions, planDemoShoot } from '../../src/core/demo/demo-plan.js';
+import { demoTruth, demoTruthFile } from '../../src/core/demo/demo-truth.js';
 import type { DemoShootResult } from '../../src/main/demo-writer.js';
 import { writeDemoShoot } from '../../src/main/demo-writer.js';
 import { projectRoot } from './cli.js';

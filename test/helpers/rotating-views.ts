@@ -2,12 +2,12 @@
 // image plane of a wide source camera, and each view is a rotated pinhole camera looking at that
 // plane. Two views are then related exactly by H = K R_b R_a^T K^-1 (Hartley & Zisserman, sec.
 // 8.4.2; Szeliski, "Image alignment and stitching", 2006, sec. 2.1), whatever the content.
-import { multiply } from '../../src/core/homography.js';
-import type { FloatImage, GrayImage } from '../../src/core/image.js';
-import { overlapRegions } from '../../src/core/overlap.js';
-import type { RandomSource } from '../../src/core/random.js';
-import { linearToSrgb, srgbToLinear } from '../../src/core/srgb.js';
-import { warpBilinear } from '../../src/core/warp.js';
+import { multiply } from '../../src/core/geometry/homography.js';
+import type { FloatImage, GrayImage } from '../../src/core/image/image.js';
+import { overlapRegions } from '../../src/core/geometry/overlap.js';
+import type { RandomSource } from '../../src/core/numeric/random.js';
+import { linearToSrgb, srgbToLinear } from '../../src/core/image/srgb.js';
+import { warpBilinear } from '../../src/core/image/warp.js';
 import { toCameraFrame } from './images.js';
 
 export const intrinsics = (f: number, w: number, h: number): Float64Array => Float64Array.of(f, 0, (w - 1) / 2, 0, f, (h - 1) / 2, 0, 0, 1);

@@ -1,4 +1,4 @@
-import type { Report, ReportPair } from '../report.js';
+import type { Report, ReportPair } from '../sequence/report.js';
 
 /**
  * One CSV field per RFC 4180: quoted when it holds a comma, a quote or a line break. Text that a

@@ -1,4 +1,4 @@
-import type { Report, ReportPair, ReportStation, Verdict } from '../report.js';
+import type { Report, ReportPair, ReportStation, Verdict } from '../sequence/report.js';
 
 const quote = (s: string): string => `"${s.replace(/\\/g, '\\\\').replace(/"/g, '\\"').replace(/\n/g, '\\n')}"`;
 

@@ -1,4 +1,4 @@
-import type { Report, ReportFrame, ReportPair, ReportSequence, ReportStation, SequenceGeometry, Verdict } from '../report.js';
+import type { Report, ReportFrame, ReportPair, ReportSequence, ReportStation, SequenceGeometry, Verdict } from '../sequence/report.js';
 
 const esc = (s: string): string => s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;');
 
