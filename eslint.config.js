@@ -35,6 +35,13 @@ const layering = {
   },
 };
 
+const corePatterns = [
+  { regex: '^(?!\\./|\\.\\./|ml-matrix$)', message: 'src/core imports only core files and ml-matrix (no Node, Electron, DOM or I/O libraries).' },
+  { group: ['../main/**', '../renderer/**', '../common/**', '../../**'], message: 'src/core must not reach into src/main, src/common or src/renderer.' },
+];
+/** The core's folders, each importing only from those before it. */
+const coreRooms = ['image', 'numeric', 'features', 'geometry', 'pair', 'sequence', 'raw', 'exports', 'demo'];
+
 export default tseslint.config(
   { ignores: ['node_modules/**', 'dist/**', 'out/**', 'coverage/**', 'test-results/**', '.bench-cache/**'] },
   js.configs.recommended,
@@ -50,14 +57,27 @@ export default tseslint.config(
     languageOptions: { globals: { ...globals.es2021 } },
     rules: {
       'no-restricted-imports': ['error', {
-        patterns: [
-          { regex: '^(?!\\./|\\.\\./|ml-matrix$)', message: 'src/core imports only core files and ml-matrix (no Node, Electron, DOM or I/O libraries).' },
-          { group: ['../main/**', '../renderer/**', '../common/**', '../../**'], message: 'src/core must not reach into src/main, src/common or src/renderer.' },
-        ],
+        patterns: corePatterns,
       }],
       'no-restricted-globals': ['error', 'window', 'document', 'process', 'Buffer', 'require', 'fetch', 'navigator', 'console'],
+      // A dynamic import() loads code at run time past the import rules above (and is I/O of a kind).
+      'no-restricted-syntax': ['error', { selector: 'ImportExpression', message: 'src/core loads no code at run time: use a static import.' }],
     },
   },
+  // The core's folders in the order a frame meets them: each imports only from folders before it
+  // (DEVELOPERS.md, "Layout"), so the folders form no cycle. A later block's no-restricted-imports
+  // replaces the one above for the same files, so each repeats the core's own patterns.
+  ...coreRooms.map((room, i) => ({
+    files: [`src/core/${room}/**/*.ts`],
+    rules: {
+      'no-restricted-imports': ['error', {
+        patterns: [
+          ...corePatterns,
+          ...(i + 1 < coreRooms.length ? [{ group: coreRooms.slice(i + 1).map((r) => `../${r}/**`), message: `src/core/${room} imports only from the folders before it: ${coreRooms.slice(0, i).join(', ') || 'none'}.` }] : []),
+        ],
+      }],
+    },
+  })),
   {
     files: layers.common,
     languageOptions: { globals: { ...globals.es2021 } },
@@ -69,8 +89,6 @@ export default tseslint.config(
         ],
       }],
       'no-restricted-globals': ['error', 'window', 'document', 'process', 'Buffer', 'require', 'fetch', 'navigator', 'console'],
-      // A dynamic import() loads code at run time past the import rules above (and is I/O of a kind).
-      'no-restricted-syntax': ['error', { selector: 'ImportExpression', message: 'src/core loads no code at run time: use a static import.' }],
     },
   },
   {

@@ -9,7 +9,7 @@ import { detectAndDescribe } from '../src/core/features/features.js';
 import { harrisResponse } from '../src/core/features/harris.js';
 import { fitHomography } from '../src/core/geometry/homography-estimator.js';
 import { matchDescriptors } from '../src/core/features/match.js';
-import { correspondencesOf, estimatePairGeometry } from '../src/core/geometry/pair-geometry.js';
+import { correspondencesOf, estimatePairGeometry } from '../src/core/pair/pair-geometry.js';
 import { buildPyramid } from '../src/core/features/pyramid.js';
 import { createScratchPool } from '../src/core/image/scratch.js';
 import { refineTiePoints } from '../src/core/geometry/tie-point-refine.js';

@@ -3,10 +3,10 @@
  * method. What to plan and judge is decided in the core (check-plan.ts, check-report.ts); this
  * class keeps the order of the I/O, the memory gate and the streaming.
  */
-import type { FrameSample } from '../core/features/candidate-pairs.js';
-import { sampleFeatures, screenPairs } from '../core/features/candidate-pairs.js';
+import type { FrameSample } from '../core/pair/candidate-pairs.js';
+import { sampleFeatures, screenPairs } from '../core/pair/candidate-pairs.js';
 import { normalise } from '../core/geometry/homography.js';
-import { predictPairHomography, toAnalysisPixels } from '../core/features/guided-match.js';
+import { predictPairHomography, toAnalysisPixels } from '../core/pair/guided-match.js';
 import { overlapRegions } from '../core/geometry/overlap.js';
 import type { FrameMeasure, PairKind, PairMeasure, SequenceGeometry, SkippedFile } from '../core/sequence/report.js';
 import { analysisToFull } from '../core/image/resolution.js';
@@ -15,7 +15,7 @@ import { groupStations } from '../core/sequence/stations.js';
 import type { RotationLink } from '../core/geometry/rotations.js';
 import { relativeRotation, rotationAngleOf } from '../core/geometry/rotations.js';
 import { bracketShift } from '../core/geometry/bracket-shift.js';
-import { lensFieldOfViewDeg, sequenceGeometry } from '../core/geometry/sequence-geometry.js';
+import { lensFieldOfViewDeg, sequenceGeometry } from '../core/sequence/sequence-geometry.js';
 import { focalPxFrom35mm } from '../core/geometry/sweep.js';
 import type { AnalysisPool } from './analysis-pool.js';
 import type { FrameExif } from './exif.js';

@@ -1,5 +1,5 @@
 import sharp from 'sharp';
-import { coverageMapSvg } from '../core/geometry/coverage-map.js';
+import { coverageMapSvg } from '../core/sequence/coverage-map.js';
 import type { Report } from '../core/sequence/report.js';
 
 export type CoverageMapFormat = 'svg' | 'png';

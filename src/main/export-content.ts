@@ -1,6 +1,6 @@
 // The page's exports, dispatched by format in one place: both shells hand them out through the
 // handler table, and the command writes its --json, --graphml, --csv and --dot files with them.
-import { cardCoverageMapSvg } from '../core/geometry/card-coverage-map.js';
+import { cardCoverageMapSvg } from '../core/sequence/card-coverage-map.js';
 import { reportToCsv } from '../core/exports/csv.js';
 import { reportToDot } from '../core/exports/dot.js';
 import { reportToGraphml } from '../core/exports/graphml.js';

@@ -1,7 +1,7 @@
-// The coverage map beside the strip: the same SVG the export writes (core/geometry/coverage-map.ts), parsed
+// The coverage map beside the strip: the same SVG the export writes (core/sequence/coverage-map.ts), parsed
 // as SVG (no HTML parsing, no script), with a sentence for screen readers.
-import type { LinkMark } from '../core/geometry/coverage-map.js';
-import { coverageMap, coverageMapSvg, holeShare, linkMarks } from '../core/geometry/coverage-map.js';
+import type { LinkMark } from '../core/sequence/coverage-map.js';
+import { coverageMap, coverageMapSvg, holeShare, linkMarks } from '../core/sequence/coverage-map.js';
 import type { Report } from '../core/sequence/report.js';
 import { el } from './dom.js';
 

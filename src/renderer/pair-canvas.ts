@@ -4,8 +4,8 @@
 // the report, so the drawing stays registered with the images at any displayed size.
 import { invert, project } from '../core/geometry/homography.js';
 import { overlapRegions } from '../core/geometry/overlap.js';
-import type { Polygon } from '../core/geometry/polygon.js';
-import { clipConvex, frameRectangle, polygonArea, projectPolygon } from '../core/geometry/polygon.js';
+import type { Polygon } from '../core/numeric/polygon.js';
+import { clipConvex, frameRectangle, polygonArea, projectPolygon } from '../core/numeric/polygon.js';
 import { svg } from './dom.js';
 
 export interface CanvasFrame {

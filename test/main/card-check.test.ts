@@ -9,7 +9,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Report } from '../../src/core/sequence/report.js';
 import { defaultBudget } from '../../src/core/sequence/report.js';
 import { sequenceReport } from '../../src/core/sequence/sequence-report.js';
-import { cardCoverageMapSvg } from '../../src/core/geometry/card-coverage-map.js';
+import { cardCoverageMapSvg } from '../../src/core/sequence/card-coverage-map.js';
 import { XMLParser } from 'fast-xml-parser';
 import { judge } from '../../src/core/sequence/verdicts.js';
 import { createAnalysisPool } from '../../src/main/analysis-pool.js';

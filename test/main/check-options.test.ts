@@ -5,7 +5,7 @@ import { readFileSync, utimesSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { parse as parseCsv } from 'csv-parse/sync';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { sampleFeatures, screenPairs } from '../../src/core/features/candidate-pairs.js';
+import { sampleFeatures, screenPairs } from '../../src/core/pair/candidate-pairs.js';
 import type { AnalysisPool } from '../../src/main/analysis-pool.js';
 import { createAnalysisPool } from '../../src/main/analysis-pool.js';
 import { runCheck } from '../../src/main/check.js';

@@ -1,5 +1,5 @@
 // The engine on the demo shoot: the frames go through JPEG (sharp), are decoded at the analysis size
-// (src/main/decode.ts) and matched (src/core/features/features.ts, src/core/geometry/pair-geometry.ts); the result is
+// (src/main/decode.ts) and matched (src/core/features/features.ts, src/core/pair/pair-geometry.ts); the result is
 // compared with the analytic homography of the rotating camera (Hartley & Zisserman, Multiple View
 // Geometry, 2nd ed., sec. 8.4.2: H = K_b R_b R_a^-1 K_a^-1) by the mean distance of the frame
 // corners, as in test/core/features/synthetic-warps.test.ts. Keypoints should spread over textured land and avoid
@@ -18,7 +18,7 @@ import { exposureDifference } from '../../src/core/pair/exposure.js';
 import type { Features } from '../../src/core/features/features.js';
 import { detectAndDescribe } from '../../src/core/features/features.js';
 import { multiply } from '../../src/core/geometry/homography.js';
-import { estimatePairGeometry } from '../../src/core/geometry/pair-geometry.js';
+import { estimatePairGeometry } from '../../src/core/pair/pair-geometry.js';
 import type { SceneView, Surface } from '../../src/core/demo/scene-radiance.js';
 import { createScene, prepareSceneView, sceneCoordinates, surfaceAt } from '../../src/core/demo/scene-radiance.js';
 import type { DecodedFrame } from '../../src/main/decode.js';

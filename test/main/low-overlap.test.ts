@@ -6,11 +6,12 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import { cvDetect, cvFree, cvHomography, cvMatch } from '../../bench/opencv-pipeline.js';
 import { detectAndDescribe } from '../../src/core/features/features.js';
-import { estimateGuidedPairGeometry, guidedMatches, predictedRegions, predictPairHomography } from '../../src/core/features/guided-match.js';
+import { estimateGuidedPairGeometry, guidedMatches, predictedRegions, predictPairHomography } from '../../src/core/pair/guided-match.js';
 import { project } from '../../src/core/geometry/homography.js';
 import type { GrayImage } from '../../src/core/image/image.js';
 import { imageFingerprint } from '../../src/core/image/image.js';
-import { insideConvex, overlapRegions } from '../../src/core/geometry/overlap.js';
+import { overlapRegions } from '../../src/core/geometry/overlap.js';
+import { insideConvex } from '../../src/core/numeric/polygon.js';
 import { createRandom } from '../../src/core/numeric/random.js';
 import type { Analysis, PairMeasure } from '../../src/core/sequence/report.js';
 import { defaultBudget } from '../../src/core/sequence/report.js';

@@ -8,7 +8,7 @@ import { join } from 'node:path';
 import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { circleCoverage, fieldOfViewDeg } from '../../src/core/geometry/coverage.js';
-import { coverageMap } from '../../src/core/geometry/coverage-map.js';
+import { coverageMap } from '../../src/core/sequence/coverage-map.js';
 import type { DemoTruth } from '../../src/core/demo/demo-truth.js';
 import type { Report } from '../../src/core/sequence/report.js';
 import { defaultBudget } from '../../src/core/sequence/report.js';

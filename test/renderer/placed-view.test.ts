@@ -4,7 +4,7 @@
 // Geometry", 2nd ed., section 8.4; Szeliski, "Image alignment and stitching: a tutorial", 2006).
 import { describe, expect, it } from 'vitest';
 import { overlapRegions } from '../../src/core/geometry/overlap.js';
-import { polygonArea } from '../../src/core/geometry/polygon.js';
+import { polygonArea } from '../../src/core/numeric/polygon.js';
 import { affineOf, placedView } from '../../src/renderer/pair-canvas.js';
 
 const W = 2400, H = 1600, f = 2000;

@@ -1,6 +1,6 @@
 import { invert } from './homography.js';
-import type { Polygon } from './polygon.js';
-import { clipConvex, frameRectangle, polygonArea, projectPolygon } from './polygon.js';
+import type { Polygon } from '../numeric/polygon.js';
+import { clipConvex, frameRectangle, polygonArea, projectPolygon } from '../numeric/polygon.js';
 
 export interface OverlapRegions {
   /** The part of frame a that frame b also sees, in a's pixels. */
@@ -24,20 +24,4 @@ export function overlapRegions(h: ArrayLike<number>, wa: number, ha: number, wb:
   const fa = polygonArea(inA) / (wa * ha);
   const fb = polygonArea(inB) / (wb * hb);
   return { inA, inB, overlap: Math.max(0, Math.min(1, fa, fb)) };
-}
-
-/** True when (x, y) lies inside the convex polygon p (either orientation). */
-export function insideConvex(p: Polygon, x: number, y: number): boolean {
-  const n = p.length / 2;
-  if (n < 3) return false;
-  let sign = 0;
-  for (let i = 0; i < n; i++) {
-    const j = (i + 1) % n;
-    const c = (p[2 * j] - p[2 * i]) * (y - p[2 * i + 1]) - (p[2 * j + 1] - p[2 * i + 1]) * (x - p[2 * i]);
-    if (c !== 0) {
-      if (sign === 0) sign = c > 0 ? 1 : -1;
-      else if (c > 0 !== sign > 0) return false;
-    }
-  }
-  return true;
 }

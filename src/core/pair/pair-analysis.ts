@@ -18,9 +18,9 @@ import type { RefinedPoints } from '../geometry/tie-point-refine.js';
 import { refineTiePoints } from '../geometry/tie-point-refine.js';
 import type { GrayImage } from '../image/image.js';
 import { imageFingerprint } from '../image/image.js';
-import { defaultGuidedMatchParams, estimateGuidedPairGeometry, predictedRegions } from '../features/guided-match.js';
-import type { PairGeometry } from '../geometry/pair-geometry.js';
-import { estimatePairGeometry } from '../geometry/pair-geometry.js';
+import { defaultGuidedMatchParams, estimateGuidedPairGeometry, predictedRegions } from './guided-match.js';
+import type { PairGeometry } from './pair-geometry.js';
+import { estimatePairGeometry } from './pair-geometry.js';
 import { analysisToFull } from '../image/resolution.js';
 import type { ScratchPool } from '../image/scratch.js';
 import { sharpness } from './sharpness.js';
@@ -136,7 +136,7 @@ export interface PairOptions {
   /**
    * The pair's homography a -> b in analysis pixels as predicted from the rest of the sequence:
    * when given, corners are detected where it puts the overlap and matched near where it puts
-   * them (core/features/guided-match.ts) instead of over the whole frames.
+   * them (core/pair/guided-match.ts) instead of over the whole frames.
    */
   readonly predicted?: readonly number[] | null;
 }

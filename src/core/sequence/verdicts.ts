@@ -1,5 +1,5 @@
 import type { Analysis, CoverageHole, CoverageNote, FlagCode, SkippedFile, Finding, FolderProblem, FrameSettings, MatchBudget, PairMeasure, Report, ReportFrame, ReportPair, ReportSequence, ReportStation, SequenceAnalysis, StationMeasure, Verdict } from './report.js';
-import { coverageFindings } from '../geometry/coverage-map.js';
+import { coverageFindings } from './coverage-map.js';
 import { reportSchema } from './report.js';
 import type { Flag, Rule, SequenceFacts } from './verdict-rules.js';
 import { cardRules, frameRules, pairRules, sequenceRules, stationRules } from './verdict-rules.js';

@@ -6,7 +6,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { detectAndDescribe } from '../../../src/core/features/features.js';
 import { invert, multiply } from '../../../src/core/geometry/homography.js';
 import type { GrayImage } from '../../../src/core/image/image.js';
-import { estimatePairGeometry } from '../../../src/core/geometry/pair-geometry.js';
+import { estimatePairGeometry } from '../../../src/core/pair/pair-geometry.js';
 import { createRandom } from '../../../src/core/numeric/random.js';
 import { warpBilinear } from '../../../src/core/image/warp.js';
 import { externalFixture, loadGray, meanCornerError, toCameraFrame } from '../../helpers/images.js';

@@ -14,14 +14,14 @@ import { fitHomographyDLT } from '../../../src/core/geometry/homography.js';
 import type { RadialDistortion } from '../../../src/core/geometry/lens.js';
 import { distortionFactor, lensMisfitLimitPx, monotonicUpTo, undistortRadius } from '../../../src/core/geometry/lens.js';
 import { bundleAdjust, linkRotation } from '../../../src/core/geometry/lens-bundle.js';
-import { coverageMap } from '../../../src/core/geometry/coverage-map.js';
+import { coverageMap } from '../../../src/core/sequence/coverage-map.js';
 import { createRandom } from '../../../src/core/numeric/random.js';
 import type { Analysis, FrameSettings } from '../../../src/core/sequence/report.js';
 import { defaultBudget } from '../../../src/core/sequence/report.js';
 import type { FrameSize, RotationLink } from '../../../src/core/geometry/rotations.js';
 import { chainRotations, relativeRotation, rotationAngleOf, rotationOfVector } from '../../../src/core/geometry/rotations.js';
 import { multiply, transpose } from '../../../src/core/numeric/matrix3.js';
-import { sequenceGeometry, solveSequence } from '../../../src/core/geometry/sequence-geometry.js';
+import { sequenceGeometry, solveSequence } from '../../../src/core/sequence/sequence-geometry.js';
 import { judge } from '../../../src/core/sequence/verdicts.js';
 
 const W = 3000, H = 2000;

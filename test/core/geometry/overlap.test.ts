@@ -2,7 +2,7 @@
 // 1974), checked against areas worked out by hand.
 import { describe, expect, it } from 'vitest';
 import { overlapRegions } from '../../../src/core/geometry/overlap.js';
-import { clipConvex, polygonArea, projectPolygon } from '../../../src/core/geometry/polygon.js';
+import { clipConvex, polygonArea, projectPolygon } from '../../../src/core/numeric/polygon.js';
 
 describe('overlap of two frames', () => {
   it('is 1 for the identity and the shifted share for a translation', () => {

@@ -18,7 +18,7 @@ import { sharpness } from '../../../src/core/pair/sharpness.js';
 import type { FrameAnalysis } from '../../../src/core/pair/pair-analysis.js';
 import { checkFeatureParams } from '../../../src/core/pair/pair-analysis.js';
 import { analysePair } from '../../../src/main/frame-analysis.js';
-import { estimatePairGeometry } from '../../../src/core/geometry/pair-geometry.js';
+import { estimatePairGeometry } from '../../../src/core/pair/pair-geometry.js';
 import { defaultBudget } from '../../../src/core/sequence/report.js';
 import { judge } from '../../../src/core/sequence/verdicts.js';
 import { createAnalysisPool } from '../../../src/main/analysis-pool.js';

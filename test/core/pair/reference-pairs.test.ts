@@ -4,7 +4,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { exposureDifference } from '../../../src/core/pair/exposure.js';
 import { detectAndDescribe } from '../../../src/core/features/features.js';
 import type { GrayImage } from '../../../src/core/image/image.js';
-import { estimatePairGeometry } from '../../../src/core/geometry/pair-geometry.js';
+import { estimatePairGeometry } from '../../../src/core/pair/pair-geometry.js';
 import { linearToSrgb, srgbToLinear } from '../../../src/core/image/srgb.js';
 import { externalFixture, loadGray, meanCornerError } from '../../helpers/images.js';
 

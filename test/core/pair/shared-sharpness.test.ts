@@ -6,7 +6,7 @@ import { readFileSync } from 'node:fs';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { defaultFeatureParams, detectAndDescribe } from '../../../src/core/features/features.js';
 import type { GrayImage } from '../../../src/core/image/image.js';
-import { estimatePairGeometry } from '../../../src/core/geometry/pair-geometry.js';
+import { estimatePairGeometry } from '../../../src/core/pair/pair-geometry.js';
 import { createRandom } from '../../../src/core/numeric/random.js';
 import { createScratchPool } from '../../../src/core/image/scratch.js';
 import type { SharedSharpness } from '../../../src/core/pair/shared-sharpness.js';

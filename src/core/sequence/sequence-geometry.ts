@@ -3,14 +3,14 @@
  * and the lens's radial distortion (rotations.ts, lens-bundle.ts), then what the frames cover
  * (coverage.ts) and whether a full turn closes, judged under the refined lens.
  */
-import { circleCoverage, intervalCoverageDeg } from './coverage.js';
-import type { RadialDistortion } from './lens.js';
-import { tiePointUnitPx, undistortRadius } from './lens.js';
-import type { BundleResult } from './lens-bundle.js';
-import { bundleAdjust, linkRotation } from './lens-bundle.js';
-import type { SequenceGeometry } from '../sequence/report.js';
-import type { FrameSize, Rotation, RotationLink } from './rotations.js';
-import { chainTree, focalFromHomography, rotationAngleOf, stationPoses } from './rotations.js';
+import { circleCoverage, intervalCoverageDeg } from '../geometry/coverage.js';
+import type { RadialDistortion } from '../geometry/lens.js';
+import { tiePointUnitPx, undistortRadius } from '../geometry/lens.js';
+import type { BundleResult } from '../geometry/lens-bundle.js';
+import { bundleAdjust, linkRotation } from '../geometry/lens-bundle.js';
+import type { SequenceGeometry } from './report.js';
+import type { FrameSize, Rotation, RotationLink } from '../geometry/rotations.js';
+import { chainTree, focalFromHomography, rotationAngleOf, stationPoses } from '../geometry/rotations.js';
 import { multiply, transpose } from '../numeric/matrix3.js';
 import { median } from '../numeric/median.js';
 

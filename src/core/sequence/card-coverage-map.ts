@@ -4,8 +4,8 @@
  * as it is.
  */
 import { coverageMapSvg } from './coverage-map.js';
-import type { Report } from '../sequence/report.js';
-import { sequenceReport } from '../sequence/sequence-report.js';
+import type { Report } from './report.js';
+import { sequenceReport } from './sequence-report.js';
 
 const esc = (s: string): string => s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;');
 

@@ -7,15 +7,15 @@
  * narrow overlap needs. The prediction is trusted for where to look, never for the answer: the
  * model is fitted by RANSAC on the matches and verified as any other pair's (pair-geometry.ts).
  */
-import { descriptorWords } from './binary-descriptor.js';
-import type { Features } from './features.js';
+import { descriptorWords } from '../features/binary-descriptor.js';
+import type { Features } from '../features/features.js';
 import type { Homography } from '../geometry/homography.js';
 import { invert, multiply, project } from '../geometry/homography.js';
-import type { Matches } from './match.js';
-import type { PairGeometry, PairParams } from '../geometry/pair-geometry.js';
-import { fitAndVerify } from '../geometry/pair-geometry.js';
-import type { Polygon } from '../geometry/polygon.js';
-import { clipConvex, frameRectangle, projectPolygon } from '../geometry/polygon.js';
+import type { Matches } from '../features/match.js';
+import type { PairGeometry, PairParams } from './pair-geometry.js';
+import { fitAndVerify } from './pair-geometry.js';
+import type { Polygon } from '../numeric/polygon.js';
+import { clipConvex, frameRectangle, projectPolygon } from '../numeric/polygon.js';
 import type { FrameSize, Rotation, RotationLink } from '../geometry/rotations.js';
 import { chainRotations, homographyOfRotations } from '../geometry/rotations.js';
 import { bundleAdjust } from '../geometry/lens-bundle.js';

@@ -2,9 +2,9 @@
  * The coverage map: every placed frame's footprint on an equirectangular view of the sphere around
  * the camera (yaw across, pitch up), and the directions inside the shot band no frame sees.
  */
-import type { Analysis, CoverageHole, CoverageNote, FlagCode, MatchBudget, PairMeasure, SequenceGeometry, Verdict } from '../sequence/report.js';
-import { cross } from './rotations.js';
-import { distortionFactor, undistortRadius } from './lens.js';
+import type { Analysis, CoverageHole, CoverageNote, FlagCode, MatchBudget, PairMeasure, SequenceGeometry, Verdict } from './report.js';
+import { cross } from '../geometry/rotations.js';
+import { distortionFactor, undistortRadius } from '../geometry/lens.js';
 
 /**
  * What the map is drawn from: the frames' sizes, the stations' reference frames, the geometry, and

@@ -1,7 +1,7 @@
-import { descriptorWords } from './binary-descriptor.js';
-import type { Features } from './features.js';
+import { descriptorWords } from '../features/binary-descriptor.js';
+import type { Features } from '../features/features.js';
 import { fitHomography } from '../geometry/homography-estimator.js';
-import { matchDescriptors } from './match.js';
+import { matchDescriptors } from '../features/match.js';
 
 /** A frame's sample of keypoints for cheap pair screening. */
 export interface FrameSample {

@@ -9,7 +9,7 @@ import { join } from 'node:path';
 import Ajv2020 from 'ajv/dist/2020.js';
 import { describe, expect, it } from 'vitest';
 import { cameraModel, directionAngles, pixelDirection } from '../../../src/core/demo/camera.js';
-import { coverageHoles, coverageMap, coverageMapSvg, holeShare } from '../../../src/core/geometry/coverage-map.js';
+import { coverageHoles, coverageMap, coverageMapSvg, holeShare } from '../../../src/core/sequence/coverage-map.js';
 import type { Analysis, Report } from '../../../src/core/sequence/report.js';
 import { defaultBudget } from '../../../src/core/sequence/report.js';
 import { judge, rejudge } from '../../../src/core/sequence/verdicts.js';

@@ -1,11 +1,12 @@
 import { patchSize } from '../features/binary-descriptor.js';
 import type { Features } from '../features/features.js';
-import type { Correspondences, Homography } from './homography.js';
-import type { HomographyFitParams } from './homography-estimator.js';
-import { fitHomography } from './homography-estimator.js';
+import type { Correspondences, Homography } from '../geometry/homography.js';
+import type { HomographyFitParams } from '../geometry/homography-estimator.js';
+import { fitHomography } from '../geometry/homography-estimator.js';
 import type { MatchParams, Matches } from '../features/match.js';
 import { matchDescriptors } from '../features/match.js';
-import { insideConvex, overlapRegions } from './overlap.js';
+import { overlapRegions } from '../geometry/overlap.js';
+import { insideConvex } from '../numeric/polygon.js';
 
 /** Why a pair has no model. */
 export type NoModelReason = 'too-few-matches' | 'no-consensus' | 'unverified';

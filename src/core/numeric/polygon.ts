@@ -79,3 +79,19 @@ export function projectPolygon(h: ArrayLike<number>, p: Polygon): Polygon {
   }
   return out.length >= 6 ? out : [];
 }
+
+/** True when (x, y) lies inside the convex polygon p (either orientation). */
+export function insideConvex(p: Polygon, x: number, y: number): boolean {
+  const n = p.length / 2;
+  if (n < 3) return false;
+  let sign = 0;
+  for (let i = 0; i < n; i++) {
+    const j = (i + 1) % n;
+    const c = (p[2 * j] - p[2 * i]) * (y - p[2 * i + 1]) - (p[2 * j + 1] - p[2 * i + 1]) * (x - p[2 * i]);
+    if (c !== 0) {
+      if (sign === 0) sign = c > 0 ? 1 : -1;
+      else if (c > 0 !== sign > 0) return false;
+    }
+  }
+  return true;
+}
