@@ -288,7 +288,8 @@ export const incompleteBracket: StationRule = {
     return (s) => {
       const pattern = patternOf(s.evOffsets);
       if (pattern === modal) return none;
-      const missing = missingOffsets(modal, pattern);
+      // Stations grouped by content have no EXIF offsets ('x'): the count is known, the offset is not.
+      const missing = missingOffsets(modal, pattern).filter((o) => o !== 'x');
       const missingText = missing.length ? ` (missing ${missing.map((o) => signedEv(Number(o))).join(', ')})` : '';
       return [{ code: 'incomplete-bracket', verdict: 'reshoot', advice: `station ${s.index + 1} has ${s.frames.length} of ${modalSize} bracket frames${missingText}: reshoot the station` }];
     };

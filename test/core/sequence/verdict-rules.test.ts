@@ -8,6 +8,7 @@ import type { Analysis, FlagCode, FrameMeasure, FrameSettings, PairMeasure, Stat
 import { defaultBudget } from '../../../src/core/sequence/report.js';
 import { cardRules, frameRules, pairRules, sequenceRules, stationRules } from '../../../src/core/sequence/verdict-rules.js';
 import { judge } from '../../../src/core/sequence/verdicts.js';
+import { reshootPlan } from '../../../src/core/sequence/reshoot-plan.js';
 import { projectRoot } from '../../helpers/cli.js';
 
 const schema = (): { $defs: { flag: { enum: string[] } }; properties: { folderProblems: { items: { properties: { code: { enum: string[] } } } } } } =>
@@ -74,5 +75,28 @@ describe('verdict rule lists', () => {
     expect(shifted).toEqual(['incomplete-bracket', 'settings-drift', 'bracket-drift', 'size-mismatch']);
     expect(shifted).toEqual(listOrder(frameRules).filter((c) => shifted.includes(c)));
     expect(r.stations.filter((_, i) => i !== 2).every((s) => s.reasons.length === 0)).toBe(true);
+  });
+
+  it('says an incomplete bracket of stations grouped by content (no EXIF offsets) by its count, without naming an offset', () => {
+    // Frames without EXIF exposure data are grouped into stations by their content, so their
+    // offsets are unknown (null). A station of two frames among stations of three is still short
+    // of a frame; which offset it lacks cannot be said. This once threw ("Expected a finite
+    // number for ev but received NaN") and the command printed no report.
+    const stations: StationMeasure[] = [0, 1, 2, 3].map((s) => {
+      const n = s === 2 ? 2 : 3;
+      return { index: s, frames: Array.from({ length: n }, (_, k) => `S${s}_${k}`), reference: `S${s}_0`, evOffsets: Array.from({ length: n }, () => null), groupedBy: 'content' };
+    });
+    const frames = stations.flatMap((s) => s.frames.map((file) => frame(file)));
+    const pairs = [
+      ...stations.flatMap((s) => s.frames.slice(1).map((f) => pair(s.reference, f, { kind: 'bracket', shiftPx: 0.5, evDiff: null }))),
+      ...[0, 1, 2].map((s) => pair(`S${s}_0`, `S${s + 1}_0`)),
+    ];
+    const analysis: Analysis = { folder: '/card', frames, stations, pairs, skipped: [], sweepDeg: null, geometry: null };
+    const r = judge(analysis, defaultBudget);
+    expect(r.stations.map((s) => s.reasons)).toEqual([[], [], ['incomplete-bracket'], []]);
+    const advice = r.stations[2].advice.join(' ');
+    expect(advice).toContain('station 3 has 2 of 3 bracket frames: reshoot the station');
+    expect(advice).not.toMatch(/missing|NaN/);
+    expect(reshootPlan(r).map((item) => item.text).join(' ')).toContain('it has 2 of 3 bracket frames');
   });
 });
