@@ -359,14 +359,46 @@ const textWidth = (t: string): number => 6.2 * t.length;
 export function coverageMapSvg(report: MapSource, scale = 2): string | null {
   const map = coverageMap(report);
   if (!map) return null;
+  const plot = plotOf(scale);
+  const links = linkMarks(report);
+  const holes = report.holes ?? [];
+  const { placed, lines } = placeLegend(legendEntries(map, holes, links), plot.W);
+  const bottom = 36 + 18 * lines;
+  return [
+    ...mapBackground(map, report.geometry!, plot, bottom),
+    ...holeMarks(holes, plot),
+    ...linkLines(links, plot),
+    '</g>',
+    ...axisAndLegend(placed, plot),
+    '</svg>',
+  ].join('\n') + '\n';
+}
+
+/** The SVG's drawing area: `scale` px a degree, the sphere below a `top` px title line. */
+interface Plot {
+  readonly scale: number;
+  readonly W: number;
+  readonly H: number;
+  readonly top: number;
+  readonly x: (yaw: number) => number;
+  readonly y: (pitch: number) => number;
+}
+
+function plotOf(scale: number): Plot {
   const W = 360 * scale, H = 180 * scale, top = 28;
   const x = (yaw: number): number => (yaw + 180) * scale;
   const y = (pitch: number): number => top + (90 - pitch) * scale;
-  const links = linkMarks(report);
-  const holes = report.holes ?? [];
+  return { scale, W, H, top, x, y };
+}
 
-  // The legend: entries in words, flowing onto a second line where the first is full.
-  const legend: { swatch: (lx: number, ly: number) => string; text: string }[] = [
+interface LegendEntry {
+  readonly swatch: (lx: number, ly: number) => string;
+  readonly text: string;
+}
+
+/** The legend's entries in words: frames, what is not covered, then each kind of mark the map shows. */
+function legendEntries(map: CoverageMap, holes: readonly CoverageHole[], links: readonly LinkMark[]): LegendEntry[] {
+  const legend: LegendEntry[] = [
     { swatch: (lx, ly) => `<rect x="${lx}" y="${ly - 10}" width="14" height="12" fill="#0072B2" fill-opacity="0.08" stroke="#0072B2"/>`, text: 'frame (station number)' },
     { swatch: (lx, ly) => `<rect x="${lx}" y="${ly - 10}" width="14" height="12" fill="url(#hole)" stroke="#D55E00"/>`, text: map.holes.length ? 'not covered (hatched)' : 'not covered (none in the shot band)' },
   ];
@@ -387,7 +419,12 @@ export function coverageMapSvg(report: MapSource, scale = 2): string | null {
       });
     }
   }
-  const placedLegend: { lx: number; line: number; entry: (typeof legend)[number] }[] = [];
+  return legend;
+}
+
+/** The legend's entries flowing onto a further line where one is full; `lines` counts the lines after the first. */
+function placeLegend(legend: readonly LegendEntry[], W: number): { placed: { lx: number; line: number; entry: LegendEntry }[]; lines: number } {
+  const placed: { lx: number; line: number; entry: LegendEntry }[] = [];
   let lx = 4, line = 0;
   for (const entry of legend) {
     const wide = 28 + textWidth(entry.text) + 18;
@@ -395,11 +432,15 @@ export function coverageMapSvg(report: MapSource, scale = 2): string | null {
       lx = 4;
       line++;
     }
-    placedLegend.push({ lx, line, entry });
+    placed.push({ lx, line, entry });
     lx += wide;
   }
-  const bottom = 36 + 18 * line;
+  return { placed, lines: line };
+}
 
+/** The SVG's head, title line and sphere, then (inside the sphere's clip group, left open) the grid, what no frame sees and the frames. */
+function mapBackground(map: CoverageMap, g: SequenceGeometry, plot: Plot, bottom: number): string[] {
+  const { scale, W, H, top, x, y } = plot;
   const parts: string[] = [];
   parts.push(`<svg xmlns="http://www.w3.org/2000/svg" width="${W}" height="${H + top + bottom}" viewBox="0 0 ${W} ${H + top + bottom}" font-family="sans-serif" font-size="11">`);
   parts.push('<title>Seamscout coverage map</title>');
@@ -407,7 +448,6 @@ export function coverageMapSvg(report: MapSource, scale = 2): string | null {
   parts.push(`<clipPath id="sphere"><rect x="0" y="${top}" width="${W}" height="${H}"/></clipPath></defs>`);
   parts.push(`<rect x="0" y="0" width="${W}" height="${H + top + bottom}" fill="#ffffff"/>`);
   parts.push(`<rect x="0" y="${top}" width="${W}" height="${H}" fill="#f4f4f4" stroke="#999999"/>`);
-  const g = report.geometry!;
   parts.push(`<text x="4" y="18">Coverage: ${Math.round(g.horizontalDeg)}° of the horizon, ${Math.round(g.verticalDeg)}° vertically${g.closure ? (g.closure.closes ? '; the turn closes' : '; the turn does not meet itself') : ''}</text>`);
   parts.push('<g clip-path="url(#sphere)">');
   for (let yaw = -150; yaw < 180; yaw += 30) parts.push(`<line x1="${x(yaw)}" y1="${top}" x2="${x(yaw)}" y2="${top + H}" stroke="#dddddd"/>`);
@@ -422,14 +462,22 @@ export function coverageMapSvg(report: MapSource, scale = 2): string | null {
     }
     parts.push(`<text x="${x(fp.centre[0]).toFixed(1)}" y="${(y(fp.centre[1]) + 4).toFixed(1)}" text-anchor="middle" fill="#003b5c">${esc(String(fp.station + 1))}</text>`);
   }
-  // Copies a yaw's width to either side, so a mark across the seam at +-180 degrees shows whole.
-  const shifts = (yawLo: number, yawHi: number): number[] => [0, ...(yawHi > 180 ? [-360] : []), ...(yawLo < -180 ? [360] : [])];
+  return parts;
+}
+
+/** Copies a yaw's width to either side, so a mark across the seam at +-180 degrees shows whole. */
+const seamShifts = (yawLo: number, yawHi: number): number[] => [0, ...(yawHi > 180 ? [-360] : []), ...(yawLo < -180 ? [360] : [])];
+
+/** A report's coverage holes: a dashed outline in the verdict's colour and a cross where to aim. */
+function holeMarks(holes: readonly CoverageHole[], plot: Plot): string[] {
+  const { scale, x, y } = plot;
+  const parts: string[] = [];
   for (const h of holes) {
     const colour = warningColour[h.verdict === 'ok' ? 'weak' : h.verdict];
     const width = Math.min(360, h.widthDeg);
     const pTop = h.pole === 'zenith' ? 90 : h.pole === 'nadir' ? -90 + h.heightDeg : h.pitchDeg + h.heightDeg / 2;
     const yawLo = width >= 359 ? -180 : h.yawDeg - width / 2;
-    for (const shift of shifts(yawLo, yawLo + width)) {
+    for (const shift of seamShifts(yawLo, yawLo + width)) {
       parts.push(`<rect class="hole-mark" data-verdict="${h.verdict}" x="${x(yawLo + shift).toFixed(1)}" y="${y(pTop).toFixed(1)}" width="${(width * scale).toFixed(1)}" height="${(h.heightDeg * scale).toFixed(1)}" fill="none" stroke="${colour}" stroke-width="2.5" stroke-dasharray="6 3"/>`);
       if (h.pole === null) {
         const ax = x(h.yawDeg + shift), ay = y(h.pitchDeg);
@@ -437,6 +485,13 @@ export function coverageMapSvg(report: MapSource, scale = 2): string | null {
       }
     }
   }
+  return parts;
+}
+
+/** Flagged links: a dashed, dotted or dash-dotted line on a dark casing between the stations' centres, with its words beside it. */
+function linkLines(links: readonly LinkMark[], plot: Plot): string[] {
+  const { scale, x, y } = plot;
+  const parts: string[] = [];
   for (const l of links) {
     const colour = warningColour[l.verdict];
     const words = l.code === 'low-overlap' ? (l.overlap === null ? 'low overlap' : `${Math.round(100 * l.overlap)} %`) : l.code === 'no-match' ? 'no match' : 'no closure';
@@ -444,7 +499,7 @@ export function coverageMapSvg(report: MapSource, scale = 2): string | null {
     const x1 = x(l.from[0]), y1 = y(l.from[1]), x2 = x(l.to[0]), y2 = y(l.to[1]);
     const len = Math.hypot(x2 - x1, y2 - y1) || 1, cut = Math.min(10, len / 4);
     const ux = (x2 - x1) / len, uy = (y2 - y1) / len;
-    for (const shift of shifts(Math.min(l.from[0], l.to[0]), Math.max(l.from[0], l.to[0]))) {
+    for (const shift of seamShifts(Math.min(l.from[0], l.to[0]), Math.max(l.from[0], l.to[0]))) {
       const d = shift * scale;
       const a = `x1="${(x1 + ux * cut + d).toFixed(1)}" y1="${(y1 + uy * cut).toFixed(1)}" x2="${(x2 - ux * cut + d).toFixed(1)}" y2="${(y2 - uy * cut).toFixed(1)}"`;
       parts.push(`<line class="link-casing" ${a} stroke="#000000" stroke-opacity="0.75" stroke-width="7"/>`);
@@ -452,14 +507,19 @@ export function coverageMapSvg(report: MapSource, scale = 2): string | null {
       parts.push(`<text class="link-words" x="${((x1 + x2) / 2 + d).toFixed(1)}" y="${((y1 + y2) / 2 - 9).toFixed(1)}" text-anchor="middle" font-weight="bold" fill="#000000" stroke="#ffffff" stroke-width="3" paint-order="stroke">${esc(words)}</text>`);
     }
   }
-  parts.push('</g>');
+  return parts;
+}
+
+/** The yaw labels under the sphere and the placed legend entries. */
+function axisAndLegend(placed: readonly { lx: number; line: number; entry: LegendEntry }[], plot: Plot): string[] {
+  const { W, H, top, x } = plot;
+  const parts: string[] = [];
   for (let yaw = -180; yaw <= 180; yaw += 90) parts.push(`<text x="${Math.min(W - 30, Math.max(2, x(yaw) - 12))}" y="${top + H + 14}" fill="#555555">${yaw}°</text>`);
-  for (const { lx: ex, line: el, entry } of placedLegend) {
+  for (const { lx: ex, line: el, entry } of placed) {
     const ly = top + H + 30 + 18 * el;
     parts.push(`<g class="legend-entry">${entry.swatch(ex, ly)}<text x="${ex + 28}" y="${ly}">${esc(entry.text)}</text></g>`);
   }
-  parts.push('</svg>');
-  return parts.join('\n') + '\n';
+  return parts;
 }
 
 /** One connected stretch of uncovered cells (8-neighbours, wrapping in yaw). */
