@@ -117,18 +117,15 @@ export interface GuidedMatches {
   readonly shift: readonly [number, number];
 }
 
-/**
- * Matches a's keypoints with b's near where `predicted` (a -> b) puts them, in two passes: a wide
- * search whose ratio-tested matches vote for the prediction's common shift (a turn a few degrees
- * off moves the whole narrow overlap alike), then a tight window around the shifted prediction,
- * with the ratio test among the window's candidates and the mutual check. Deterministic.
- */
-export function guidedMatches(fa: Features, fb: Features, predicted: ArrayLike<number>, params: Partial<GuidedMatchParams> = {}): GuidedMatches {
-  expectHomography(predicted, 'predicted');
-  const p = { ...defaultGuidedMatchParams, ...params };
-  const side = Math.max(fb.width, fb.height);
-  const search = p.searchShare * side, window = Math.max(2, p.windowShare * side);
-  const na = fa.keypoints.count, nb = fb.keypoints.count;
+/** Where `predicted` puts each of a's keypoints in b, and whether it lands in front of b's camera within `search` px of b. */
+interface Predicted {
+  readonly x: Float64Array;
+  readonly y: Float64Array;
+  readonly inFront: Uint8Array;
+}
+
+function predictInB(fa: Features, fb: Features, predicted: ArrayLike<number>, search: number): Predicted {
+  const na = fa.keypoints.count;
   const px = new Float64Array(na), py = new Float64Array(na);
   const inFront = new Uint8Array(na);
   for (let i = 0; i < na; i++) {
@@ -137,9 +134,13 @@ export function guidedMatches(fa: Features, fb: Features, predicted: ArrayLike<n
     py[i] = v;
     inFront[i] = w > 0 && u > -search && v > -search && u < fb.width + search && v < fb.height + search ? 1 : 0;
   }
+  return { x: px, y: py, inFront };
+}
 
-  // Pass 1: votes for the shift.
-  const candidates = new Int32Array(nb);
+/** Pass 1: the wide search's ratio-tested matches, each a vote for the shift (b's pixels) from prediction to match. */
+function shiftVotes(fa: Features, fb: Features, pred: Predicted, search: number, window: number, p: GuidedMatchParams, candidates: Int32Array): { vx: Float64Array; vy: Float64Array; votes: number } {
+  const na = fa.keypoints.count;
+  const px = pred.x, py = pred.y, inFront = pred.inFront;
   const grid = gridOf(fb, Math.max(window, search / 4));
   const vx = new Float64Array(na), vy = new Float64Array(na);
   let votes = 0;
@@ -162,8 +163,13 @@ export function guidedMatches(fa: Features, fb: Features, predicted: ArrayLike<n
       votes++;
     }
   }
+  return { vx, vy, votes };
+}
+
+/** The common shift the votes agree on; [0, 0] with fewer than `minVotes` votes in its neighbourhood. */
+function commonShift(vx: Float64Array, vy: Float64Array, votes: number, window: number, minVotes: number): [number, number] {
   let sx = 0, sy = 0;
-  if (votes >= p.minVotes) {
+  if (votes >= minVotes) {
     // The densest window-sized neighbourhood of votes, then their mean.
     let bestCount = 0;
     for (let k = 0; k < votes; k++) {
@@ -181,10 +187,15 @@ export function guidedMatches(fa: Features, fb: Features, predicted: ArrayLike<n
         sy = my / c;
       }
     }
-    if (bestCount < p.minVotes) sx = sy = 0;
+    if (bestCount < minVotes) sx = sy = 0;
   }
+  return [sx, sy];
+}
 
-  // Pass 2: the tight window around the shifted prediction.
+/** Pass 2: the tight window around the shifted prediction, with the ratio test among its candidates and the mutual check. */
+function windowMatches(fa: Features, fb: Features, pred: Predicted, sx: number, sy: number, window: number, p: GuidedMatchParams, candidates: Int32Array): Matches {
+  const na = fa.keypoints.count, nb = fb.keypoints.count;
+  const px = pred.x, py = pred.y, inFront = pred.inFront;
   const best = new Int32Array(na).fill(-1);
   const bestD = new Float64Array(na).fill(Infinity);
   const bestOfB = new Int32Array(nb).fill(-1);
@@ -220,7 +231,25 @@ export function guidedMatches(fa: Features, fb: Features, predicted: ArrayLike<n
     out.distance[out.count] = bestD[i];
     out.count++;
   }
-  return { matches: out, shift: [sx, sy] };
+  return out;
+}
+
+/**
+ * Matches a's keypoints with b's near where `predicted` (a -> b) puts them, in two passes: a wide
+ * search whose ratio-tested matches vote for the prediction's common shift (a turn a few degrees
+ * off moves the whole narrow overlap alike), then a tight window around the shifted prediction,
+ * with the ratio test among the window's candidates and the mutual check. Deterministic.
+ */
+export function guidedMatches(fa: Features, fb: Features, predicted: ArrayLike<number>, params: Partial<GuidedMatchParams> = {}): GuidedMatches {
+  expectHomography(predicted, 'predicted');
+  const p = { ...defaultGuidedMatchParams, ...params };
+  const side = Math.max(fb.width, fb.height);
+  const search = p.searchShare * side, window = Math.max(2, p.windowShare * side);
+  const pred = predictInB(fa, fb, predicted, search);
+  const candidates = new Int32Array(fb.keypoints.count);
+  const { vx, vy, votes } = shiftVotes(fa, fb, pred, search, window, p, candidates);
+  const [sx, sy] = commonShift(vx, vy, votes, window, p.minVotes);
+  return { matches: windowMatches(fa, fb, pred, sx, sy, window, p, candidates), shift: [sx, sy] };
 }
 
 /** Guided matching, then the homography fitted and verified as for any pair (pair-geometry.ts). */

@@ -359,14 +359,46 @@ const textWidth = (t: string): number => 6.2 * t.length;
 export function coverageMapSvg(report: MapSource, scale = 2): string | null {
   const map = coverageMap(report);
   if (!map) return null;
+  const plot = plotOf(scale);
+  const links = linkMarks(report);
+  const holes = report.holes ?? [];
+  const { placed, lines } = placeLegend(legendEntries(map, holes, links), plot.W);
+  const bottom = 36 + 18 * lines;
+  return [
+    ...mapBackground(map, report.geometry!, plot, bottom),
+    ...holeMarks(holes, plot),
+    ...linkLines(links, plot),
+    '</g>',
+    ...axisAndLegend(placed, plot),
+    '</svg>',
+  ].join('\n') + '\n';
+}
+
+/** The SVG's drawing area: `scale` px a degree, the sphere below a `top` px title line. */
+interface Plot {
+  readonly scale: number;
+  readonly W: number;
+  readonly H: number;
+  readonly top: number;
+  readonly x: (yaw: number) => number;
+  readonly y: (pitch: number) => number;
+}
+
+function plotOf(scale: number): Plot {
   const W = 360 * scale, H = 180 * scale, top = 28;
   const x = (yaw: number): number => (yaw + 180) * scale;
   const y = (pitch: number): number => top + (90 - pitch) * scale;
-  const links = linkMarks(report);
-  const holes = report.holes ?? [];
+  return { scale, W, H, top, x, y };
+}
 
-  // The legend: entries in words, flowing onto a second line where the first is full.
-  const legend: { swatch: (lx: number, ly: number) => string; text: string }[] = [
+interface LegendEntry {
+  readonly swatch: (lx: number, ly: number) => string;
+  readonly text: string;
+}
+
+/** The legend's entries in words: frames, what is not covered, then each kind of mark the map shows. */
+function legendEntries(map: CoverageMap, holes: readonly CoverageHole[], links: readonly LinkMark[]): LegendEntry[] {
+  const legend: LegendEntry[] = [
     { swatch: (lx, ly) => `<rect x="${lx}" y="${ly - 10}" width="14" height="12" fill="#0072B2" fill-opacity="0.08" stroke="#0072B2"/>`, text: 'frame (station number)' },
     { swatch: (lx, ly) => `<rect x="${lx}" y="${ly - 10}" width="14" height="12" fill="url(#hole)" stroke="#D55E00"/>`, text: map.holes.length ? 'not covered (hatched)' : 'not covered (none in the shot band)' },
   ];
@@ -387,7 +419,12 @@ export function coverageMapSvg(report: MapSource, scale = 2): string | null {
       });
     }
   }
-  const placedLegend: { lx: number; line: number; entry: (typeof legend)[number] }[] = [];
+  return legend;
+}
+
+/** The legend's entries flowing onto a further line where one is full; `lines` counts the lines after the first. */
+function placeLegend(legend: readonly LegendEntry[], W: number): { placed: { lx: number; line: number; entry: LegendEntry }[]; lines: number } {
+  const placed: { lx: number; line: number; entry: LegendEntry }[] = [];
   let lx = 4, line = 0;
   for (const entry of legend) {
     const wide = 28 + textWidth(entry.text) + 18;
@@ -395,11 +432,15 @@ export function coverageMapSvg(report: MapSource, scale = 2): string | null {
       lx = 4;
       line++;
     }
-    placedLegend.push({ lx, line, entry });
+    placed.push({ lx, line, entry });
     lx += wide;
   }
-  const bottom = 36 + 18 * line;
+  return { placed, lines: line };
+}
 
+/** The SVG's head, title line and sphere, then (inside the sphere's clip group, left open) the grid, what no frame sees and the frames. */
+function mapBackground(map: CoverageMap, g: SequenceGeometry, plot: Plot, bottom: number): string[] {
+  const { scale, W, H, top, x, y } = plot;
   const parts: string[] = [];
   parts.push(`<svg xmlns="http://www.w3.org/2000/svg" width="${W}" height="${H + top + bottom}" viewBox="0 0 ${W} ${H + top + bottom}" font-family="sans-serif" font-size="11">`);
   parts.push('<title>Seamscout coverage map</title>');
@@ -407,7 +448,6 @@ export function coverageMapSvg(report: MapSource, scale = 2): string | null {
   parts.push(`<clipPath id="sphere"><rect x="0" y="${top}" width="${W}" height="${H}"/></clipPath></defs>`);
   parts.push(`<rect x="0" y="0" width="${W}" height="${H + top + bottom}" fill="#ffffff"/>`);
   parts.push(`<rect x="0" y="${top}" width="${W}" height="${H}" fill="#f4f4f4" stroke="#999999"/>`);
-  const g = report.geometry!;
   parts.push(`<text x="4" y="18">Coverage: ${Math.round(g.horizontalDeg)}° of the horizon, ${Math.round(g.verticalDeg)}° vertically${g.closure ? (g.closure.closes ? '; the turn closes' : '; the turn does not meet itself') : ''}</text>`);
   parts.push('<g clip-path="url(#sphere)">');
   for (let yaw = -150; yaw < 180; yaw += 30) parts.push(`<line x1="${x(yaw)}" y1="${top}" x2="${x(yaw)}" y2="${top + H}" stroke="#dddddd"/>`);
@@ -422,14 +462,22 @@ export function coverageMapSvg(report: MapSource, scale = 2): string | null {
     }
     parts.push(`<text x="${x(fp.centre[0]).toFixed(1)}" y="${(y(fp.centre[1]) + 4).toFixed(1)}" text-anchor="middle" fill="#003b5c">${esc(String(fp.station + 1))}</text>`);
   }
-  // Copies a yaw's width to either side, so a mark across the seam at +-180 degrees shows whole.
-  const shifts = (yawLo: number, yawHi: number): number[] => [0, ...(yawHi > 180 ? [-360] : []), ...(yawLo < -180 ? [360] : [])];
+  return parts;
+}
+
+/** Copies a yaw's width to either side, so a mark across the seam at +-180 degrees shows whole. */
+const seamShifts = (yawLo: number, yawHi: number): number[] => [0, ...(yawHi > 180 ? [-360] : []), ...(yawLo < -180 ? [360] : [])];
+
+/** A report's coverage holes: a dashed outline in the verdict's colour and a cross where to aim. */
+function holeMarks(holes: readonly CoverageHole[], plot: Plot): string[] {
+  const { scale, x, y } = plot;
+  const parts: string[] = [];
   for (const h of holes) {
     const colour = warningColour[h.verdict === 'ok' ? 'weak' : h.verdict];
     const width = Math.min(360, h.widthDeg);
     const pTop = h.pole === 'zenith' ? 90 : h.pole === 'nadir' ? -90 + h.heightDeg : h.pitchDeg + h.heightDeg / 2;
     const yawLo = width >= 359 ? -180 : h.yawDeg - width / 2;
-    for (const shift of shifts(yawLo, yawLo + width)) {
+    for (const shift of seamShifts(yawLo, yawLo + width)) {
       parts.push(`<rect class="hole-mark" data-verdict="${h.verdict}" x="${x(yawLo + shift).toFixed(1)}" y="${y(pTop).toFixed(1)}" width="${(width * scale).toFixed(1)}" height="${(h.heightDeg * scale).toFixed(1)}" fill="none" stroke="${colour}" stroke-width="2.5" stroke-dasharray="6 3"/>`);
       if (h.pole === null) {
         const ax = x(h.yawDeg + shift), ay = y(h.pitchDeg);
@@ -437,6 +485,13 @@ export function coverageMapSvg(report: MapSource, scale = 2): string | null {
       }
     }
   }
+  return parts;
+}
+
+/** Flagged links: a dashed, dotted or dash-dotted line on a dark casing between the stations' centres, with its words beside it. */
+function linkLines(links: readonly LinkMark[], plot: Plot): string[] {
+  const { scale, x, y } = plot;
+  const parts: string[] = [];
   for (const l of links) {
     const colour = warningColour[l.verdict];
     const words = l.code === 'low-overlap' ? (l.overlap === null ? 'low overlap' : `${Math.round(100 * l.overlap)} %`) : l.code === 'no-match' ? 'no match' : 'no closure';
@@ -444,7 +499,7 @@ export function coverageMapSvg(report: MapSource, scale = 2): string | null {
     const x1 = x(l.from[0]), y1 = y(l.from[1]), x2 = x(l.to[0]), y2 = y(l.to[1]);
     const len = Math.hypot(x2 - x1, y2 - y1) || 1, cut = Math.min(10, len / 4);
     const ux = (x2 - x1) / len, uy = (y2 - y1) / len;
-    for (const shift of shifts(Math.min(l.from[0], l.to[0]), Math.max(l.from[0], l.to[0]))) {
+    for (const shift of seamShifts(Math.min(l.from[0], l.to[0]), Math.max(l.from[0], l.to[0]))) {
       const d = shift * scale;
       const a = `x1="${(x1 + ux * cut + d).toFixed(1)}" y1="${(y1 + uy * cut).toFixed(1)}" x2="${(x2 - ux * cut + d).toFixed(1)}" y2="${(y2 - uy * cut).toFixed(1)}"`;
       parts.push(`<line class="link-casing" ${a} stroke="#000000" stroke-opacity="0.75" stroke-width="7"/>`);
@@ -452,14 +507,19 @@ export function coverageMapSvg(report: MapSource, scale = 2): string | null {
       parts.push(`<text class="link-words" x="${((x1 + x2) / 2 + d).toFixed(1)}" y="${((y1 + y2) / 2 - 9).toFixed(1)}" text-anchor="middle" font-weight="bold" fill="#000000" stroke="#ffffff" stroke-width="3" paint-order="stroke">${esc(words)}</text>`);
     }
   }
-  parts.push('</g>');
+  return parts;
+}
+
+/** The yaw labels under the sphere and the placed legend entries. */
+function axisAndLegend(placed: readonly { lx: number; line: number; entry: LegendEntry }[], plot: Plot): string[] {
+  const { W, H, top, x } = plot;
+  const parts: string[] = [];
   for (let yaw = -180; yaw <= 180; yaw += 90) parts.push(`<text x="${Math.min(W - 30, Math.max(2, x(yaw) - 12))}" y="${top + H + 14}" fill="#555555">${yaw}°</text>`);
-  for (const { lx: ex, line: el, entry } of placedLegend) {
+  for (const { lx: ex, line: el, entry } of placed) {
     const ly = top + H + 30 + 18 * el;
     parts.push(`<g class="legend-entry">${entry.swatch(ex, ly)}<text x="${ex + 28}" y="${ly}">${esc(entry.text)}</text></g>`);
   }
-  parts.push('</svg>');
-  return parts.join('\n') + '\n';
+  return parts;
 }
 
 /** One connected stretch of uncovered cells (8-neighbours, wrapping in yaw). */
@@ -625,111 +685,162 @@ function findHoles(source: MapSource, g: SequenceGeometry, fullSphere: boolean):
   if (!multiRow && !band.zenith && !band.nadir) return { holes: [], notes: [] };
 
   const c = 1;
-  const cols = Math.round(360 / c);
   const open = openCellsOf(source, g, cams, c);
-  const rows: Row[] = rowList.flatMap((r) => {
-    const rc = cams.filter((cam) => r.stations.includes(cam.station));
-    if (rc.length === 0) return [];
-    const frameDeg = lineCover([aimedCamera(0, r.pitchDeg, rc[0].width, rc[0].height)], f, r.pitchDeg).reduce((t, v) => t + v, 0) * sampleDeg;
-    return [{ pitchDeg: r.pitchDeg, cams: rc, cover: lineCover(rc, f, r.pitchDeg), frameDeg }];
-  });
+  const rows = rowsOf(rowList, cams, f);
   // The yaw the set spans: what any row covers along its own pitch; all of it when declared a full sphere.
   const span = new Uint8Array(samples);
   for (const r of rows) for (let k = 0; k < samples; k++) span[k] |= r.cover[k];
   const goesRound = fullSphere || span.every((v) => v === 1);
 
-  const holes: CoverageHole[] = [];
   // Cells a suggested frame would fill: they belong to that hole, not to another.
   const explained = new Uint8Array(open.length);
+  const grid: HoleGrid = { open, explained, c, cols: Math.round(360 / c), f };
   const unplaced = new Set(g.unplaced);
-
+  const holes: CoverageHole[] = [];
   for (const row of rows) {
-    const pieces: { from: number; to: number; end: boolean }[] = [];
-    for (const [from, to] of openRuns(row.cover)) {
-      let inside = true;
-      for (let k = from; k < to && inside; k++) if (!goesRound && !span[k % samples]) inside = false;
-      if (inside) {
-        pieces.push({ from, to, end: false });
-        continue;
-      }
-      // Where the row stops short of the other rows: a crop, unless it is a frame's worth.
-      let s0 = -1;
-      for (let k = from; k <= to; k++) {
-        const within = k < to && span[k % samples] === 1;
-        if (within && s0 < 0) s0 = k;
-        if (!within && s0 >= 0) {
-          if ((k - s0) * sampleDeg >= 0.5 * row.frameDeg) pieces.push({ from: s0, to: k, end: true });
-          s0 = -1;
-        }
-      }
-    }
-    for (const piece of pieces) {
-      const widthDeg = (piece.to - piece.from) * sampleDeg;
-      const midYaw = wrapYaw(sampleYaw(piece.from) - sampleDeg / 2 + widthDeg / 2);
-      // Frames to add at 30 % overlap with the neighbours and each other (common practice: 30-50 %):
-      // a gap has a neighbour on both sides, a row's end on one.
-      const F = row.frameDeg;
-      const n = piece.end ? Math.max(1, Math.ceil(widthDeg / (0.7 * F))) : Math.max(1, Math.ceil((widthDeg - 0.4 * F) / (0.7 * F)) + 1);
-      const aims = Array.from({ length: n }, (_, k) => wrapYaw(sampleYaw(piece.from) - sampleDeg / 2 + ((k + 0.5) * widthDeg) / n));
-      const fills = aims.map((y) => aimedCamera(y, row.pitchDeg, row.cams[0].width, row.cams[0].height));
-      let pLo = Infinity, pHi = -Infinity, cells = 0;
-      for (let cell = 0; cell < open.length; cell++) {
-        if (!open[cell] || explained[cell]) continue;
-        const r = Math.floor(cell / cols);
-        const d = directionOf(-180 + ((cell % cols) + 0.5) * c, -90 + (r + 0.5) * c);
-        if (!fills.some((cam) => sees(cam, f, d))) continue;
-        explained[cell] = 1;
-        cells++;
-        pLo = Math.min(pLo, -90 + r * c);
-        pHi = Math.max(pHi, -90 + (r + 1) * c);
-      }
-      // Other frames see all of it: no hole on the sphere.
-      if (cells === 0) continue;
-      const heightDeg = pHi - pLo;
-      // The row's stations either side of the gap.
-      const sides = row.cams.map((cam) => ({ s: cam.station, d: wrapYaw(angles(cam.axes.z)[0] - midYaw) }));
-      const left = sides.filter((x) => x.d < 0).sort((a, b) => b.d - a.d)[0];
-      const right = sides.filter((x) => x.d >= 0).sort((a, b) => a.d - b.d)[0];
-      const pair = [left?.s, right?.s].filter((x): x is number => x !== undefined).sort((a, b) => a - b);
-      const between: [number, number] | null = !piece.end && pair.length === 2 && pair[0] !== pair[1] ? [pair[0], pair[1]] : null;
-      const where = between ? `between stations ${between[0] + 1} and ${between[1] + 1}` : `next to station ${(left ?? right).s + 1}`;
-      // A station shot just before or after one either side that could not be placed (no pose, so
-      // no footprint) may be the very frame aimed there: the gap may be a failed match, not a
-      // missing frame.
-      const sideStations = between ?? [(left ?? right).s];
-      let maybe: { station: number; next: number } | null = null;
-      for (const u of [...unplaced].sort((a, b) => a - b)) {
-        const next = sideStations.find((st) => Math.abs(u - st) === 1);
-        if (next !== undefined) {
-          maybe = { station: u, next };
-          break;
-        }
-      }
-      const aim = n === 1
-        ? `add a frame aimed at yaw ${round(aims[0])}°, pitch ${signedDeg(row.pitchDeg)}`
-        : `add ${n} frames aimed from yaw ${round(aims[0])}° to ${round(aims[n - 1])}°, at pitch ${signedDeg(row.pitchDeg)}`;
-      let advice: string;
-      let verdict: Verdict;
-      if (piece.end) {
-        advice = `the row at pitch ${signedDeg(row.pitchDeg)} stops about ${round(widthDeg)}° short of the others at yaw ${round(midYaw)}° (${where}): ${aim}, or crop the panorama there`;
-        verdict = 'weak';
-      } else {
-        advice = `nothing covers about ${round(widthDeg)}° x ${round(heightDeg)}° at yaw ${round(midYaw)}°, pitch ${signedDeg(row.pitchDeg)} (${where}): ${aim}`;
-        verdict = Math.min(widthDeg, heightDeg) >= 2 ? 'reshoot' : 'weak';
-      }
-      if (maybe !== null) {
-        advice += `; but station ${maybe.station + 1}, shot next to station ${maybe.next + 1}, could not be placed: if it is aimed there, it needs matching, not reshooting`;
-        verdict = 'weak';
-      }
-      holes.push({ code: 'coverage-hole', verdict, yawDeg: midYaw, pitchDeg: row.pitchDeg, widthDeg, heightDeg, pole: null, advice, between });
+    for (const piece of rowPieces(row, span, goesRound)) {
+      const hole = gapHole(row, piece, grid, unplaced);
+      if (hole) holes.push(hole);
     }
   }
+  holes.push(...bandHoles(rows, grid, band, goesRound));
+  // An open pole the set does not reach toward: said once, asking for nothing (sets in rows only;
+  // a single sweep plainly leaves both poles).
+  const notes = multiRow ? poleNotes(cams, band, open, explained, c) : [];
+  return { holes, notes };
+}
 
-  // What is left between the rows' own pitches: bands between rows, notches; and beyond them up to
-  // a counted pole. Above the highest row and below the lowest, the frames' edges are jagged
-  // (hand-held rows scatter in pitch and roll) and a panorama is cropped there: no hole. In a set
-  // that does not go round, only the yaw all its rows share, less a quarter frame at each end (the
-  // corners of the last frames of a row curve away there; a panorama is cropped to what its rows share).
+/** The open cells of the sphere, those a suggested frame already fills, and the grid's cell size. */
+interface HoleGrid {
+  readonly open: Uint8Array;
+  readonly explained: Uint8Array;
+  readonly c: number;
+  readonly cols: number;
+  readonly f: number;
+}
+
+/** The rows with placed frames, each with what its frames see along its pitch. */
+function rowsOf(rowList: readonly { pitchDeg: number; stations: readonly number[] }[], cams: readonly PlacedCamera[], f: number): Row[] {
+  return rowList.flatMap((r) => {
+    const rc = cams.filter((cam) => r.stations.includes(cam.station));
+    if (rc.length === 0) return [];
+    const frameDeg = lineCover([aimedCamera(0, r.pitchDeg, rc[0].width, rc[0].height)], f, r.pitchDeg).reduce((t, v) => t + v, 0) * sampleDeg;
+    return [{ pitchDeg: r.pitchDeg, cams: rc, cover: lineCover(rc, f, r.pitchDeg), frameDeg }];
+  });
+}
+
+/** A stretch of a row's samples no frame of the row sees: a gap between frames, or where the row ends short of the others. */
+interface RowPiece {
+  readonly from: number;
+  readonly to: number;
+  readonly end: boolean;
+}
+
+/** A row's gaps within the yaw the set spans, and the ends where it stops short of the other rows. */
+function rowPieces(row: Row, span: Uint8Array, goesRound: boolean): RowPiece[] {
+  const pieces: RowPiece[] = [];
+  for (const [from, to] of openRuns(row.cover)) {
+    let inside = true;
+    for (let k = from; k < to && inside; k++) if (!goesRound && !span[k % samples]) inside = false;
+    if (inside) {
+      pieces.push({ from, to, end: false });
+      continue;
+    }
+    // Where the row stops short of the other rows: a crop, unless it is a frame's worth.
+    let s0 = -1;
+    for (let k = from; k <= to; k++) {
+      const within = k < to && span[k % samples] === 1;
+      if (within && s0 < 0) s0 = k;
+      if (!within && s0 >= 0) {
+        if ((k - s0) * sampleDeg >= 0.5 * row.frameDeg) pieces.push({ from: s0, to: k, end: true });
+        s0 = -1;
+      }
+    }
+  }
+  return pieces;
+}
+
+/** Marks the open cells not yet explained that the given frames would see; their count and pitch extent. */
+function claimCells(grid: HoleGrid, fills: readonly PlacedCamera[]): { cells: number; pLo: number; pHi: number } {
+  const { open, explained, c, cols, f } = grid;
+  let pLo = Infinity, pHi = -Infinity, cells = 0;
+  for (let cell = 0; cell < open.length; cell++) {
+    if (!open[cell] || explained[cell]) continue;
+    const r = Math.floor(cell / cols);
+    const d = directionOf(-180 + ((cell % cols) + 0.5) * c, -90 + (r + 0.5) * c);
+    if (!fills.some((cam) => sees(cam, f, d))) continue;
+    explained[cell] = 1;
+    cells++;
+    pLo = Math.min(pLo, -90 + r * c);
+    pHi = Math.max(pHi, -90 + (r + 1) * c);
+  }
+  return { cells, pLo, pHi };
+}
+
+/** The row's stations either side of a gap at `midYaw`, and the words for where it is. */
+function gapSides(row: Row, midYaw: number, end: boolean): { between: [number, number] | null; where: string; sideStations: number[] } {
+  const sides = row.cams.map((cam) => ({ s: cam.station, d: wrapYaw(angles(cam.axes.z)[0] - midYaw) }));
+  const left = sides.filter((x) => x.d < 0).sort((a, b) => b.d - a.d)[0];
+  const right = sides.filter((x) => x.d >= 0).sort((a, b) => a.d - b.d)[0];
+  const pair = [left?.s, right?.s].filter((x): x is number => x !== undefined).sort((a, b) => a - b);
+  const between: [number, number] | null = !end && pair.length === 2 && pair[0] !== pair[1] ? [pair[0], pair[1]] : null;
+  const where = between ? `between stations ${between[0] + 1} and ${between[1] + 1}` : `next to station ${(left ?? right).s + 1}`;
+  return { between, where, sideStations: between ?? [(left ?? right).s] };
+}
+
+/**
+ * A station shot just before or after one either side that could not be placed (no pose, so no
+ * footprint) may be the very frame aimed there: the gap may be a failed match, not a missing frame.
+ */
+function unplacedNextTo(unplaced: ReadonlySet<number>, sideStations: readonly number[]): { station: number; next: number } | null {
+  for (const u of [...unplaced].sort((a, b) => a - b)) {
+    const next = sideStations.find((st) => Math.abs(u - st) === 1);
+    if (next !== undefined) return { station: u, next };
+  }
+  return null;
+}
+
+/** The hole a row's gap or short end leaves, with the frames to add; null when other frames see all of it. */
+function gapHole(row: Row, piece: RowPiece, grid: HoleGrid, unplaced: ReadonlySet<number>): CoverageHole | null {
+  const widthDeg = (piece.to - piece.from) * sampleDeg;
+  const midYaw = wrapYaw(sampleYaw(piece.from) - sampleDeg / 2 + widthDeg / 2);
+  // Frames to add at 30 % overlap with the neighbours and each other (common practice: 30-50 %):
+  // a gap has a neighbour on both sides, a row's end on one.
+  const F = row.frameDeg;
+  const n = piece.end ? Math.max(1, Math.ceil(widthDeg / (0.7 * F))) : Math.max(1, Math.ceil((widthDeg - 0.4 * F) / (0.7 * F)) + 1);
+  const aims = Array.from({ length: n }, (_, k) => wrapYaw(sampleYaw(piece.from) - sampleDeg / 2 + ((k + 0.5) * widthDeg) / n));
+  const fills = aims.map((y) => aimedCamera(y, row.pitchDeg, row.cams[0].width, row.cams[0].height));
+  const { cells, pLo, pHi } = claimCells(grid, fills);
+  // Other frames see all of it: no hole on the sphere.
+  if (cells === 0) return null;
+  const heightDeg = pHi - pLo;
+  const { between, where, sideStations } = gapSides(row, midYaw, piece.end);
+  const maybe = unplacedNextTo(unplaced, sideStations);
+  const aim = n === 1
+    ? `add a frame aimed at yaw ${round(aims[0])}°, pitch ${signedDeg(row.pitchDeg)}`
+    : `add ${n} frames aimed from yaw ${round(aims[0])}° to ${round(aims[n - 1])}°, at pitch ${signedDeg(row.pitchDeg)}`;
+  let advice: string;
+  let verdict: Verdict;
+  if (piece.end) {
+    advice = `the row at pitch ${signedDeg(row.pitchDeg)} stops about ${round(widthDeg)}° short of the others at yaw ${round(midYaw)}° (${where}): ${aim}, or crop the panorama there`;
+    verdict = 'weak';
+  } else {
+    advice = `nothing covers about ${round(widthDeg)}° x ${round(heightDeg)}° at yaw ${round(midYaw)}°, pitch ${signedDeg(row.pitchDeg)} (${where}): ${aim}`;
+    verdict = Math.min(widthDeg, heightDeg) >= 2 ? 'reshoot' : 'weak';
+  }
+  if (maybe !== null) {
+    advice += `; but station ${maybe.station + 1}, shot next to station ${maybe.next + 1}, could not be placed: if it is aimed there, it needs matching, not reshooting`;
+    verdict = 'weak';
+  }
+  return { code: 'coverage-hole', verdict, yawDeg: midYaw, pitchDeg: row.pitchDeg, widthDeg, heightDeg, pole: null, advice, between };
+}
+
+/**
+ * The yaw samples all rows share, less a quarter frame at each end (the corners of the last frames
+ * of a row curve away there; a panorama is cropped to what its rows share); every sample in a set
+ * that goes round.
+ */
+function sharedYaw(rows: readonly Row[], goesRound: boolean): Uint8Array {
   const shared = new Uint8Array(samples).fill(1);
   if (!goesRound) {
     for (const r of rows) for (let k = 0; k < samples; k++) shared[k] &= r.cover[k];
@@ -740,6 +851,18 @@ function findHoles(source: MapSource, g: SequenceGeometry, fullSphere: boolean):
     }
     shared.set(kept);
   }
+  return shared;
+}
+
+/**
+ * What is left between the rows' own pitches: bands between rows, notches; and beyond them up to
+ * a counted pole. Above the highest row and below the lowest, the frames' edges are jagged
+ * (hand-held rows scatter in pitch and roll) and a panorama is cropped there: no hole. In a set
+ * that does not go round, only the yaw all its rows share.
+ */
+function bandHoles(rows: readonly Row[], grid: HoleGrid, band: Band, goesRound: boolean): CoverageHole[] {
+  const { open, explained, c, cols } = grid;
+  const shared = sharedYaw(rows, goesRound);
   const holeFrom = band.nadir ? -90 : Math.min(...rows.map((r) => r.pitchDeg));
   const holeTo = band.zenith ? 90 : Math.max(...rows.map((r) => r.pitchDeg));
   const rest = new Uint8Array(open.length);
@@ -751,6 +874,7 @@ function findHoles(source: MapSource, g: SequenceGeometry, fullSphere: boolean):
     if (!shared[Math.min(samples - 1, Math.floor((yaw + 180) / sampleDeg))]) continue;
     rest[cell] = 1;
   }
+  const holes: CoverageHole[] = [];
   for (const r of regionsOf(rest, c)) {
     // A pole not counted is the notes' business.
     if ((r.pole === 'zenith' && !band.zenith) || (r.pole === 'nadir' && !band.nadir)) continue;
@@ -762,24 +886,24 @@ function findHoles(source: MapSource, g: SequenceGeometry, fullSphere: boolean):
     else advice = `nothing covers about ${round(r.widthDeg)}° x ${round(r.heightDeg)}° at yaw ${round(wrapYaw(r.yawDeg))}°, pitch ${signedDeg(r.pitchDeg)} (${nearStations(rows, r.yawDeg, r.pitchDeg)}): add a frame aimed there`;
     holes.push({ code: 'coverage-hole', verdict, yawDeg: wrapYaw(r.yawDeg), pitchDeg: r.pitchDeg, widthDeg: r.widthDeg, heightDeg: r.heightDeg, pole: r.pole, advice, between: null });
   }
+  return holes;
+}
 
-  // An open pole the set does not reach toward: said once, asking for nothing (sets in rows only;
-  // a single sweep plainly leaves both poles).
+/** A note for each open pole the set neither reaches toward nor declares. */
+function poleNotes(cams: readonly PlacedCamera[], band: Band, open: Uint8Array, explained: Uint8Array, c: number): CoverageNote[] {
   const notes: CoverageNote[] = [];
-  if (multiRow) {
-    const centres = cams.map((cam) => angles(cam.axes.z)[1]);
-    for (const pole of ['zenith', 'nadir'] as const) {
-      if (pole === 'zenith' ? band.zenith : band.nadir) continue;
-      const beyond = pole === 'zenith' ? Math.max(...centres) : Math.min(...centres);
-      const cap = poleCap(open, explained, c, pole, beyond);
-      if (cap === null) continue;
-      const text = pole === 'zenith'
-        ? `nothing covers the view above about pitch ${signedDeg(cap)} (the zenith): no frame is aimed above ${poleReachDeg}°, so the set is taken as not meant to cover it; declare a full sphere (the budget's full-sphere setting, or --full-sphere) to have it checked`
-        : `nothing covers the view below about pitch ${signedDeg(cap)} (the nadir): no frame is aimed below -${poleReachDeg}°, so the set is taken as not meant to cover it; declare a full sphere (the budget's full-sphere setting, or --full-sphere) to have it checked`;
-      notes.push({ pole, pitchDeg: Math.round(10 * cap) / 10, text });
-    }
+  const centres = cams.map((cam) => angles(cam.axes.z)[1]);
+  for (const pole of ['zenith', 'nadir'] as const) {
+    if (pole === 'zenith' ? band.zenith : band.nadir) continue;
+    const beyond = pole === 'zenith' ? Math.max(...centres) : Math.min(...centres);
+    const cap = poleCap(open, explained, c, pole, beyond);
+    if (cap === null) continue;
+    const text = pole === 'zenith'
+      ? `nothing covers the view above about pitch ${signedDeg(cap)} (the zenith): no frame is aimed above ${poleReachDeg}°, so the set is taken as not meant to cover it; declare a full sphere (the budget's full-sphere setting, or --full-sphere) to have it checked`
+      : `nothing covers the view below about pitch ${signedDeg(cap)} (the nadir): no frame is aimed below -${poleReachDeg}°, so the set is taken as not meant to cover it; declare a full sphere (the budget's full-sphere setting, or --full-sphere) to have it checked`;
+    notes.push({ pole, pitchDeg: Math.round(10 * cap) / 10, text });
   }
-  return { holes, notes };
+  return notes;
 }
 
 /**
