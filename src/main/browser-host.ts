@@ -105,6 +105,160 @@ async function listenOn(server: Server, port: number, address: string): Promise<
   });
 }
 
+/** One run of the host: what every request is checked against and served from. */
+interface HostRun {
+  readonly token: string;
+  /** Where the run listens: the port is known once the server is bound, and the address may fall back to 127.0.0.1. */
+  readonly at: { address: string; port: number };
+  readonly assets: string;
+  readonly service: AppService;
+  readonly api: ReturnType<typeof createHandlers>;
+  /** The open event streams (server-sent events) of the pages. */
+  readonly events: Set<ServerResponse>;
+  readonly frameGate: ReturnType<typeof createFrameGate>;
+}
+
+const cookieName = (run: HostRun): string => `seamscout-${run.at.port}`;
+
+function headerToken(req: IncomingMessage): string | null {
+  const value = req.headers['x-seamscout-token'];
+  return typeof value === 'string' ? value : null;
+}
+
+function send(res: ServerResponse, status: number, body: string | Buffer, type = 'text/plain; charset=utf-8', extra: Record<string, string> = {}): void {
+  res.writeHead(status, {
+    'Content-Type': type,
+    'Content-Security-Policy': contentSecurityPolicy,
+    'X-Content-Type-Options': 'nosniff',
+    'Referrer-Policy': 'no-referrer',
+    'Cache-Control': 'no-store',
+    ...extra,
+  });
+  res.end(body);
+}
+
+/**
+ * Refuses without reading the body: `Connection: close` makes Node close the socket once the
+ * answer is out, instead of reading whatever body the client still sends to keep the connection.
+ */
+function refuse(res: ServerResponse, status: number, body: string, extra: Record<string, string> = {}): void {
+  send(res, status, body, 'text/plain; charset=utf-8', { Connection: 'close', ...extra });
+}
+
+/**
+ * The request's URL when it passes every check made before a body is read (our Host, our Origin
+ * when sent, the token, a body only on an API call and not too large); null when it was refused.
+ */
+function admitted(run: HostRun, req: IncomingMessage, res: ServerResponse): URL | null {
+  const { address, port } = run.at;
+  // localhost names 127.0.0.1, so it is ours only where we share that address.
+  const allowedHosts = address === '127.0.0.1' ? [`127.0.0.1:${port}`, `localhost:${port}`] : [`${address}:${port}`];
+  if (!allowedHosts.includes(req.headers.host ?? '')) return refused(res, 421, 'wrong host');
+  const origin = req.headers.origin;
+  if (origin !== undefined && !allowedHosts.some((h) => origin === `http://${h}`)) return refused(res, 403, 'foreign origin');
+  const url = new URL(req.url ?? '/', `http://${address}:${port}`);
+  const queryToken = url.searchParams.get('t');
+  const authorised =
+    sameSecret(queryToken, run.token) || sameSecret(headerToken(req), run.token) || sameSecret(cookieToken(req, cookieName(run)), run.token);
+  if (!authorised) return refused(res, 401, 'missing or wrong token');
+  const apiCall = url.pathname.startsWith('/api/') && req.method === 'POST';
+  if (hasBody(req) && !apiCall) return refused(res, 413, 'no body expected');
+  if (Number(req.headers['content-length'] ?? 0) > maxBodyBytes) return refused(res, 413, 'request too large');
+  return url;
+}
+
+function refused(res: ServerResponse, status: number, body: string): null {
+  refuse(res, status, body);
+  return null;
+}
+
+/** `/api/<method>`: the event stream (GET), or one call of the API (POST with the token header). */
+async function serveApi(run: HostRun, req: IncomingMessage, res: ServerResponse, method: string): Promise<void> {
+  if (method === 'events' && req.method === 'GET') {
+    res.writeHead(200, { 'Content-Type': 'text/event-stream', 'Cache-Control': 'no-store', Connection: 'keep-alive' });
+    res.write(': connected\n\n');
+    run.events.add(res);
+    req.on('close', () => run.events.delete(res));
+    return;
+  }
+  // State-changing calls need the header (a page of ours sets it; a form elsewhere cannot).
+  if (req.method !== 'POST' || !sameSecret(headerToken(req), run.token)) return refuse(res, 403, 'API calls are POST with the token header');
+  const fn = Object.hasOwn(run.api, method) ? (run.api[method as HostCallName] as (args: readonly unknown[]) => Promise<unknown>) : undefined;
+  if (!fn) return refuse(res, 404, 'no such call');
+  let args: unknown;
+  try {
+    args = await readJsonBody(req, res, maxBodyBytes);
+  } catch (err) {
+    if (err instanceof TooLarge) return refuse(res, 413, 'request too large');
+    return refuse(res, 400, 'the body is not JSON');
+  }
+  try {
+    const result = await fn(Array.isArray(args) ? args : [args]);
+    return send(res, 200, JSON.stringify({ ok: result ?? null }), 'application/json');
+  } catch (err) {
+    return send(res, 200, JSON.stringify({ error: (err as Error).message }), 'application/json');
+  }
+}
+
+/** `GET /frame/<path>`: a frame of the check in progress, as JPEG. */
+async function serveFrame(run: HostRun, req: IncomingMessage, res: ServerResponse, url: URL): Promise<void> {
+  // A frame holds tens of megabytes while it is decoded and scaled: a few at a time, a few more
+  // waiting, the rest asked to come back (the page retries).
+  const answer = await frameAnswer(run.service, { path: url.pathname.slice('/frame/'.length), max: url.searchParams.get('max') }, (render) =>
+    run.frameGate.run(() => (req.socket.destroyed ? Promise.resolve(null) : render())),
+  );
+  if (answer.status === 200) return send(res, 200, answer.image, 'image/jpeg');
+  return send(res, answer.status, answer.text, 'text/plain; charset=utf-8', answer.status === 503 ? { 'Retry-After': '1' } : {});
+}
+
+/** One of the page's own files; the page itself sets the run's cookie. */
+async function serveAsset(run: HostRun, res: ServerResponse, pathname: string): Promise<void> {
+  const asset = await readAsset(run.assets, pathname);
+  if (!asset) return send(res, 404, 'not found');
+  const extra: Record<string, string> =
+    asset.name === 'index.html' ? { 'Set-Cookie': `${cookieName(run)}=${run.token}; HttpOnly; SameSite=Strict; Path=/` } : {};
+  return send(res, 200, asset.body, asset.type, extra);
+}
+
+async function handle(run: HostRun, req: IncomingMessage, res: ServerResponse): Promise<void> {
+  const url = admitted(run, req, res);
+  if (!url) return;
+  if (url.pathname.startsWith('/api/')) return serveApi(run, req, res, url.pathname.slice(5));
+  if (url.pathname.startsWith('/frame/') && req.method === 'GET') return serveFrame(run, req, res, url);
+  if (req.method !== 'GET') return refuse(res, 405, 'method not allowed');
+  return serveAsset(run, res, url.pathname);
+}
+
+function hostServer(run: HostRun): Server {
+  const onRequest = (req: IncomingMessage, res: ServerResponse): void => {
+    handle(run, req, res).catch((err) => {
+      if (!res.headersSent) send(res, 500, (err as Error).message);
+      else res.end();
+    });
+  };
+  const server = createServer(onRequest);
+  // Without this Node answers "100 Continue" itself, inviting the body before anything is checked.
+  server.on('checkContinue', onRequest);
+  // A slow client may not hold a connection open with a request that never ends.
+  server.headersTimeout = 10_000;
+  server.requestTimeout = 30_000;
+  return server;
+}
+
+/** Binds the server on `at.address`, or on 127.0.0.1 where that address is not there; true when it fell back (a shared address). */
+async function listenOnLoopback(server: Server, port: number, at: HostRun['at']): Promise<boolean> {
+  try {
+    await listenOn(server, port, at.address);
+    return false;
+  } catch (err) {
+    // macOS routes only 127.0.0.1 to its loopback interface unless more addresses are aliased.
+    if ((err as NodeJS.ErrnoException).code !== 'EADDRNOTAVAIL' || at.address === '127.0.0.1') throw err;
+    at.address = '127.0.0.1';
+    await listenOn(server, port, at.address);
+    return true;
+  }
+}
+
 /**
  * The same page as the desktop window, served on a loopback address of its own (random per run) for
  * machines without the Electron binary. Every request must name this run's secret token (query `t`,
@@ -127,124 +281,21 @@ export async function startBrowserHost(options: BrowserHostOptions): Promise<Bro
     onDone: (e) => broadcast('done', e),
     onPartial: (e) => broadcast('partial', e),
   });
-  let port = 0;
-  let address = options.address ?? randomLoopbackAddress();
-  if (!isIPv4(address) || address === '0.0.0.0') throw new TypeError(`Expected one IPv4 address for address but received ${address}`);
+  const at = { address: options.address ?? randomLoopbackAddress(), port: 0 };
+  if (!isIPv4(at.address) || at.address === '0.0.0.0') throw new TypeError(`Expected one IPv4 address for address but received ${at.address}`);
   const frameGate = createFrameGate(frameRenders.running, frameRenders.waiting);
-  const cookieName = (): string => `seamscout-${port}`;
-
   const api = createHandlers(service, {
     shell: 'browser',
     version: options.version,
     initialTarget: options.initialTarget ?? null,
     chooseFolder: async () => null,
   });
+  const run: HostRun = { token, at, assets: options.assets, service, api, events, frameGate };
 
-  const send = (res: ServerResponse, status: number, body: string | Buffer, type = 'text/plain; charset=utf-8', extra: Record<string, string> = {}): void => {
-    res.writeHead(status, {
-      'Content-Type': type,
-      'Content-Security-Policy': contentSecurityPolicy,
-      'X-Content-Type-Options': 'nosniff',
-      'Referrer-Policy': 'no-referrer',
-      'Cache-Control': 'no-store',
-      ...extra,
-    });
-    res.end(body);
-  };
-
-  /**
-   * Refuses without reading the body: `Connection: close` makes Node close the socket once the
-   * answer is out, instead of reading whatever body the client still sends to keep the connection.
-   */
-  const refuse = (res: ServerResponse, status: number, body: string, extra: Record<string, string> = {}): void => {
-    send(res, status, body, 'text/plain; charset=utf-8', { Connection: 'close', ...extra });
-  };
-
-  const handle = async (req: IncomingMessage, res: ServerResponse): Promise<void> => {
-    // localhost names 127.0.0.1, so it is ours only where we share that address.
-    const allowedHosts = address === '127.0.0.1' ? [`127.0.0.1:${port}`, `localhost:${port}`] : [`${address}:${port}`];
-    if (!allowedHosts.includes(req.headers.host ?? '')) return refuse(res, 421, 'wrong host');
-    const origin = req.headers.origin;
-    if (origin !== undefined && !allowedHosts.some((h) => origin === `http://${h}`)) return refuse(res, 403, 'foreign origin');
-    const url = new URL(req.url ?? '/', `http://${address}:${port}`);
-    const queryToken = url.searchParams.get('t');
-    const headerToken = req.headers['x-seamscout-token'];
-    const authorised =
-      sameSecret(queryToken, token) || sameSecret(typeof headerToken === 'string' ? headerToken : null, token) || sameSecret(cookieToken(req, cookieName()), token);
-    if (!authorised) return refuse(res, 401, 'missing or wrong token');
-    const apiCall = url.pathname.startsWith('/api/') && req.method === 'POST';
-    if (hasBody(req) && !apiCall) return refuse(res, 413, 'no body expected');
-    if (Number(req.headers['content-length'] ?? 0) > maxBodyBytes) return refuse(res, 413, 'request too large');
-
-    if (url.pathname.startsWith('/api/')) {
-      const method = url.pathname.slice(5);
-      if (method === 'events' && req.method === 'GET') {
-        res.writeHead(200, { 'Content-Type': 'text/event-stream', 'Cache-Control': 'no-store', Connection: 'keep-alive' });
-        res.write(': connected\n\n');
-        events.add(res);
-        req.on('close', () => events.delete(res));
-        return;
-      }
-      // State-changing calls need the header (a page of ours sets it; a form elsewhere cannot).
-      if (req.method !== 'POST' || !sameSecret(typeof headerToken === 'string' ? headerToken : null, token)) return refuse(res, 403, 'API calls are POST with the token header');
-      const fn = Object.hasOwn(api, method) ? (api[method as HostCallName] as (args: readonly unknown[]) => Promise<unknown>) : undefined;
-      if (!fn) return refuse(res, 404, 'no such call');
-      let args: unknown;
-      try {
-        args = await readJsonBody(req, res, maxBodyBytes);
-      } catch (err) {
-        if (err instanceof TooLarge) return refuse(res, 413, 'request too large');
-        return refuse(res, 400, 'the body is not JSON');
-      }
-      try {
-        const result = await fn(Array.isArray(args) ? args : [args]);
-        return send(res, 200, JSON.stringify({ ok: result ?? null }), 'application/json');
-      } catch (err) {
-        return send(res, 200, JSON.stringify({ error: (err as Error).message }), 'application/json');
-      }
-    }
-
-    if (url.pathname.startsWith('/frame/') && req.method === 'GET') {
-      // A frame holds tens of megabytes while it is decoded and scaled: a few at a time, a few more
-      // waiting, the rest asked to come back (the page retries).
-      const answer = await frameAnswer(service, { path: url.pathname.slice('/frame/'.length), max: url.searchParams.get('max') }, (render) =>
-        frameGate.run(() => (req.socket.destroyed ? Promise.resolve(null) : render())),
-      );
-      if (answer.status === 200) return send(res, 200, answer.image, 'image/jpeg');
-      return send(res, answer.status, answer.text, 'text/plain; charset=utf-8', answer.status === 503 ? { 'Retry-After': '1' } : {});
-    }
-
-    if (req.method !== 'GET') return refuse(res, 405, 'method not allowed');
-    const asset = await readAsset(options.assets, url.pathname);
-    if (!asset) return send(res, 404, 'not found');
-    const extra: Record<string, string> =
-      asset.name === 'index.html' ? { 'Set-Cookie': `${cookieName()}=${token}; HttpOnly; SameSite=Strict; Path=/` } : {};
-    return send(res, 200, asset.body, asset.type, extra);
-  };
-
-  const onRequest = (req: IncomingMessage, res: ServerResponse): void => {
-    handle(req, res).catch((err) => {
-      if (!res.headersSent) send(res, 500, (err as Error).message);
-      else res.end();
-    });
-  };
-  const server = createServer(onRequest);
-  // Without this Node answers "100 Continue" itself, inviting the body before anything is checked.
-  server.on('checkContinue', onRequest);
-  // A slow client may not hold a connection open with a request that never ends.
-  server.headersTimeout = 10_000;
-  server.requestTimeout = 30_000;
-  let sharedAddress = false;
-  try {
-    await listenOn(server, options.port ?? 0, address);
-  } catch (err) {
-    // macOS routes only 127.0.0.1 to its loopback interface unless more addresses are aliased.
-    if ((err as NodeJS.ErrnoException).code !== 'EADDRNOTAVAIL' || address === '127.0.0.1') throw err;
-    address = '127.0.0.1';
-    sharedAddress = true;
-    await listenOn(server, options.port ?? 0, address);
-  }
-  port = (server.address() as AddressInfo).port;
+  const server = hostServer(run);
+  const sharedAddress = await listenOnLoopback(server, options.port ?? 0, at);
+  at.port = (server.address() as AddressInfo).port;
+  const { address, port } = at;
   return {
     url: `http://${address}:${port}/?t=${token}`,
     address,

@@ -106,65 +106,64 @@ export function budgetSourceLine(file: string, settings: SettingsFile): string {
   return `Settings from ${file}: ${differ.length ? differ.join(', ') : 'the default budget'}\n`;
 }
 
-export async function checkCommand(args: string[], deps: CheckCommandDeps = {}): Promise<number> {
-  let parsed;
-  try {
-    parsed = parseArgs({
-      args,
-      allowPositionals: true,
-      options: {
-        recursive: { type: 'boolean' }, 'no-recursive': { type: 'boolean' }, sequence: { type: 'string' }, 'all-pairs': { type: 'boolean' }, size: { type: 'string' }, threads: { type: 'string' },
-        json: { type: 'string' }, graphml: { type: 'string' }, csv: { type: 'string' }, dot: { type: 'string' }, 'tie-points': { type: 'string' }, 'coverage-map': { type: 'string' }, prefer: { type: 'string' },
-        force: { type: 'boolean' }, 'no-cache': { type: 'boolean' }, settings: { type: 'string' }, 'no-progress': { type: 'boolean' }, progress: { type: 'string' }, help: { type: 'boolean' },
-        'min-inliers': { type: 'string' }, 'reshoot-overlap': { type: 'string' }, 'weak-overlap': { type: 'string' }, 'max-ev': { type: 'string' },
-        'min-sharpness': { type: 'string' }, 'max-bracket-shift': { type: 'string' }, 'full-sphere': { type: 'boolean' },
-      },
-    });
-  } catch (err) {
-    process.stderr.write(`seamscout: ${forTerminal(plainArgumentError(err, 'check', args))}\n`);
-    return 2;
-  }
-  const { values: v, positionals } = parsed;
-  if (v.help) {
-    process.stdout.write(checkUsage);
-    return 0;
-  }
-  if (positionals.length > 1) {
-    process.stderr.write(`Expected at most one folder for check but received ${positionals.length}\n\n${checkUsage}`);
-    return 2;
-  }
-  const whole = (name: string, value: string | undefined, min: number): number | undefined => {
-    if (value === undefined) return undefined;
-    const n = Number(value);
-    if (!Number.isInteger(n) || n < min) throw new TypeError(`Expected a whole number of at least ${min} for --${name} but received ${value}`);
-    return n;
-  };
+/** The command's options as parseArgs reads them (throws on an unknown or malformed option). */
+function parseCheckArgs(args: string[]) {
+  return parseArgs({
+    args,
+    allowPositionals: true,
+    options: {
+      recursive: { type: 'boolean' }, 'no-recursive': { type: 'boolean' }, sequence: { type: 'string' }, 'all-pairs': { type: 'boolean' }, size: { type: 'string' }, threads: { type: 'string' },
+      json: { type: 'string' }, graphml: { type: 'string' }, csv: { type: 'string' }, dot: { type: 'string' }, 'tie-points': { type: 'string' }, 'coverage-map': { type: 'string' }, prefer: { type: 'string' },
+      force: { type: 'boolean' }, 'no-cache': { type: 'boolean' }, settings: { type: 'string' }, 'no-progress': { type: 'boolean' }, progress: { type: 'string' }, help: { type: 'boolean' },
+      'min-inliers': { type: 'string' }, 'reshoot-overlap': { type: 'string' }, 'weak-overlap': { type: 'string' }, 'max-ev': { type: 'string' },
+      'min-sharpness': { type: 'string' }, 'max-bracket-shift': { type: 'string' }, 'full-sphere': { type: 'boolean' },
+    },
+  });
+}
+
+type CheckValues = ReturnType<typeof parseCheckArgs>['values'];
+
+/** What the options and the settings file settle before any folder is read. */
+interface CheckSettings {
+  readonly budget: MatchBudget;
+  readonly size: number;
+  readonly threads: number | undefined;
+  readonly prefer: ShotPreference | undefined;
+  /** Where the budget came from, for stderr ('' without a settings file). */
+  readonly settingsNote: string;
+}
+
+function wholeOption(name: string, value: string | undefined, min: number): number | undefined {
+  if (value === undefined) return undefined;
+  const n = Number(value);
+  if (!Number.isInteger(n) || n < min) throw new TypeError(`Expected a whole number of at least ${min} for --${name} but received ${value}`);
+  return n;
+}
+
+/** The options' values checked and the settings file read; throws with the message to show. */
+async function readCheckSettings(v: CheckValues): Promise<CheckSettings> {
   let settingsNote = '';
-  let budget, size: number, threads: number | undefined, prefer: ShotPreference | undefined;
-  try {
-    size = whole('size', v.size, 64) ?? defaultMaxSide;
-    threads = whole('threads', v.threads, 0);
-    if (v['coverage-map']) coverageMapFormat(v['coverage-map']);
-    if (v.progress !== undefined && v.progress !== 'json') throw new TypeError(`Expected json for --progress but received ${v.progress}`);
-    if (v.prefer !== undefined && !isShotPreference(v.prefer)) throw new TypeError(`Expected jpeg or raw for --prefer but received ${v.prefer}`);
-    const { settings, file } = await readSettingsFile(v.settings);
-    prefer = (v.prefer as ShotPreference | undefined) ?? settings.prefer;
-    const typed = Object.fromEntries(budgetKeys.map((k) => [k, v[budgetOptions[k]]]));
-    // Only a flag given says so: its absence leaves the settings file's declaration standing.
-    typed.fullSphere = v['full-sphere'] ? true : undefined;
-    budget = budgetFromTyped(settingsBudget(settings, file ?? v.settings ?? ''), { values: typed, name: (k) => `--${budgetOptions[k]}` });
-    if (file) {
-      settingsNote = budgetSourceLine(file, settings);
-      const shares = shareOverlapNote(settings, file);
-      if (shares) settingsNote += `note: ${shares}\n`;
-    }
-  } catch (err) {
-    process.stderr.write(`seamscout: ${forTerminal((err as Error).message)}\n`);
-    return 2;
+  const size = wholeOption('size', v.size, 64) ?? defaultMaxSide;
+  const threads = wholeOption('threads', v.threads, 0);
+  if (v['coverage-map']) coverageMapFormat(v['coverage-map']);
+  if (v.progress !== undefined && v.progress !== 'json') throw new TypeError(`Expected json for --progress but received ${v.progress}`);
+  if (v.prefer !== undefined && !isShotPreference(v.prefer)) throw new TypeError(`Expected jpeg or raw for --prefer but received ${v.prefer}`);
+  const { settings, file } = await readSettingsFile(v.settings);
+  const prefer = (v.prefer as ShotPreference | undefined) ?? settings.prefer;
+  const typed = Object.fromEntries(budgetKeys.map((k) => [k, v[budgetOptions[k]]]));
+  // Only a flag given says so: its absence leaves the settings file's declaration standing.
+  typed.fullSphere = v['full-sphere'] ? true : undefined;
+  const budget = budgetFromTyped(settingsBudget(settings, file ?? v.settings ?? ''), { values: typed, name: (k) => `--${budgetOptions[k]}` });
+  if (file) {
+    settingsNote = budgetSourceLine(file, settings);
+    const shares = shareOverlapNote(settings, file);
+    if (shares) settingsNote += `note: ${shares}\n`;
   }
+  return { budget, size, threads, prefer, settingsNote };
+}
 
-  process.stderr.write(settingsNote);
-
+/** The folder to check, or null when there is none (said on stderr). */
+async function checkedFolder(positionals: readonly string[], deps: CheckCommandDeps): Promise<string | null> {
   let folder: string;
   if (positionals.length === 1) folder = resolve(positionals[0]);
   else if (deps.demoFolder) {
@@ -172,18 +171,23 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
     folder = await deps.demoFolder();
   } else {
     process.stderr.write(`Expected a folder for check but received none\n\n${checkUsage}`);
-    return 2;
+    return null;
   }
   try {
     if (!(await stat(folder)).isDirectory()) throw new Error('not a folder');
   } catch {
     process.stderr.write(`seamscout: Expected a readable folder but received ${forTerminal(folder)}\n`);
-    return 2;
+    return null;
   }
+  return folder;
+}
 
-  // An output that could never be written is said before the check, not after it.
-  // (A coverage map's name may turn into numbered ones on a card of several sequences: whether it
-  // exists is asked when it is written.)
+/**
+ * Whether every output could be written, asked before the check, not after it; each refusal is
+ * said. (A coverage map's name may turn into numbered ones on a card of several sequences: whether
+ * it exists is asked when it is written.)
+ */
+async function outputsWritable(v: CheckValues, folder: string): Promise<boolean> {
   const targets = [v.json, v.graphml, v.csv, v.dot, v['tie-points'], v['coverage-map']].filter((p): p is string => !!p);
   let refused = false;
   for (const path of targets) {
@@ -194,8 +198,19 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
       refused = true;
     }
   }
-  if (refused) return 2;
+  return !refused;
+}
 
+interface CardResult {
+  readonly report: Report;
+  readonly tiePoints: Parameters<typeof tiePointsToCsv>[0];
+  /** The pair lines already shown as they came, for the summary. */
+  readonly shown: ReturnType<typeof createCheckStream>['shown'];
+}
+
+/** The folder checked and judged, streaming pair lines as they come; null when the check failed (said on stderr). */
+async function checkAndJudge(v: CheckValues, settings: CheckSettings, folder: string): Promise<CardResult | null> {
+  const { budget } = settings;
   // Pair lines as they come on stdout; the progress line under them only on a terminal.
   const stream = createCheckStream({
     budget,
@@ -204,8 +219,6 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
     bar: !!process.stdout.isTTY && !v['no-progress'] && v.progress !== 'json',
     events: v.progress === 'json' ? process.stderr : null,
   });
-  let report: Report;
-  let tiePoints;
   try {
     // A camera card's layout (DCIM and numbered folders) is read through all its folders.
     const recursive = v.recursive ?? (v['no-recursive'] ? false : await isCardLayout(folder));
@@ -213,29 +226,26 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
       recursive,
       sequence: v.sequence ?? null,
       allPairs: v['all-pairs'],
-      maxSide: size,
-      threads: threads ?? commandLineThreads(),
-      prefer,
+      maxSide: settings.size,
+      threads: settings.threads ?? commandLineThreads(),
+      prefer: settings.prefer,
       cache: v['no-cache'] ? null : createFeatureCache(),
       onProgress: stream.onProgress,
       onPair: stream.onPair,
       onRunDone: stream.onRunDone,
     });
-    report = judge(result.analysis, budget);
+    const report = judge(result.analysis, budget);
     stream.end(report.verdict);
-    tiePoints = result.tiePoints;
+    return { report, tiePoints: result.tiePoints, shown: stream.shown };
   } catch (err) {
     stream.end(null);
     process.stderr.write(`seamscout: ${forTerminal((err as Error).message)}\n`);
-    return 2;
+    return null;
   }
-  if (report.frames.length === 0 && report.skipped.length === 0) {
-    // Nothing was checked: no verdict to give, nothing to write.
-    process.stderr.write(`seamscout: no image files in ${forTerminal(folder)}\n`);
-    return 2;
-  }
-  process.stdout.write(formatSummary(report, stream.shown));
+}
 
+/** Each output asked for, written; false when one could not be (a coverage map that cannot be drawn is only a note). */
+async function writeOutputs(v: CheckValues, report: Report, tiePoints: CardResult['tiePoints'], folder: string): Promise<boolean> {
   const outputs: [string | undefined, () => string | Promise<string | Uint8Array>][] = [
     [v.json, () => exportContent(report, 'json').text],
     [v.graphml, () => exportContent(report, 'graphml').text],
@@ -267,6 +277,47 @@ export async function checkCommand(args: string[], deps: CheckCommandDeps = {}):
       failed = true;
     }
   }
-  if (failed) return 2;
+  return !failed;
+}
+
+export async function checkCommand(args: string[], deps: CheckCommandDeps = {}): Promise<number> {
+  let parsed;
+  try {
+    parsed = parseCheckArgs(args);
+  } catch (err) {
+    process.stderr.write(`seamscout: ${forTerminal(plainArgumentError(err, 'check', args))}\n`);
+    return 2;
+  }
+  const { values: v, positionals } = parsed;
+  if (v.help) {
+    process.stdout.write(checkUsage);
+    return 0;
+  }
+  if (positionals.length > 1) {
+    process.stderr.write(`Expected at most one folder for check but received ${positionals.length}\n\n${checkUsage}`);
+    return 2;
+  }
+  let settings: CheckSettings;
+  try {
+    settings = await readCheckSettings(v);
+  } catch (err) {
+    process.stderr.write(`seamscout: ${forTerminal((err as Error).message)}\n`);
+    return 2;
+  }
+  process.stderr.write(settings.settingsNote);
+
+  const folder = await checkedFolder(positionals, deps);
+  if (folder === null) return 2;
+  if (!(await outputsWritable(v, folder))) return 2;
+  const checked = await checkAndJudge(v, settings, folder);
+  if (!checked) return 2;
+  const { report } = checked;
+  if (report.frames.length === 0 && report.skipped.length === 0) {
+    // Nothing was checked: no verdict to give, nothing to write.
+    process.stderr.write(`seamscout: no image files in ${forTerminal(folder)}\n`);
+    return 2;
+  }
+  process.stdout.write(formatSummary(report, checked.shown));
+  if (!(await writeOutputs(v, report, checked.tiePoints, folder))) return 2;
   return report.verdict === 'ok' ? 0 : 1;
 }
